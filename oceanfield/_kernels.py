@@ -1,0 +1,241 @@
+"""The fast path: two numba kernels per frame, each with a plain-numpy reference.
+
+Why they are shaped this way (see the performance model in DEVELOPERS.md):
+
+* ω depends on |k| alone, so ``rotation_kernel`` evaluates e^{−iωt} once per distinct
+  q = nx² + ny² (a quarter as many sines and cosines as texels, or fewer).
+* ``spectra_kernel`` makes one pass over half the lattice. For each wave index k it reads
+  h0(k), h0(−k) (the mirrored index: no second amplitude array is stored) and the
+  rotation of its q, and writes the spectra of eight real fields packed two to a complex
+  array (A + iB, both Hermitian) at k and, by conjugate symmetry, at −k. Four in-place
+  complex inverse FFTs then give all eight fields.
+* ``surface_kernel`` makes one pass over the transformed arrays, reads the eight fields of
+  a texel, and writes the Jacobian, the displaced surface's unit normal and the foam back
+  into the slots of the five it no longer needs. A frame therefore owns exactly four
+  complex64 arrays (32 bytes a texel) and nothing else.
+
+Packed layout after the inverse FFTs (real part, imaginary part):
+
+=====  ==================  =====================
+slot   after transform     after surface_kernel
+=====  ==================  =====================
+0      h, Dx               h, Dx
+1      Dy, ∂h/∂x           Dy, normal x
+2      ∂h/∂y, ∂Dx/∂x       Jacobian, normal y
+3      ∂Dy/∂y, ∂Dx/∂y      foam, normal z
+=====  ==================  =====================
+
+The normal's three components sit in the imaginary parts of slots 1–3, one array apart,
+so they form a (N, N, 3) view without a copy.
+
+Kernels are compiled on first use and cached on disk (``cache=True``), never at import.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numba
+import numpy as np
+from numpy.typing import NDArray
+
+__all__ = [
+    "rotation_kernel",
+    "spectra_kernel",
+    "surface_kernel",
+    "velocity_kernel",
+    "spectra_reference",
+    "surface_reference",
+]
+
+
+@numba.njit(parallel=True, cache=True, fastmath=False)
+def rotation_kernel(omega_table, t, out):  # pragma: no cover - compiled
+    # e^{-iωt} once per distinct |k|² (ω depends on |k| alone): far fewer sines and cosines
+    # than texels, computed with the phase in float64.
+    for q in numba.prange(omega_table.shape[0]):
+        phase = omega_table[q] * t
+        out[q] = complex(math.cos(phase), -math.sin(phase))
+
+
+@numba.njit(parallel=True, cache=True, fastmath=False)
+def spectra_kernel(h0, rotation, dk, lateral, out):  # pragma: no cover - compiled
+    n = h0.shape[0]
+    half = n // 2
+    q_max = rotation.shape[0] - 1
+    # Each iteration handles a wave index k and its mirror -k together: every field's
+    # spectrum is Hermitian, so the values at -k are the conjugates of those at k and
+    # h0(k), h0(-k) and the rotation are read once for both.
+    for row in numba.prange(half + 1):
+        iy = np.int64(row)  # prange indices may be unsigned; keep index arithmetic signed
+        my = (n - iy) % n
+        ny = iy if iy < half else iy - n
+        ky = dk * ny
+        ix_end = half + 1 if (iy == 0 or iy == half) else n
+        for column in range(ix_end):
+            ix = np.int64(column)
+            mx = (n - ix) % n
+            nx = ix if ix < half else ix - n
+            q = nx * nx + ny * ny
+            if q > q_max or q == 0:
+                for f in range(4):
+                    out[f, iy, ix] = 0.0
+                    out[f, my, mx] = 0.0
+                continue
+            kx = dk * nx
+            k = math.sqrt(kx * kx + ky * ky)
+            a = h0[iy, ix]
+            b = h0[my, mx]
+            e = rotation[q]
+            c = e.real
+            s = -e.imag
+            # ĥ = h0(k) e^{-iωt} + conj(h0(-k)) e^{+iωt}
+            hr = a.real * c + a.imag * s + b.real * c + b.imag * s
+            hi = a.imag * c - a.real * s - b.imag * c + b.real * s
+            ux = kx / k
+            uy = ky / k
+            # spectra (re, im) of the eight fields at k; i·q·ĥ = (-q·hi) + i(q·hr)
+            dxr = -lateral * ux * hi
+            dxi = lateral * ux * hr
+            dyr = -lateral * uy * hi
+            dyi = lateral * uy * hr
+            sxr = -kx * hi
+            sxi = kx * hr
+            syr = -ky * hi
+            syi = ky * hr
+            fxx = -lateral * kx * ux
+            fyy = -lateral * ky * uy
+            fxy = -lateral * kx * uy
+            # Packed A + iB at k is (Ar - Bi) + i(Ai + Br); at -k, conj(A) + i conj(B) is
+            # (Ar + Bi) + i(Br - Ai).
+            out[0, iy, ix] = complex(hr - dxi, hi + dxr)
+            out[0, my, mx] = complex(hr + dxi, dxr - hi)
+            out[1, iy, ix] = complex(dyr - sxi, dyi + sxr)
+            out[1, my, mx] = complex(dyr + sxi, sxr - dyi)
+            out[2, iy, ix] = complex(syr - fxx * hi, syi + fxx * hr)
+            out[2, my, mx] = complex(syr + fxx * hi, fxx * hr - syi)
+            out[3, iy, ix] = complex(fyy * hr - fxy * hi, fyy * hi + fxy * hr)
+            out[3, my, mx] = complex(fyy * hr + fxy * hi, fxy * hr - fyy * hi)
+
+
+@numba.njit(parallel=True, cache=True, fastmath=False)
+def surface_kernel(fields, fold_threshold, foam_ramp):  # pragma: no cover - compiled
+    n = fields.shape[1]
+    for iy in numba.prange(n):
+        for ix in range(n):
+            v1 = fields[1, iy, ix]
+            v2 = fields[2, iy, ix]
+            v3 = fields[3, iy, ix]
+            sx = v1.imag
+            sy = v2.real
+            jxx = 1.0 + v2.imag
+            jyy = 1.0 + v3.real
+            jxy = v3.imag
+            jac = jxx * jyy - jxy * jxy
+            # (∂P/∂x) × (∂P/∂y) for P = (x + Dx, y + Dy, h)
+            nx = jxy * sy - sx * jyy
+            ny = sx * jxy - jxx * sy
+            nz = jac
+            norm = math.sqrt(nx * nx + ny * ny + nz * nz)
+            if norm > 0.0:
+                nx /= norm
+                ny /= norm
+                nz /= norm
+            else:
+                nz = 1.0
+            foam = (fold_threshold - jac) / foam_ramp
+            foam = min(max(foam, 0.0), 1.0)
+            fields[1, iy, ix] = complex(v1.real, nx)
+            fields[2, iy, ix] = complex(jac, ny)
+            fields[3, iy, ix] = complex(foam, nz)
+
+
+@numba.njit(parallel=True, cache=True, fastmath=False)
+def velocity_kernel(h0, omega_table, rotation, dk, lateral, out):  # pragma: no cover - compiled
+    n = h0.shape[0]
+    half = n // 2
+    q_max = rotation.shape[0] - 1
+    for row in numba.prange(n):
+        iy = np.int64(row)
+        ny = iy if iy < half else iy - n
+        my = (n - iy) % n
+        ky = dk * ny
+        for column in range(n):
+            ix = np.int64(column)
+            nx = ix if ix < half else ix - n
+            mx = (n - ix) % n
+            q = nx * nx + ny * ny
+            if q > q_max or q == 0:
+                out[0, iy, ix] = 0.0
+                out[1, iy, ix] = 0.0
+                continue
+            kx = dk * nx
+            k = math.sqrt(kx * kx + ky * ky)
+            a = h0[iy, ix]
+            b = h0[my, mx]
+            w = omega_table[q]
+            c = rotation[q].real
+            s = -rotation[q].imag
+            # ∂ĥ/∂t = -iω h0 e^{-iωt} + iω conj(h0(-k)) e^{+iωt}
+            er = a.real * c + a.imag * s
+            ei = a.imag * c - a.real * s
+            fr = b.real * c + b.imag * s
+            fi = b.real * s - b.imag * c
+            vr = w * (ei - fi)
+            vi = w * (fr - er)
+            ux = kx / k
+            uy = ky / k
+            vxr = -lateral * ux * vi
+            vxi = lateral * ux * vr
+            vyr = -lateral * uy * vi
+            vyi = lateral * uy * vr
+            out[0, iy, ix] = complex(vxr - vyi, vxi + vyr)
+            out[1, iy, ix] = complex(vr, vi)
+
+
+# -- plain numpy references (tests hold the kernels against these) ----------------------
+
+
+def _lattice(n: int, dk: float) -> tuple[NDArray, NDArray, NDArray]:
+    idx = np.fft.fftfreq(n, d=1.0 / n)
+    ky = (idx * dk)[:, None]
+    kx = (idx * dk)[None, :]
+    return kx, ky, np.hypot(kx, ky)
+
+
+def spectra_reference(h0: NDArray, omega: NDArray, t: float, dk: float, lateral: float) -> NDArray:
+    """The eight field spectra at time t, packed as in :func:`spectra_kernel`, by numpy."""
+    n = h0.shape[0]
+    kx, ky, k = _lattice(n, dk)
+    mirrored = np.roll(h0[::-1, ::-1], 1, axis=(0, 1))
+    rotation = np.exp(-1j * omega * t)
+    hk = h0 * rotation + np.conj(mirrored) * np.conj(rotation)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ux = np.where(k > 0, kx / k, 0.0)
+        uy = np.where(k > 0, ky / k, 0.0)
+    spectra = [
+        hk,
+        1j * lateral * ux * hk,
+        1j * lateral * uy * hk,
+        1j * kx * hk,
+        1j * ky * hk,
+        -lateral * kx * ux * hk,
+        -lateral * ky * uy * hk,
+        -lateral * kx * uy * hk,
+    ]
+    return np.stack([spectra[2 * i] + 1j * spectra[2 * i + 1] for i in range(4)])
+
+
+def surface_reference(fields: NDArray, fold_threshold: float, foam_ramp: float) -> NDArray:
+    """:func:`surface_kernel` by numpy, returning a new array."""
+    out = fields.copy()
+    sx, sy = fields[1].imag, fields[2].real
+    jxx, jyy, jxy = 1.0 + fields[2].imag, 1.0 + fields[3].real, fields[3].imag
+    jac = jxx * jyy - jxy**2
+    normal = np.stack([jxy * sy - sx * jyy, sx * jxy - jxx * sy, jac])
+    normal = normal / np.linalg.norm(normal, axis=0)
+    foam = np.clip((fold_threshold - jac) / foam_ramp, 0.0, 1.0)
+    out[1] = fields[1].real + 1j * normal[0]
+    out[2] = jac + 1j * normal[1]
+    out[3] = foam + 1j * normal[2]
+    return out
