@@ -1,0 +1,34 @@
+"""Writers and readers: OpenEXR and 16-bit PNG maps, written atomically.
+
+Nothing here knows of physics: the writers take named channel arrays (see
+`oceanfield.maps`) and put them in files.
+"""
+
+from oceanfield.io.atomic import atomic_output, is_temporary, remove_stale_temporaries
+from oceanfield.io.errors import CorruptFileError, OutputError
+from oceanfield.io.exr import (
+    COMPRESSIONS,
+    LOSSLESS_COMPRESSIONS,
+    PRECISIONS,
+    exr_is_complete,
+    read_exr,
+    write_exr,
+)
+from oceanfield.io.png import read_png16, sidecar_path, write_png16
+
+__all__ = [
+    "COMPRESSIONS",
+    "LOSSLESS_COMPRESSIONS",
+    "PRECISIONS",
+    "CorruptFileError",
+    "OutputError",
+    "atomic_output",
+    "exr_is_complete",
+    "is_temporary",
+    "read_exr",
+    "read_png16",
+    "remove_stale_temporaries",
+    "sidecar_path",
+    "write_exr",
+    "write_png16",
+]

@@ -1,0 +1,206 @@
+"""Named maps of one frame, in the 3D package's axes and scene units.
+
+A map is a set of float32 channel arrays named by the OpenEXR convention: a vector map has
+channels ``"R"``, ``"G"``, ``"B"`` holding its scene X, Y, Z components; a one-channel map
+has the single channel ``"Y"``. `layered_channels` puts several maps in one multi-layer
+image with ``layer.channel`` names (``"displacement.R"``).
+
+Axes
+----
+Internally x runs along array columns, y along array rows, z up (see `Fields`). The scene
+is either Z-up or Y-up, both right-handed:
+
+===========  =======================================
+``up_axis``  scene (X, Y, Z) from internal (x, y, z)
+===========  =======================================
+``"z"``      (x, y, z): unchanged
+``"y"``      (x, z, −y)
+===========  =======================================
+
+so in a Y-up scene the internal +y direction (down the rows) is scene −Z, and "up" is
+scene +Y.
+
+Units
+-----
+Lengths are divided by ``metres_per_unit`` (0.01 for a centimetre scene); velocities too,
+giving scene units per second. Normals and foam are dimensionless and never scaled.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Iterable
+
+import numpy as np
+from numpy.typing import NDArray
+
+from oceanfield.fields import Fields
+
+__all__ = ["MAPS", "UP_AXES", "map_channels", "layered_channels"]
+
+#: The maps a frame can be written as.
+MAPS: tuple[str, ...] = ("displacement", "normal", "foam", "height", "velocity")
+
+#: The scene up-axis conventions `map_channels` knows.
+UP_AXES: tuple[str, ...] = ("y", "z")
+
+#: OpenEXR channel names of a vector map's scene X, Y, Z components.
+_VECTOR_CHANNELS = ("R", "G", "B")
+#: OpenEXR channel name of a one-channel map.
+_SCALAR_CHANNEL = "Y"
+
+
+def map_channels(
+    fields: Fields,
+    name: str,
+    *,
+    metres_per_unit: float = 1.0,
+    up_axis: str = "y",
+) -> dict[str, NDArray[np.float32]]:
+    """Channels of one named map of a frame, in scene axes and units.
+
+    Parameters
+    ----------
+    fields : Fields
+        The frame.
+    name : str
+        One of `MAPS`:
+
+        - ``"displacement"``: the displacement (displacement_x, displacement_y, height) of
+          each texel in scene units, as channels R, G, B = scene X, Y, Z;
+        - ``"normal"``: the unit normal of the displaced surface, R, G, B = scene X, Y, Z;
+        - ``"velocity"``: the velocity of the displaced surface point in scene units per
+          second, R, G, B = scene X, Y, Z;
+        - ``"height"``: the vertical displacement in scene units, channel Y;
+        - ``"foam"``: foam coverage 0 … 1, channel Y.
+    metres_per_unit : float, optional
+        Metres in one scene unit (1.0 for a metre scene, 0.01 for centimetres); finite
+        and positive.
+    up_axis : {"y", "z"}, optional
+        The scene's up axis; see the module notes for the mapping.
+
+    Returns
+    -------
+    dict of str to NDArray[np.float32]
+        C-contiguous (N, N) float32 arrays keyed by OpenEXR channel name. They may share
+        memory with `fields`; treat them as read-only.
+
+    Raises
+    ------
+    ValueError
+        For an unknown map name, an unknown up axis, a non-positive or non-finite
+        ``metres_per_unit``, or ``"velocity"`` when ``fields.velocity`` is None.
+    """
+    _check_options(metres_per_unit, up_axis)
+    return _map(fields, _check_name(fields, name), float(metres_per_unit), up_axis)
+
+
+def layered_channels(
+    fields: Fields,
+    names: Iterable[str],
+    *,
+    metres_per_unit: float = 1.0,
+    up_axis: str = "y",
+) -> dict[str, NDArray[np.float32]]:
+    """Channels of several maps for one multi-layer image, named ``"map.channel"``.
+
+    Parameters
+    ----------
+    fields : Fields
+        The frame.
+    names : iterable of str
+        Map names from `MAPS`, each at most once, at least one.
+    metres_per_unit, up_axis
+        As for `map_channels`.
+
+    Returns
+    -------
+    dict of str to NDArray[np.float32]
+        One entry per channel, keyed ``"<map>.<channel>"`` (OpenEXR layer naming), e.g.
+        ``"displacement.R"``, ``"foam.Y"``; in the order of `names`.
+
+    Raises
+    ------
+    ValueError
+        For a bare string instead of a sequence of names, no names, a repeated name, or
+        any error `map_channels` reports.
+    """
+    if isinstance(names, str):
+        raise ValueError(f"names: got the string {names!r}; pass a sequence of map names, "
+                         f"e.g. [{names!r}]")
+    names = list(names)
+    if not names:
+        raise ValueError(f"names: no maps requested; choose from {', '.join(MAPS)}")
+    repeated = sorted({n for n in names if names.count(n) > 1})
+    if repeated:
+        raise ValueError(f"names: map {repeated[0]!r} requested more than once")
+    _check_options(metres_per_unit, up_axis)
+    checked = [_check_name(fields, name) for name in names]
+    layered: dict[str, NDArray[np.float32]] = {}
+    for name in checked:
+        for channel, array in _map(fields, name, float(metres_per_unit), up_axis).items():
+            layered[f"{name}.{channel}"] = array
+    return layered
+
+
+def _check_options(metres_per_unit: float, up_axis: str) -> None:
+    if (
+        isinstance(metres_per_unit, (bool, np.bool_))
+        or not isinstance(metres_per_unit, (int, float, np.integer, np.floating))
+        or not math.isfinite(metres_per_unit)
+        or metres_per_unit <= 0
+    ):
+        raise ValueError(f"metres_per_unit: got {metres_per_unit!r}; expected a finite "
+                         f"number of metres per scene unit above 0 (e.g. 1.0, 0.01)")
+    if up_axis not in UP_AXES:
+        raise ValueError(f"up_axis: got {up_axis!r}; expected one of {', '.join(UP_AXES)}")
+
+
+def _check_name(fields: Fields, name: str) -> str:
+    if name not in MAPS:
+        raise ValueError(f"map name: got {name!r}; expected one of {', '.join(MAPS)}")
+    if name == "velocity" and fields.velocity is None:
+        raise ValueError("map name: 'velocity' requested but this frame has no velocity "
+                         "field (fields.velocity is None)")
+    return name
+
+
+def _map(
+    fields: Fields, name: str, metres_per_unit: float, up_axis: str
+) -> dict[str, NDArray[np.float32]]:
+    if name == "height":
+        return {_SCALAR_CHANNEL: _scaled(fields.height, metres_per_unit)}
+    if name == "foam":
+        return {_SCALAR_CHANNEL: _scaled(fields.foam, 1.0)}
+    if name == "displacement":
+        vector = (fields.displacement_x, fields.displacement_y, fields.height)
+        scale = metres_per_unit
+    elif name == "normal":
+        vector = (fields.normal[..., 0], fields.normal[..., 1], fields.normal[..., 2])
+        scale = 1.0
+    else:  # velocity, checked present by _check_name
+        assert fields.velocity is not None
+        velocity = fields.velocity
+        vector = (velocity[..., 0], velocity[..., 1], velocity[..., 2])
+        scale = metres_per_unit
+    scene = _to_scene_axes(*vector, up_axis=up_axis)
+    return {
+        channel: _scaled(component, scale)
+        for channel, component in zip(_VECTOR_CHANNELS, scene)
+    }
+
+
+def _to_scene_axes(
+    x: NDArray[np.float32], y: NDArray[np.float32], z: NDArray[np.float32], *, up_axis: str
+) -> tuple[NDArray[np.float32], NDArray[np.float32], NDArray[np.float32]]:
+    """Scene (X, Y, Z) of an internal vector (x, y, z); both frames right-handed."""
+    if up_axis == "z":
+        return x, y, z
+    return x, z, -y
+
+
+def _scaled(component: NDArray[np.float32], metres_per_unit: float) -> NDArray[np.float32]:
+    """One C-contiguous float32 channel, lengths converted to scene units."""
+    if metres_per_unit != 1.0:
+        component = np.divide(component, metres_per_unit, dtype=np.float32)
+    return np.ascontiguousarray(component, dtype=np.float32)
