@@ -65,6 +65,7 @@ __all__ = [
     "PRECISIONS",
     "write_exr",
     "read_exr",
+    "read_exr_attributes",
     "exr_is_complete",
 ]
 
@@ -221,6 +222,30 @@ def read_exr(
     except (RuntimeError, ValueError) as exc:
         raise CorruptFileError(path, f"its data does not decode ({exc})") from exc
     return channels, attributes
+
+
+def read_exr_attributes(path: str | os.PathLike[str]) -> dict[str, Any]:
+    """The extra header attributes of an OpenEXR file, without reading its pixels.
+
+    Raises
+    ------
+    FileNotFoundError
+        When there is no file.
+    CorruptFileError
+        When the header cannot be read.
+    """
+    path = Path(path)
+    if not path.is_file():
+        raise FileNotFoundError(path)
+    try:
+        with OpenEXR.File(str(path), header_only=True) as exr:
+            return {
+                name: _python_value(value)
+                for name, value in exr.header().items()
+                if name not in _LAYOUT_ATTRIBUTES
+            }
+    except (RuntimeError, ValueError) as exc:
+        raise CorruptFileError(path, f"its header does not read ({exc})") from exc
 
 
 def exr_is_complete(

@@ -1,0 +1,223 @@
+"""The ``oceanfield`` command line: parse, call, report.
+
+Every user error passes through :func:`_fail`, which prints one clear block to stderr and
+returns exit status 2. Heavy imports (numba kernels, OpenEXR, matplotlib, Dask) happen
+inside the commands that need them, so ``oceanfield --help`` is instant.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import math
+import sys
+from typing import Sequence
+
+__all__ = ["build_parser", "main"]
+
+_PROG = "oceanfield"
+
+
+class UserError(Exception):
+    """A mistake in what the user asked for: reported in one block, exit status 2."""
+
+
+def _fail(message: str) -> int:
+    print(f"{_PROG}: error: {message}", file=sys.stderr)
+    return 2
+
+
+def _add_preset_arguments(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("preset", help="a shipped preset's name (see 'oceanfield presets') or a YAML file")
+    parser.add_argument(
+        "--set",
+        dest="overrides",
+        action="append",
+        default=[],
+        metavar="KEY=VALUE",
+        help="override a preset key, e.g. --set sea.components.0.wind_speed_mps=14 (repeatable)",
+    )
+
+
+def build_parser() -> argparse.ArgumentParser:
+    """The argument parser of every command."""
+    parser = argparse.ArgumentParser(
+        prog=_PROG,
+        description="Tileable animated ocean surfaces for visual effects, checked against physics.",
+    )
+    parser.add_argument("--version", action="version", version=f"%(prog)s {_version()}")
+    commands = parser.add_subparsers(dest="command", metavar="COMMAND")
+    commands.required = True
+
+    listing = commands.add_parser("presets", help="list the shipped presets with their sea statistics")
+    listing.add_argument("--json", action="store_true", help="print JSON instead of a table")
+
+    stats = commands.add_parser("stats", help="print a preset's sea: heights, periods, wavelengths, Beaufort")
+    _add_preset_arguments(stats)
+    stats.add_argument("--json", action="store_true", help="print JSON instead of text")
+
+    resolve = commands.add_parser("resolve", help="print the preset with every default filled in (YAML)")
+    _add_preset_arguments(resolve)
+
+    preview = commands.add_parser("preview", help="write one picture of a preset: shaded surface, height, spectrum")
+    _add_preset_arguments(preview)
+    preview.add_argument("--frame", type=int, default=None, help="frame number (default: the first)")
+    preview.add_argument("--out", default=None, help="PNG file to write (default: renders/<preset>_preview.png)")
+
+    render = commands.add_parser("render", help="render a preset's map sequence")
+    _add_preset_arguments(render)
+    render.add_argument("--frames", default=None, help="frame range A-B or list A,B,C (default: the preset's)")
+    render.add_argument("--chunk", default=None, metavar="I/N", help="render only chunk I of N of the frames (1-based)")
+    render.add_argument("--workers", type=int, default=None, help="local worker processes (default: cores)")
+    render.add_argument("--scheduler", default=None, metavar="ADDRESS", help="a Dask distributed scheduler to render on")
+    render.add_argument("--out", default=None, metavar="DIR", help="output root (default: ./renders)")
+    render.add_argument("--overwrite", action="store_true", help="replace frames and a manifest from another preset")
+
+    analyze = commands.add_parser("analyze", help="measure a height sequence's spectrum, statistics and wave timing")
+    analyze.add_argument("sequence", help="files: a glob or a pattern with #### for the frame number")
+    analyze.add_argument("--tile-size", type=float, required=True, metavar="METRES", help="side of the area the frames cover")
+    analyze.add_argument("--fps", type=float, required=True, help="frames per second of the sequence")
+    analyze.add_argument("--channel", default=None, help="EXR channel holding height (default: from our header, else Y, then G of RGB)")
+    analyze.add_argument("--depth", type=float, default=None, metavar="METRES", help="water depth (default: deep)")
+    analyze.add_argument("--against", default=None, metavar="PRESET", help="compare with a preset's target spectrum")
+    analyze.add_argument("--frames", default=None, help="frame range A-B to read")
+    analyze.add_argument("--crop", default=None, metavar="X,Y,SIZE", help="analyse a square region (texels); not periodic")
+    analyze.add_argument("--metres-per-unit", type=float, default=None, help="scene scale of the values (default: from header, else 1)")
+    analyze.add_argument("--up-axis", choices=("y", "z"), default=None, help="up axis of RGB displacement maps")
+    analyze.add_argument("--json", action="store_true", help="print every figure as JSON")
+    analyze.add_argument("--report", default=None, metavar="FILE.png", help="write a report picture")
+    return parser
+
+
+def _version() -> str:
+    from . import __version__
+
+    return __version__
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Run the command line; returns the exit status."""
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    handler = _COMMANDS[args.command]
+    try:
+        return handler(args)
+    except UserError as error:
+        return _fail(str(error))
+    except ValueError as error:  # validation at a public boundary: the user's input
+        return _fail(str(error))
+    except KeyboardInterrupt:
+        return _fail("interrupted")
+
+
+# -- commands ------------------------------------------------------------------------------
+
+
+def _load(args: argparse.Namespace, *, allow_outside_output: bool = False):
+    from .preset import load_preset
+
+    return load_preset(args.preset, overrides=tuple(args.overrides), allow_outside_output=allow_outside_output)
+
+
+def _warn(preset) -> None:
+    from .preset import preset_warnings
+
+    for message in preset_warnings(preset):
+        print(f"{_PROG}: warning: {message}", file=sys.stderr)
+
+
+def _cmd_presets(args: argparse.Namespace) -> int:
+    from .preset import PresetError, list_presets, load_preset, to_sea_state
+
+    rows = []
+    for name, _path, description in list_presets():
+        if name == "reference":
+            continue
+        try:
+            preset = load_preset(name)
+        except PresetError as error:  # a broken shipped preset is a bug, but list the rest
+            rows.append({"name": name, "description": description, "error": str(error)})
+            continue
+        stats = to_sea_state(preset).statistics()
+        rows.append(
+            {
+                "name": name,
+                "description": description,
+                "hs_m": stats.hs,
+                "tp_s": stats.tp,
+                "peak_wavelength_m": stats.peak_wavelength,
+                "towards_deg": math.degrees(stats.mean_direction),
+                "beaufort": stats.beaufort,
+            }
+        )
+    if args.json:
+        print(json.dumps(rows, indent=2))
+        return 0
+    print(f"{'preset':<24} {'Hs m':>7} {'Tp s':>6} {'λp m':>8} {'towards':>8} {'Bft':>4}  description")
+    for row in rows:
+        if "error" in row:
+            print(f"{row['name']:<24} (does not load: {row['error']})")
+            continue
+        print(
+            f"{row['name']:<24} {row['hs_m']:>7.2f} {row['tp_s']:>6.2f} {row['peak_wavelength_m']:>8.1f} "
+            f"{row['towards_deg']:>7.0f}° {row['beaufort']:>4d}  {row['description']}"
+        )
+    return 0
+
+
+def _cmd_stats(args: argparse.Namespace) -> int:
+    from .report import sea_report
+
+    preset = _load(args)
+    _warn(preset)
+    report = sea_report(preset)
+    if args.json:
+        print(json.dumps(report, indent=2))
+    else:
+        from .report import format_sea_report
+
+        print(format_sea_report(report))
+    return 0
+
+
+def _cmd_resolve(args: argparse.Namespace) -> int:
+    from .preset import dump_preset
+
+    print(dump_preset(_load(args)), end="")
+    return 0
+
+
+def _cmd_preview(args: argparse.Namespace) -> int:
+    from .preview import write_preview
+
+    preset = _load(args, allow_outside_output=True)
+    _warn(preset)
+    path = write_preview(preset, frame=args.frame, out=args.out)
+    print(f"preview written to {path}")
+    return 0
+
+
+def _cmd_render(args: argparse.Namespace) -> int:
+    from .render import run_render_command
+
+    return run_render_command(args)
+
+
+def _cmd_analyze(args: argparse.Namespace) -> int:
+    from .analyze import run_analyze_command
+
+    return run_analyze_command(args)
+
+
+_COMMANDS = {
+    "presets": _cmd_presets,
+    "stats": _cmd_stats,
+    "resolve": _cmd_resolve,
+    "preview": _cmd_preview,
+    "render": _cmd_render,
+    "analyze": _cmd_analyze,
+}
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())

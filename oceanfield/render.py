@@ -1,0 +1,603 @@
+"""The render job: a preset's map sequence on disk, locally or on a farm, resumable.
+
+Orchestration only: which frames, which files, who computes them, what is already done.
+Frames are pure functions of time (see ``synth``), so any chunk of frames can be rendered
+on any machine in any order and give the same files.
+
+Nothing lost, nothing half-written:
+
+* every file is written to a hidden temporary beside its final name and renamed into place
+  only when complete (``io.atomic``); a killed render leaves no partial file under a
+  frame's name, and two processes rendering the same frame each write their own temporary;
+* a re-run skips frames whose files are all complete (header, chunk table and size
+  checked, and the render hash in the header matches) and redoes the rest;
+* a manifest (``oceanfield-manifest.json``) beside the frames records the resolved preset,
+  its render hash, the software version and the frames done; rendering a different preset
+  into the same folder is refused unless ``overwrite``.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import json
+import math
+import os
+import queue
+import re
+import sys
+import threading
+import time
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any, Callable, Iterable, Sequence
+
+import numpy as np
+
+__all__ = [
+    "MANIFEST_NAME",
+    "RenderPlan",
+    "FrameResult",
+    "RenderSummary",
+    "parse_frames",
+    "select_chunk",
+    "render_hash",
+    "plan_render",
+    "render",
+    "render_frame_files",
+    "run_render_command",
+]
+
+MANIFEST_NAME = "oceanfield-manifest.json"
+_ATTRIBUTE_PREFIX = "oceanfield."
+_LAYERS_MAP = "layers"  # the multi-layer file's {map} in the file pattern
+_PNG_RANGE_HEIGHTS = 2.5  # PNG value range: ± this many Hs (common practice: crests rarely pass 1.3 Hs)
+
+
+# -- what to render --------------------------------------------------------------------------
+
+
+def parse_frames(text: str | None, default: range) -> list[int]:
+    """Frame numbers from ``A-B`` (inclusive), ``A,B,C`` or a mix (``1001-1010,1020``).
+
+    ``None`` gives ``default``. Raises ValueError naming ``--frames`` on anything else.
+    """
+    if text is None:
+        return list(default)
+    frames: list[int] = []
+    allowed = "allowed: A-B with A <= B, a comma-separated list of frames, or a mix (1001-1010,1020)"
+    for part in text.split(","):
+        part = part.strip()
+        match = re.fullmatch(r"(-?\d+)\s*-\s*(-?\d+)", part) or re.fullmatch(r"(-?\d+)", part)
+        if not match:
+            raise ValueError(f"--frames: {text!r} is not a frame range; {allowed}")
+        first = int(match.group(1))
+        last = int(match.group(2)) if match.lastindex == 2 else first
+        if last < first:
+            raise ValueError(f"--frames: {text!r} runs backwards ({first} to {last}); {allowed}")
+        if last - first > 10_000_000:
+            raise ValueError(f"--frames: {text!r} is over ten million frames; {allowed}")
+        frames.extend(range(first, last + 1))
+    return sorted(set(frames))
+
+
+def select_chunk(frames: Sequence[int], text: str | None) -> list[int]:
+    """Chunk ``I/N`` (1-based) of ``frames``: N near-equal contiguous runs, the I-th of them.
+
+    Any farm manager can split a job this way and the chunks together cover every frame
+    exactly once. ``None`` gives every frame.
+    """
+    if text is None:
+        return list(frames)
+    match = re.fullmatch(r"\s*(\d+)\s*/\s*(\d+)\s*", text)
+    index, count = (int(match.group(1)), int(match.group(2))) if match else (0, 0)
+    if not match or count < 1 or not 1 <= index <= count:
+        raise ValueError(f"--chunk: {text!r} is not allowed; allowed: I/N with 1 <= I <= N, e.g. 3/8")
+    start = (index - 1) * len(frames) // count
+    stop = index * len(frames) // count
+    return list(frames[start:stop])
+
+
+def render_hash(preset) -> str:
+    """Hash of everything in ``preset`` that changes a frame's files.
+
+    The preset's hash with ``last_frame`` left out: extending a sequence keeps the frames
+    already rendered valid, while any change to the sea, tile, time mapping, maps or
+    encoding changes the hash.
+    """
+    from .preset import preset_hash
+
+    timing = dataclasses.replace(preset.time, last_frame=preset.time.first_frame)
+    return preset_hash(dataclasses.replace(preset, time=timing))
+
+
+@dataclass(frozen=True)
+class RenderPlan:
+    """What one render run will do: the preset, the output root and the frames."""
+
+    preset: Any
+    root: Path
+    frames: tuple[int, ...]
+    hash: str
+
+    @property
+    def folder(self) -> Path:
+        """The preset's output folder (where the manifest lives)."""
+        return self.root / self.preset.output.folder.format(preset=self.preset.name, map="", ext="")
+
+    def files(self, frame: int) -> dict[str, Path]:
+        """Map name (or ``layers``) → file of one frame."""
+        output = self.preset.output
+        names = list(self.preset.maps)
+        if output.multilayer and output.format == "exr":
+            names.append(_LAYERS_MAP)
+        return {name: self.root / output.relative_path(self.preset.name, name, frame) for name in names}
+
+
+def plan_render(preset, *, root: str | os.PathLike[str] = "renders", frames: str | None = None,
+                chunk: str | None = None) -> RenderPlan:
+    """Choose the frames (``--frames``, then ``--chunk``) of a resolved preset under ``root``."""
+    selected = select_chunk(parse_frames(frames, preset.time.frames), chunk)
+    return RenderPlan(preset, Path(root), tuple(selected), render_hash(preset))
+
+
+# -- one frame's files -------------------------------------------------------------------------
+
+
+def _attributes(plan: RenderPlan, frame: int, map_name: str) -> dict[str, Any]:
+    from . import __version__
+
+    preset = plan.preset
+    p = _ATTRIBUTE_PREFIX
+    return {
+        f"{p}version": __version__,
+        f"{p}map": map_name,
+        f"{p}frame": int(frame),
+        f"{p}time_s": float(preset.time.frame_time(frame)),
+        f"{p}fps": float(preset.time.fps),
+        f"{p}tile_size": float(preset.tile.size_m / preset.scene.metres_per_unit),
+        f"{p}metres_per_unit": float(preset.scene.metres_per_unit),
+        f"{p}up_axis": preset.scene.up_axis,
+        f"{p}seed": int(preset.seed) if preset.seed < 2**31 else str(preset.seed),
+        f"{p}preset_hash": plan.hash,
+        f"{p}preset": preset.name,
+    }
+
+
+def _png_range(plan: RenderPlan, map_name: str, scale: dict[str, float]) -> tuple[float, float]:
+    """A fixed value range for a PNG map over the whole sequence (stored in its sidecar)."""
+    if map_name == "normal":
+        return (-1.0, 1.0)
+    if map_name == "foam":
+        return (0.0, 1.0)
+    reach = scale["velocity" if map_name == "velocity" else "length"]
+    return (-reach, reach)
+
+
+def _png_scales(preset) -> dict[str, float]:
+    from .preset import to_sea_state
+
+    stats = to_sea_state(preset).statistics()
+    lateral = max(1.0, preset.surface.lateral_factor)
+    length = _PNG_RANGE_HEIGHTS * stats.hs * lateral / preset.scene.metres_per_unit
+    return {"length": length, "velocity": length * 2.0 * math.pi / stats.tm02}
+
+
+def render_frame_files(plan: RenderPlan, frame: int, fields, png_scales: dict[str, float] | None = None) -> list[Path]:
+    """Write every file of one frame from its fields; returns the paths written."""
+    from .maps import layered_channels, map_channels
+
+    preset = plan.preset
+    output, scene = preset.output, preset.scene
+    written = []
+    for name, path in plan.files(frame).items():
+        path.parent.mkdir(parents=True, exist_ok=True)
+        if output.format == "exr":
+            from .io.exr import write_exr
+
+            if name == _LAYERS_MAP:
+                channels = layered_channels(fields, preset.maps, metres_per_unit=scene.metres_per_unit, up_axis=scene.up_axis)
+                precision = {m: output.precision_for(m) for m in preset.maps}
+            else:
+                channels = map_channels(fields, name, metres_per_unit=scene.metres_per_unit, up_axis=scene.up_axis)
+                precision = output.precision_for(name)
+            write_exr(path, channels, precision=precision, compression=output.compression,
+                      attributes=_attributes(plan, frame, name))
+        else:
+            from .io.png import write_png16
+
+            channels = map_channels(fields, name, metres_per_unit=scene.metres_per_unit, up_axis=scene.up_axis)
+            array = np.stack(list(channels.values()), axis=-1) if len(channels) > 1 else next(iter(channels.values()))
+            scales = png_scales if png_scales is not None else _png_scales(preset)
+            write_png16(path, array, value_range=_png_range(plan, name, scales))
+        written.append(path)
+    return written
+
+
+def frame_is_complete(plan: RenderPlan, frame: int) -> bool:
+    """Whether every file of ``frame`` exists, is whole, and was rendered from this preset."""
+    for name, path in plan.files(frame).items():
+        if not path.is_file():
+            return False
+        if plan.preset.output.format == "exr":
+            from .io.exr import exr_is_complete, read_exr_attributes
+
+            if not exr_is_complete(path, decode=False):
+                return False
+            attributes = read_exr_attributes(path)
+            if attributes.get(f"{_ATTRIBUTE_PREFIX}preset_hash") != plan.hash:
+                return False
+        else:
+            from .io.png import read_png16, sidecar_path
+
+            if not sidecar_path(path).is_file():
+                return False
+            try:
+                read_png16(path)
+            except (OSError, ValueError):
+                return False
+    return True
+
+
+# -- running ---------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class FrameResult:
+    """What happened to one frame: ``written``, ``skipped`` (already complete) or ``failed``."""
+
+    frame: int
+    status: str
+    seconds: float = 0.0
+    error: str = ""
+
+
+@dataclass
+class RenderSummary:
+    """Totals of a render run."""
+
+    requested: int
+    written: list[int] = field(default_factory=list)
+    skipped: list[int] = field(default_factory=list)
+    failed: dict[int, str] = field(default_factory=dict)
+    wall_seconds: float = 0.0
+
+    @property
+    def ok(self) -> bool:
+        """Every requested frame exists and is complete."""
+        return not self.failed and len(self.written) + len(self.skipped) == self.requested
+
+    def line(self) -> str:
+        rate = len(self.written) / self.wall_seconds if self.wall_seconds > 0 else 0.0
+        return (
+            f"{len(self.written)} written, {len(self.skipped)} skipped (already complete), "
+            f"{len(self.failed)} failed of {self.requested} frames in {self.wall_seconds:.1f} s "
+            f"({rate:.2f} frames/s)"
+        )
+
+
+def _set_threads(threads: int) -> None:
+    """Limit numba's threads in this process (the FFT's are passed per call)."""
+    import numba
+
+    numba.set_num_threads(max(1, min(threads, numba.config.NUMBA_NUM_THREADS)))
+
+
+def _render_frames(plan: RenderPlan, frames: Iterable[int], *, threads: int, overwrite: bool,
+                   report: Callable[[FrameResult], None]) -> None:
+    """Render ``frames`` in this process, overlapping each frame's compute with the last's writes.
+
+    A writer thread takes finished frames from a queue of one, so a frame costs about
+    max(compute, write). Two buffers alternate between the synthesiser and the writer.
+    """
+    from .synth import Ocean
+
+    _set_threads(threads)
+    todo = []
+    for frame in frames:
+        if not overwrite and frame_is_complete(plan, frame):
+            report(FrameResult(frame, "skipped"))
+        else:
+            todo.append(frame)
+    if not todo:
+        return
+    ocean = Ocean.from_preset(plan.preset, fft_workers=threads)
+    scales = _png_scales(plan.preset) if plan.preset.output.format == "png" else None
+    free: queue.Queue = queue.Queue()
+    for _ in range(2):
+        free.put(ocean.new_buffer())
+    pending: queue.Queue = queue.Queue(maxsize=1)
+
+    def writer() -> None:
+        while True:
+            item = pending.get()
+            if item is None:
+                return
+            frame, fields, buffer, started = item
+            try:
+                render_frame_files(plan, frame, fields, scales)
+                report(FrameResult(frame, "written", time.perf_counter() - started))
+            except (OSError, ValueError) as error:
+                report(FrameResult(frame, "failed", time.perf_counter() - started, str(error)))
+            finally:
+                free.put(buffer)
+
+    thread = threading.Thread(target=writer, name="oceanfield-writer", daemon=True)
+    thread.start()
+    try:
+        for frame in todo:
+            started = time.perf_counter()
+            buffer = free.get()
+            fields = ocean.frame(plan.preset.time.frame_time(frame), buffer=buffer)
+            pending.put((frame, fields, buffer, started))
+    finally:
+        pending.put(None)
+        thread.join()
+
+
+# Worker processes: the plan arrives once, through the initializer; results go back as
+# return values of small frame groups so progress stays live.
+_WORKER: dict[str, Any] = {}
+
+
+def _worker_init(plan: RenderPlan, threads: int, overwrite: bool) -> None:
+    _WORKER.update(plan=plan, threads=threads, overwrite=overwrite)
+
+
+def _worker_frames(frames: list[int]) -> list[FrameResult]:
+    results: list[FrameResult] = []
+    _render_frames(_WORKER["plan"], frames, threads=_WORKER["threads"], overwrite=_WORKER["overwrite"],
+                   report=results.append)
+    return results
+
+
+def _dask_frames(plan: RenderPlan, frames: list[int], threads: int, overwrite: bool) -> list[FrameResult]:
+    results: list[FrameResult] = []
+    _render_frames(plan, frames, threads=threads, overwrite=overwrite, report=results.append)
+    return results
+
+
+def _groups(frames: Sequence[int], count: int) -> list[list[int]]:
+    """Split frames into ``count`` contiguous groups of near-equal size (none empty)."""
+    count = max(1, min(count, len(frames)))
+    return [list(frames[i * len(frames) // count:(i + 1) * len(frames) // count]) for i in range(count)]
+
+
+def render(plan: RenderPlan, *, workers: int | None = None, scheduler: str | Any | None = None,
+           overwrite: bool = False, progress: Callable[[FrameResult], None] | None = None) -> RenderSummary:
+    """Render the plan's frames and return the summary.
+
+    Parameters
+    ----------
+    plan : RenderPlan
+        From :func:`plan_render`.
+    workers : int or None
+        Local worker processes (default: the machine's cores). Each gets cores/workers
+        threads for its FFTs and kernels so the machine is not oversubscribed; 1 renders in
+        this process.
+    scheduler : str, distributed.Client or None
+        A Dask distributed scheduler's address (or a client) to render on instead.
+    overwrite : bool
+        Render every frame even if complete, and replace a manifest from another preset.
+    progress : callable or None
+        Called with each :class:`FrameResult` as it arrives.
+    """
+    started = time.perf_counter()
+    summary = RenderSummary(requested=len(plan.frames))
+    if not plan.frames:
+        return summary
+    _prepare_folder(plan, overwrite)
+    lock = threading.Lock()
+
+    def record(result: FrameResult) -> None:
+        with lock:
+            if result.status == "written":
+                summary.written.append(result.frame)
+            elif result.status == "skipped":
+                summary.skipped.append(result.frame)
+            else:
+                summary.failed[result.frame] = result.error
+        if progress is not None:
+            progress(result)
+
+    cores = os.cpu_count() or 1
+    if scheduler is not None:
+        _render_on_dask(plan, scheduler, overwrite, record)
+    else:
+        count = cores if workers is None else workers
+        if isinstance(count, bool) or not isinstance(count, int) or count < 1:
+            raise ValueError(f"--workers: {workers!r} is not allowed; allowed: an integer >= 1")
+        count = min(count, len(plan.frames))
+        threads = max(1, cores // count)
+        if count == 1:
+            _render_frames(plan, plan.frames, threads=threads, overwrite=overwrite, report=record)
+        else:
+            _render_on_processes(plan, count, threads, overwrite, record)
+    summary.written.sort()
+    summary.skipped.sort()
+    _update_manifest(plan, summary.written + summary.skipped)
+    summary.wall_seconds = time.perf_counter() - started
+    return summary
+
+
+def _render_on_processes(plan: RenderPlan, count: int, threads: int, overwrite: bool,
+                         record: Callable[[FrameResult], None]) -> None:
+    import multiprocessing
+    from concurrent.futures import ProcessPoolExecutor, as_completed
+
+    # Several small groups per worker keep progress live and balance uneven frames.
+    groups = _groups(plan.frames, count * 4)
+    context = multiprocessing.get_context("spawn")
+    with ProcessPoolExecutor(count, mp_context=context, initializer=_worker_init,
+                             initargs=(plan, threads, overwrite)) as pool:
+        futures = {pool.submit(_worker_frames, group): group for group in groups}
+        for future in as_completed(futures):
+            try:
+                results = future.result()
+            except Exception as error:  # a worker died: its frames failed, the rest go on
+                results = [FrameResult(f, "failed", 0.0, f"worker failed: {error}") for f in futures[future]]
+            for result in results:
+                record(result)
+
+
+def _render_on_dask(plan: RenderPlan, scheduler: Any, overwrite: bool,
+                    record: Callable[[FrameResult], None]) -> None:
+    try:
+        from distributed import Client, as_completed
+    except ImportError:
+        raise ValueError(
+            "--scheduler: rendering on a cluster needs the 'distributed' package; "
+            "install it with: pip install 'oceanfield[farm]'"
+        ) from None
+    own_client = isinstance(scheduler, str)
+    if own_client:
+        try:
+            client = Client(scheduler, timeout="10s")
+        except (OSError, TimeoutError) as error:
+            raise ValueError(f"--scheduler: could not reach a Dask scheduler at {scheduler!r} ({error})") from None
+    else:
+        client = scheduler
+    try:
+        n_workers = max(1, len(client.scheduler_info().get("workers", {})))
+        groups = _groups(plan.frames, n_workers * 4)
+        futures = [client.submit(_dask_frames, plan, group, 1, overwrite, pure=False) for group in groups]
+        for future, group in zip(as_completed(futures), groups):
+            try:
+                results = future.result()
+            except Exception as error:  # noqa: BLE001 - a remote failure is reported per frame
+                results = [FrameResult(f, "failed", 0.0, f"cluster task failed: {error}") for f in group]
+            for result in results:
+                record(result)
+    finally:
+        if own_client:
+            client.close()
+
+
+# -- the manifest ------------------------------------------------------------------------------
+
+
+def _manifest_path(plan: RenderPlan) -> Path:
+    return plan.folder / MANIFEST_NAME
+
+
+def _read_manifest(path: Path) -> dict[str, Any] | None:
+    try:
+        return json.loads(path.read_text(encoding="utf-8"))
+    except FileNotFoundError:
+        return None
+    except (OSError, ValueError):
+        return {}
+
+
+def _prepare_folder(plan: RenderPlan, overwrite: bool) -> None:
+    """Create the output folder, prove it writable, refuse another preset's folder."""
+    from .io.atomic import OutputError, atomic_output, remove_stale_temporaries
+
+    folder = plan.folder
+    try:
+        folder.mkdir(parents=True, exist_ok=True)
+        with atomic_output(folder / ".oceanfield-write-test") as probe:
+            probe.write_bytes(b"ok")
+        (folder / ".oceanfield-write-test").unlink()
+    except OutputError as error:
+        raise ValueError(f"output folder {folder} is not writable: {error}") from None
+    except OSError as error:
+        raise ValueError(f"output folder {folder} is not writable: {error.strerror or error}") from None
+    remove_stale_temporaries(folder)
+    manifest = _read_manifest(_manifest_path(plan))
+    if manifest is not None and manifest.get("render_hash") != plan.hash and not overwrite:
+        other = manifest.get("preset_name") or "another preset"
+        raise ValueError(
+            f"output folder {folder} holds frames rendered from {other} with different settings; "
+            "allowed: another --out folder, or --overwrite to replace them"
+        )
+
+
+def _update_manifest(plan: RenderPlan, frames_done: list[int]) -> None:
+    """Record the frames done, merged with other chunks' records under a lock."""
+    from . import __version__
+    from .preset import dump_preset
+
+    path = _manifest_path(plan)
+    lock_path = path.with_name(path.name + ".lock")
+    with open(lock_path, "a+") as lock_file:
+        try:
+            import fcntl
+
+            fcntl.flock(lock_file, fcntl.LOCK_EX)
+        except (ImportError, OSError):  # no advisory locks here: last writer wins
+            pass
+        manifest = _read_manifest(path) or {}
+        done = set(frames_done)
+        if manifest.get("render_hash") == plan.hash:
+            done |= set(manifest.get("frames_done", []))
+        record = {
+            "software": f"oceanfield {__version__}",
+            "preset_name": plan.preset.name,
+            "render_hash": plan.hash,
+            "maps": list(plan.preset.maps),
+            "frames_done": sorted(done),
+            "files": {name: str(p.relative_to(plan.root)) for name, p in plan.files(plan.preset.time.first_frame).items()},
+            "preset": dump_preset(plan.preset),
+        }
+        from .io.atomic import atomic_output
+
+        with atomic_output(path) as temporary:
+            temporary.write_text(json.dumps(record, indent=2) + "\n", encoding="utf-8")
+
+
+# -- the command -------------------------------------------------------------------------------
+
+
+def run_render_command(args) -> int:
+    """``oceanfield render``: plan, render with progress, summarise; exit 0 only if all done."""
+    from .preset import load_preset, preset_warnings
+
+    preset = load_preset(args.preset, overrides=tuple(args.overrides), allow_outside_output=False)
+    for message in preset_warnings(preset):
+        print(f"oceanfield: warning: {message}", file=sys.stderr)
+    root = Path(args.out) if args.out else Path("renders")
+    plan = plan_render(preset, root=root, frames=args.frames, chunk=args.chunk)
+    if args.workers is not None and args.workers < 1:
+        raise ValueError(f"--workers: {args.workers} is not allowed; allowed: an integer >= 1")
+    if not plan.frames:
+        print(f"nothing to render: chunk {args.chunk} of {len(parse_frames(args.frames, preset.time.frames))} frames is empty")
+        return 0
+    print(f"rendering {len(plan.frames)} frames of {preset.name} ({', '.join(preset.maps)}) into {plan.folder}")
+    progress = _progress_reporter(len(plan.frames))
+    try:
+        summary = render(plan, workers=args.workers, scheduler=args.scheduler, overwrite=args.overwrite,
+                         progress=progress.update)
+    finally:
+        progress.close()
+    print(summary.line())
+    for frame, error in sorted(summary.failed.items()):
+        print(f"oceanfield: error: frame {frame}: {error}", file=sys.stderr)
+    if summary.ok:
+        print(f"frames are in {plan.folder}")
+        return 0
+    return 1
+
+
+class _progress_reporter:  # noqa: N801 - used like a function
+    """A tqdm bar on a terminal; one plain line per frame otherwise (farm logs)."""
+
+    def __init__(self, total: int) -> None:
+        self.bar = None
+        if sys.stderr.isatty():
+            from tqdm import tqdm
+
+            self.bar = tqdm(total=total, unit="frame", file=sys.stderr)
+
+    def update(self, result: FrameResult) -> None:
+        if self.bar is not None:
+            self.bar.update(1)
+            if result.status == "failed":
+                self.bar.write(f"frame {result.frame} failed: {result.error}")
+            return
+        detail = f" in {result.seconds:.2f} s" if result.status == "written" else ""
+        suffix = f": {result.error}" if result.error else ""
+        print(f"frame {result.frame} {result.status}{detail}{suffix}", flush=True)
+
+    def close(self) -> None:
+        if self.bar is not None:
+            self.bar.close()
