@@ -24,7 +24,6 @@ _EXPORTS = {
     "tma": "spectra",
     "phillips": "spectra",
     "SPREADING": "spreading",
-    "spreading": "spreading",
     "angular_frequency": "dispersion",
     "group_velocity": "dispersion",
     "phase_velocity": "dispersion",

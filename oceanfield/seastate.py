@@ -64,6 +64,7 @@ BEAUFORT: dict[int, tuple[float, float | None, float, float | None]] = {
 _SPECTRUM_NAMES = tuple(spectra.SPECTRA)
 _MAX_WIND = 75.0  # m/s, beyond the strongest tropical cyclones (common practice bound)
 _MAX_FETCH = 5.0e6  # m, 5000 km: larger than any ocean basin's wind field (common practice)
+_MAX_ALPHA = 1.0e3  # Phillips constant; real seas hold 1e-3–5e-2 (bound, common practice)
 _MOMENT_LOW, _MOMENT_HIGH, _MOMENT_PANELS = 0.02, 2000.0, 600
 _GAUSS_NODES, _GAUSS_WEIGHTS = np.polynomial.legendre.leggauss(8)
 
@@ -176,7 +177,7 @@ class Component:
         if self.spreading not in SPREADING:
             raise ValueError(f"spreading: {self.spreading!r} is not a model; allowed: {', '.join(SPREADING)}")
         _check_number("peak_frequency", self.peak_frequency, 0.0, 1.0e4)
-        _check_number("alpha", self.alpha, 0.0, 1.0e3)
+        _check_number("alpha", self.alpha, 0.0, _MAX_ALPHA)
         _check_number("gamma", self.gamma, 1.0, 10.0, low_open=False)
         _check_number("spread_s", self.spread_s, 0.0, 1.0e6)
         _check_number("cutoff_length", self.cutoff_length, 0.0, 1.0e3, low_open=False)
@@ -395,8 +396,10 @@ class SeaState:
         component = self.components[index]
         wp = component.peak_frequency
         # ω grid in log spacing resolving the peak; θ grid fine enough for s up to ~1e4.
+        # Midpoint nodes, symmetric about the mean and never on the ±90° cut of
+        # suppress_opposing (a node there falls on either side by rounding, tilting the mean).
         omega = np.geomspace(0.2 * wp, 20.0 * wp, 800)
-        theta = np.linspace(-np.pi, np.pi, 2049)[:-1] + component.direction
+        theta = np.linspace(-np.pi, np.pi, 2049)[:-1] + np.pi / 2048 + component.direction
         density = self.component_spectrum(index, omega)
         d = component.directional_density(theta[None, :], omega[:, None], self.gravity)
         dtheta = 2.0 * np.pi / theta.size
@@ -599,6 +602,12 @@ def height_period(
         label=label,
     )
     alpha = _fitted_alpha(shape, hs, depth, gravity)
+    if not alpha <= _MAX_ALPHA:  # name the user's arguments, not the derived constant
+        where = "" if math.isinf(depth) else f" in {depth:g} m of water"
+        raise ValueError(
+            f"hs: {hs!r} is too high for tp: {tp!r}{where} (the {spectrum} shape would need "
+            f"alpha = {alpha:.3g}); allowed: alpha <= {_MAX_ALPHA:g}, so a lower hs or a longer tp"
+        )
     return Component(**{**_fields(shape), "alpha": alpha})
 
 

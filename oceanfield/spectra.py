@@ -296,7 +296,7 @@ def phillips(
     Phillips (1958); Tessendorf (2001), eqs 40–42 (numbering varies between editions).
     """
     omega, mask, w = _positive(omega)
-    with np.errstate(over="ignore", under="ignore", invalid="ignore"):
+    with np.errstate(over="ignore", under="ignore", invalid="ignore", divide="ignore"):
         long_wave = np.exp(-((gravity / (wind_speed * w)) ** 4))
         small_wave = np.exp(-((w**2 * cutoff_length / gravity) ** 2))
         # where the long-wave factor is exactly 0, ω⁻⁵ may overflow: 0, not inf·0
