@@ -43,6 +43,9 @@ __all__ = [
     "render_hash",
     "plan_render",
     "render",
+    "FileJob",
+    "encode_frame",
+    "write_jobs",
     "render_frame_files",
     "run_render_command",
 ]
@@ -182,35 +185,70 @@ def _png_scales(preset) -> dict[str, float]:
     return {"length": length, "velocity": length * 2.0 * math.pi / stats.tm02}
 
 
-def render_frame_files(plan: RenderPlan, frame: int, fields, png_scales: dict[str, float] | None = None) -> list[Path]:
-    """Write every file of one frame from its fields; returns the paths written."""
+@dataclass(frozen=True)
+class FileJob:
+    """One file of a frame, encoded and ready to write (no physics left to do).
+
+    For EXR, ``channels`` holds each channel already in its pixel type (float16 or
+    float32); for PNG, one float32 array under the key ``""`` and its ``value_range``.
+    """
+
+    kind: str
+    path: Path
+    channels: dict[str, np.ndarray]
+    compression: str = "zip"
+    attributes: dict[str, Any] | None = None
+    value_range: tuple[float, float] | None = None
+
+
+def encode_frame(plan: RenderPlan, frame: int, fields, png_scales: dict[str, float] | None = None) -> list[FileJob]:
+    """Every file of one frame as :class:`FileJob` s: scene axes, scene units, pixel types."""
+    from .io.exr import to_pixels
     from .maps import layered_channels, map_channels
 
     preset = plan.preset
     output, scene = preset.output, preset.scene
-    written = []
+    jobs = []
     for name, path in plan.files(frame).items():
-        path.parent.mkdir(parents=True, exist_ok=True)
         if output.format == "exr":
-            from .io.exr import write_exr
-
             if name == _LAYERS_MAP:
-                channels = layered_channels(fields, preset.maps, metres_per_unit=scene.metres_per_unit, up_axis=scene.up_axis)
-                precision = {m: output.precision_for(m) for m in preset.maps}
+                channels = layered_channels(fields, preset.maps, metres_per_unit=scene.metres_per_unit,
+                                            up_axis=scene.up_axis)
+                pixels = {c: to_pixels(c, a, output.precision_for(c.split(".")[0])) for c, a in channels.items()}
             else:
                 channels = map_channels(fields, name, metres_per_unit=scene.metres_per_unit, up_axis=scene.up_axis)
-                precision = output.precision_for(name)
-            write_exr(path, channels, precision=precision, compression=output.compression,
-                      attributes=_attributes(plan, frame, name))
+                pixels = {c: to_pixels(c, a, output.precision_for(name)) for c, a in channels.items()}
+            jobs.append(FileJob("exr", path, pixels, output.compression, _attributes(plan, frame, name)))
         else:
-            from .io.png import write_png16
-
             channels = map_channels(fields, name, metres_per_unit=scene.metres_per_unit, up_axis=scene.up_axis)
-            array = np.stack(list(channels.values()), axis=-1) if len(channels) > 1 else next(iter(channels.values()))
+            arrays = list(channels.values())
+            array = np.stack(arrays, axis=-1) if len(arrays) > 1 else arrays[0]
             scales = png_scales if png_scales is not None else _png_scales(preset)
-            write_png16(path, array, value_range=_png_range(plan, name, scales))
-        written.append(path)
+            jobs.append(FileJob("png", path, {"": array}, value_range=_png_range(plan, name, scales)))
+    return jobs
+
+
+def write_jobs(jobs: Iterable[FileJob]) -> list[Path]:
+    """Write encoded files, each atomically; returns the paths written."""
+    from .io.exr import write_exr
+    from .io.png import write_png16
+
+    written = []
+    for job in jobs:
+        job.path.parent.mkdir(parents=True, exist_ok=True)
+        if job.kind == "exr":
+            precision = {c: ("half" if a.dtype == np.float16 else "float") for c, a in job.channels.items()}
+            write_exr(job.path, job.channels, precision=precision, compression=job.compression,
+                      attributes=job.attributes)
+        else:
+            write_png16(job.path, job.channels[""], value_range=job.value_range)
+        written.append(job.path)
     return written
+
+
+def render_frame_files(plan: RenderPlan, frame: int, fields, png_scales: dict[str, float] | None = None) -> list[Path]:
+    """Write every file of one frame from its fields; returns the paths written."""
+    return write_jobs(encode_frame(plan, frame, fields, png_scales))
 
 
 def frame_is_complete(plan: RenderPlan, frame: int) -> bool:
@@ -282,16 +320,23 @@ def _set_threads(threads: int) -> None:
     numba.set_num_threads(max(1, min(threads, numba.config.NUMBA_NUM_THREADS)))
 
 
+# A writer process pays for its start (about a second: a fresh interpreter importing numpy
+# and OpenEXR) only on jobs of at least this many texels; smaller jobs use a writer thread.
+_WRITER_PROCESS_TEXELS = 8 * 1024 * 1024
+_BUFFERS = 2  # frames in flight per worker: one being computed, one being written
+
+
 def _render_frames(plan: RenderPlan, frames: Iterable[int], *, threads: int, overwrite: bool,
                    report: Callable[[FrameResult], None]) -> None:
     """Render ``frames`` in this process, overlapping each frame's compute with the last's writes.
 
-    A writer thread takes finished frames from a queue of one, so a frame costs about
-    max(compute, write). Two buffers alternate between the synthesiser and the writer.
+    The compute side synthesises a frame and encodes its files (scene axes and units,
+    half floats); a writer only hands the encoded channels to the file libraries, so a
+    frame costs about max(compute, write), not their sum. The OpenEXR binding holds
+    Python's lock while it compresses, so a writer *thread* overlaps poorly: on jobs large
+    enough to repay its start the writer is a separate process that reads the encoded
+    channels from shared memory.
     """
-    from .synth import Ocean
-
-    _set_threads(threads)
     todo = []
     for frame in frames:
         if not overwrite and frame_is_complete(plan, frame):
@@ -300,54 +345,207 @@ def _render_frames(plan: RenderPlan, frames: Iterable[int], *, threads: int, ove
             todo.append(frame)
     if not todo:
         return
-    ocean = Ocean.from_preset(plan.preset, fft_workers=threads)
+    n = plan.preset.tile.resolution
     scales = _png_scales(plan.preset) if plan.preset.output.format == "png" else None
-    free: queue.Queue = queue.Queue()
-    for _ in range(2):
-        free.put(ocean.new_buffer())
-    pending: queue.Queue = queue.Queue(maxsize=1)
-
-    def writer() -> None:
-        while True:
-            item = pending.get()
-            if item is None:
-                return
-            frame, fields, buffer, started = item
-            try:
-                render_frame_files(plan, frame, fields, scales)
-                report(FrameResult(frame, "written", time.perf_counter() - started))
-            except (OSError, ValueError) as error:
-                report(FrameResult(frame, "failed", time.perf_counter() - started, str(error)))
-            finally:
-                free.put(buffer)
-
-    thread = threading.Thread(target=writer, name="oceanfield-writer", daemon=True)
-    thread.start()
+    sink = None
+    if len(todo) * n * n >= _WRITER_PROCESS_TEXELS:
+        sink = _ProcessSink.start(_arena_bytes(plan), report)
+    if sink is None:
+        sink = _ThreadSink(report)
+    _set_threads(threads)
     try:
+        ocean = _cached_ocean(plan, threads)
+        buffer = ocean.new_buffer()
         for frame in todo:
             started = time.perf_counter()
-            buffer = free.get()
             fields = ocean.frame(plan.preset.time.frame_time(frame), buffer=buffer)
-            pending.put((frame, fields, buffer, started))
+            try:
+                jobs = encode_frame(plan, frame, fields, scales)
+            except ValueError as error:  # e.g. a value beyond the half-float range
+                report(FrameResult(frame, "failed", time.perf_counter() - started, str(error)))
+                continue
+            sink.submit(frame, jobs, started)
     finally:
-        pending.put(None)
-        thread.join()
+        sink.close()
 
 
-# Worker processes: the plan arrives once, through the initializer; results go back as
-# return values of small frame groups so progress stays live.
-_WORKER: dict[str, Any] = {}
+_OCEANS: dict[tuple[str, int], Any] = {}
 
 
-def _worker_init(plan: RenderPlan, threads: int, overwrite: bool) -> None:
-    _WORKER.update(plan=plan, threads=threads, overwrite=overwrite)
+def _cached_ocean(plan: RenderPlan, threads: int):
+    """The plan's Ocean, kept for the next group of frames this process renders (Dask tasks)."""
+    from .synth import Ocean
+
+    key = (plan.hash, threads)
+    if key not in _OCEANS:
+        _OCEANS.clear()  # one at a time: an Ocean holds 12 bytes a texel
+        _OCEANS[key] = Ocean.from_preset(plan.preset, fft_workers=threads)
+    return _OCEANS[key]
 
 
-def _worker_frames(frames: list[int]) -> list[FrameResult]:
-    results: list[FrameResult] = []
-    _render_frames(_WORKER["plan"], frames, threads=_WORKER["threads"], overwrite=_WORKER["overwrite"],
-                   report=results.append)
-    return results
+def _arena_bytes(plan: RenderPlan) -> int:
+    """Upper bound of one frame's encoded channels in bytes (4 bytes a channel texel)."""
+    per_map = {"displacement": 3, "normal": 3, "velocity": 3, "foam": 1, "height": 1}
+    channels = sum(per_map[m] for m in plan.preset.maps)
+    if plan.preset.output.multilayer and plan.preset.output.format == "exr":
+        channels *= 2
+    return channels * 4 * plan.preset.tile.resolution**2
+
+
+def _write_result(frame: int, jobs: list[FileJob], started: float) -> FrameResult:
+    try:
+        write_jobs(jobs)
+        return FrameResult(frame, "written", time.perf_counter() - started)
+    except (OSError, ValueError) as error:
+        return FrameResult(frame, "failed", time.perf_counter() - started, str(error))
+
+
+class _ThreadSink:
+    """Writes encoded frames on a thread of this process (one frame queued at a time)."""
+
+    def __init__(self, report) -> None:
+        self.report = report
+        self.pending: queue.Queue = queue.Queue(maxsize=1)
+        self.thread = threading.Thread(target=self._run, name="oceanfield-writer", daemon=True)
+        self.thread.start()
+
+    def submit(self, frame: int, jobs: list[FileJob], started: float) -> None:
+        self.pending.put((frame, jobs, started))
+
+    def _run(self) -> None:
+        while True:
+            item = self.pending.get()
+            if item is None:
+                return
+            self.report(_write_result(*item))
+
+    def close(self) -> None:
+        self.pending.put(None)
+        self.thread.join()
+
+
+class _ProcessSink:
+    """Writes encoded frames in a child process, passing channels through shared memory."""
+
+    @classmethod
+    def start(cls, arena_bytes: int, report) -> "_ProcessSink | None":
+        import multiprocessing
+        from multiprocessing import shared_memory
+
+        memories = []
+        try:
+            memories = [shared_memory.SharedMemory(create=True, size=arena_bytes) for _ in range(_BUFFERS)]
+            context = multiprocessing.get_context("spawn")
+            tasks, results = context.Queue(), context.Queue()
+            process = context.Process(target=_writer_main, args=([m.name for m in memories], tasks, results),
+                                      name="oceanfield-writer", daemon=True)
+            process.start()
+        except (OSError, AssertionError, ValueError):
+            # No shared memory, or a daemonic parent (a Dask worker) that may not start
+            # children: the caller falls back to the writer thread.
+            for memory in memories:
+                memory.close()
+                memory.unlink()
+            return None
+        return cls(memories, tasks, results, process, report)
+
+    def __init__(self, memories, tasks, results, process, report) -> None:
+        self.memories, self.tasks, self.results, self.process, self.report = memories, tasks, results, process, report
+        self.free = list(range(len(memories)))
+        self.in_flight = 0
+
+    def submit(self, frame: int, jobs: list[FileJob], started: float) -> None:
+        while not self.free:
+            self._collect()
+        slot = self.free.pop()
+        arena = self.memories[slot].buf
+        offset = 0
+        described = []
+        for job in jobs:
+            layout = []
+            for name, array in job.channels.items():
+                view = np.ndarray(array.shape, dtype=array.dtype, buffer=arena, offset=offset)
+                view[...] = array
+                layout.append((name, array.dtype.str, array.shape, offset))
+                offset += array.nbytes
+                del view
+            described.append((dataclasses.replace(job, channels={}), layout))
+        self.tasks.put((frame, described, slot, started))
+        self.in_flight += 1
+
+    def _collect(self) -> None:
+        while True:
+            try:
+                result, slot = self.results.get(timeout=1.0)
+                break
+            except queue.Empty:
+                if not self.process.is_alive():
+                    raise RuntimeError("the writer process died") from None
+        self.in_flight -= 1
+        self.free.append(slot)
+        self.report(result)
+
+    def close(self) -> None:
+        try:
+            while self.in_flight and self.process.is_alive():
+                self._collect()
+            self.tasks.put(None)
+            self.process.join(timeout=30)
+        finally:
+            if self.process.is_alive():
+                self.process.terminate()
+            for memory in self.memories:
+                memory.close()
+                memory.unlink()
+
+
+def _writer_main(names: list[str], tasks, results) -> None:
+    """The writer process: map the shared arenas, write each frame it is sent."""
+    from multiprocessing import shared_memory
+
+    memories = [shared_memory.SharedMemory(name=name) for name in names]
+    parent = os.getppid()
+    try:
+        while True:
+            try:
+                item = tasks.get(timeout=1.0)
+            except queue.Empty:
+                if os.getppid() != parent:  # the renderer was killed: stop too
+                    return
+                continue
+            if item is None:
+                return
+            frame, described, slot, started = item
+            arena = memories[slot].buf
+            jobs = [
+                dataclasses.replace(job, channels={
+                    name: np.ndarray(shape, dtype=np.dtype(dtype), buffer=arena, offset=offset)
+                    for name, dtype, shape, offset in layout
+                })
+                for job, layout in described
+            ]
+            result = _write_result(frame, jobs, started)
+            del jobs
+            results.put((result, slot))
+    finally:
+        for memory in memories:
+            memory.close()
+
+
+def _process_worker(plan: RenderPlan, frames: list[int], threads: int, overwrite: bool, events) -> None:
+    """A local worker process: render its frames, sending each result as it happens.
+
+    It stops by itself if the process that started it goes away (a killed render must
+    not leave workers writing on behind its back).
+    """
+    parent = os.getppid()
+
+    def report(result: FrameResult) -> None:
+        if os.getppid() != parent:
+            raise SystemExit(1)
+        events.put(result)
+
+    _render_frames(plan, frames, threads=threads, overwrite=overwrite, report=report)
 
 
 def _dask_frames(plan: RenderPlan, frames: list[int], threads: int, overwrite: bool) -> list[FrameResult]:
@@ -421,22 +619,40 @@ def render(plan: RenderPlan, *, workers: int | None = None, scheduler: str | Any
 
 def _render_on_processes(plan: RenderPlan, count: int, threads: int, overwrite: bool,
                          record: Callable[[FrameResult], None]) -> None:
+    """One long-lived process per worker, each with a contiguous share of the frames."""
     import multiprocessing
-    from concurrent.futures import ProcessPoolExecutor, as_completed
 
-    # Several small groups per worker keep progress live and balance uneven frames.
-    groups = _groups(plan.frames, count * 4)
     context = multiprocessing.get_context("spawn")
-    with ProcessPoolExecutor(count, mp_context=context, initializer=_worker_init,
-                             initargs=(plan, threads, overwrite)) as pool:
-        futures = {pool.submit(_worker_frames, group): group for group in groups}
-        for future in as_completed(futures):
+    events = context.Queue()
+    groups = _groups(plan.frames, count)
+    workers = [
+        context.Process(target=_process_worker, args=(plan, group, threads, overwrite, events),
+                        name=f"oceanfield-worker-{i}")
+        for i, group in enumerate(groups)
+    ]
+    for worker in workers:
+        worker.start()
+    pending = set(plan.frames)
+    try:
+        while pending:
             try:
-                results = future.result()
-            except Exception as error:  # a worker died: its frames failed, the rest go on
-                results = [FrameResult(f, "failed", 0.0, f"worker failed: {error}") for f in futures[future]]
-            for result in results:
-                record(result)
+                result = events.get(timeout=1.0)
+            except queue.Empty:
+                if any(worker.is_alive() for worker in workers):
+                    continue
+                try:  # every worker is gone: take what is left in the queue, then stop
+                    result = events.get(timeout=1.0)
+                except queue.Empty:
+                    break
+            pending.discard(result.frame)
+            record(result)
+    finally:
+        for worker in workers:
+            worker.join(timeout=60)
+            if worker.is_alive():
+                worker.terminate()
+    for frame in sorted(pending):
+        record(FrameResult(frame, "failed", 0.0, "its worker process ended without rendering it"))
 
 
 def _render_on_dask(plan: RenderPlan, scheduler: Any, overwrite: bool,
@@ -459,8 +675,10 @@ def _render_on_dask(plan: RenderPlan, scheduler: Any, overwrite: bool,
     try:
         n_workers = max(1, len(client.scheduler_info().get("workers", {})))
         groups = _groups(plan.frames, n_workers * 4)
-        futures = [client.submit(_dask_frames, plan, group, 1, overwrite, pure=False) for group in groups]
-        for future, group in zip(as_completed(futures), groups):
+        # as_completed yields in completion order: look each future's frames up, never zip.
+        futures = {client.submit(_dask_frames, plan, group, 1, overwrite, pure=False): group for group in groups}
+        for future in as_completed(futures):
+            group = futures[future]
             try:
                 results = future.result()
             except Exception as error:  # noqa: BLE001 - a remote failure is reported per frame

@@ -66,6 +66,7 @@ __all__ = [
     "write_exr",
     "read_exr",
     "read_exr_attributes",
+    "to_pixels",
     "exr_is_complete",
 ]
 
@@ -160,7 +161,7 @@ def write_exr(
         "compression": _COMPRESSION_VALUES[compression],
         **_header_attributes(attributes),
     }
-    pixels = {name: _pixels(name, arrays[name], precisions[name]) for name in arrays}
+    pixels = {name: to_pixels(name, arrays[name], precisions[name]) for name in arrays}
     final = Path(path)
     with atomic_output(final) as temporary:
         try:
@@ -358,8 +359,12 @@ def _check_precision(what: str, value: object) -> None:
         raise ValueError(f"{what}: got {value!r}; expected one of {', '.join(PRECISIONS)}")
 
 
-def _pixels(name: str, array: np.ndarray, precision: str) -> np.ndarray:
-    """The C-contiguous array of the pixel type the file will store."""
+def to_pixels(name: str, array: ArrayLike, precision: str) -> np.ndarray:
+    """The C-contiguous array of the pixel type (``"half"`` or ``"float"``) a file stores.
+
+    Raises ValueError when a finite value does not fit in a half float (±65504).
+    """
+    array = np.asarray(array)
     if precision == "float":
         return np.ascontiguousarray(array, dtype=np.float32)
     with np.errstate(over="ignore", invalid="ignore"):
