@@ -119,10 +119,16 @@ def _load(args: argparse.Namespace, *, allow_outside_output: bool = False):
     return load_preset(args.preset, overrides=tuple(args.overrides), allow_outside_output=allow_outside_output)
 
 
-def _warn(preset) -> None:
+def _warn(preset, *, folding: bool = True) -> None:
     from .preset import preset_warnings
+    from .report import fold_warning
 
-    for message in preset_warnings(preset):
+    messages = list(preset_warnings(preset))
+    if folding:
+        message = fold_warning(preset)
+        if message:
+            messages.append(message)
+    for message in messages:
         print(f"{_PROG}: warning: {message}", file=sys.stderr)
 
 
@@ -169,7 +175,7 @@ def _cmd_stats(args: argparse.Namespace) -> int:
     from .report import sea_report
 
     preset = _load(args)
-    _warn(preset)
+    _warn(preset, folding=False)  # the report states the folded share itself
     report = sea_report(preset)
     if args.json:
         print(json.dumps(report, indent=2))

@@ -769,10 +769,12 @@ def _update_manifest(plan: RenderPlan, frames_done: list[int]) -> None:
 def run_render_command(args) -> int:
     """``oceanfield render``: plan, render with progress, summarise; exit 0 only if all done."""
     from .preset import load_preset, preset_warnings
+    from .report import fold_warning
 
     preset = load_preset(args.preset, overrides=tuple(args.overrides), allow_outside_output=False)
-    for message in preset_warnings(preset):
-        print(f"oceanfield: warning: {message}", file=sys.stderr)
+    for message in [*preset_warnings(preset), fold_warning(preset)]:
+        if message:
+            print(f"oceanfield: warning: {message}", file=sys.stderr)
     root = Path(args.out) if args.out else Path("renders")
     plan = plan_render(preset, root=root, frames=args.frames, chunk=args.chunk)
     if args.workers is not None and args.workers < 1:

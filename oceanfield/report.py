@@ -13,9 +13,12 @@ from typing import Any
 
 import numpy as np
 
-__all__ = ["sea_report", "format_sea_report", "fold_fraction"]
+__all__ = ["sea_report", "format_sea_report", "fold_fraction", "fold_warning"]
 
 _FOLD_SAMPLES = 4  # frames spread over a peak period, averaged for the folded fraction
+#: Folded share above which a preset draws a warning (common practice: beyond about a tenth
+#: the surface reads as torn rather than as sharp crests).
+MAX_FOLDED_SHARE = 0.10
 
 
 def fold_fraction(ocean, *, times: list[float] | None = None) -> float:
@@ -29,6 +32,23 @@ def fold_fraction(ocean, *, times: list[float] | None = None) -> float:
     buffer = ocean.new_buffer()
     folded = [float(np.mean(ocean.frame(t, buffer=buffer).jacobian < 0.0)) for t in times]
     return float(np.mean(folded))
+
+
+def fold_warning(preset, ocean=None) -> str | None:
+    """A warning when the lateral factor folds more than 10 % of the surface, else None."""
+    if preset.surface.lateral_factor == 0:
+        return None
+    if ocean is None:
+        from .synth import Ocean
+
+        ocean = Ocean.from_preset(preset, velocity=False)
+    share = fold_fraction(ocean)
+    if share <= MAX_FOLDED_SHARE:
+        return None
+    return (
+        f"surface.lateral_factor: {preset.surface.lateral_factor:g} folds {share * 100:.0f} % of the surface "
+        f"over itself (more than {MAX_FOLDED_SHARE * 100:.0f} %); crests will look torn: lower it"
+    )
 
 
 def _row(stats) -> dict[str, Any]:
