@@ -1,0 +1,1244 @@
+"""Presets: a sea, a tile and a render described in YAML, read into validated settings.
+
+A preset file is a mapping of keys documented one by one in ``presets/reference.yaml``.
+:func:`load_preset` reads one (a shipped preset by name, or a path), follows its
+``extends`` chain, applies ``--set key=value`` overrides, fills every default and checks
+every value. Mistakes are collected, not stopped at: one :class:`PresetError` lists them
+all, each naming the file and line (or the override) it came from, the value, and what is
+allowed, with a suggestion for a misspelt key.
+
+YAML is read with PyYAML's safe loader only; its node tree is kept so that every value
+remembers where it was written.
+
+Conventions at this edge (SI inside, see the design notes): lengths in metres, periods in
+seconds, speeds in m/s; ``towards_deg`` is the direction the waves travel *towards*, in
+degrees counter-clockwise from the tile's +x axis; ``depth_m: deep`` is infinite depth.
+"""
+
+from __future__ import annotations
+
+import difflib
+import hashlib
+import json
+import math
+import os
+import re
+import string
+from dataclasses import dataclass, field, fields, is_dataclass, replace
+from importlib.util import find_spec
+from pathlib import Path, PurePosixPath
+from typing import Any, Callable, Iterable, Sequence
+
+import yaml
+
+from .constants import GRAVITY, SEAWATER_DENSITY, SURFACE_TENSION
+from .maps import MAPS, UP_AXES
+from .seastate import Component, SeaState, beaufort_sea, height_period, wind_sea
+from .spectra import JONSWAP_GAMMA, SPECTRA
+from .spreading import SPREADING
+
+__all__ = [
+    "PresetError",
+    "ComponentSettings",
+    "SeaSettings",
+    "TileSettings",
+    "SurfaceSettings",
+    "TimeSettings",
+    "OutputSettings",
+    "SceneSettings",
+    "Preset",
+    "load_preset",
+    "list_presets",
+    "dump_preset",
+    "preset_hash",
+    "to_sea_state",
+    "preset_warnings",
+]
+
+_FORMATS = ("exr", "png")
+_PRECISIONS = ("half", "float")
+_COMPRESSIONS = ("zip", "piz", "dwaa", "none")
+_PATTERN_FIELDS = ("preset", "map", "ext")
+_DATA_MAPS = ("displacement", "height", "velocity")  # values, not pictures: keep them lossless
+
+_DEFAULT_COMPONENT_WIND = 10.0  # m/s: the default sea is a fully developed Beaufort 5 sea
+_DEFAULT_SPREAD_DEG = 25.0  # cos-2s spread; s = 2/σ² − 1 ≈ 9.5 (Kuik et al. 1988)
+_MAX_SEED = 2**63 - 1
+_MAX_NODES = 50_000  # YAML nodes in one document (aliases expanded): far above any preset
+_MAX_NESTING = 40
+
+# Warning thresholds (all "common practice", none from a standard).
+_MIN_TILE_PER_PEAK_WAVELENGTH = 2.0
+_MAX_UNRESOLVED_VARIANCE = 0.05
+_MAX_HEIGHT_TO_DEPTH = 0.4
+_MAX_CAPILLARY_SPEED_ERROR = 0.05
+_MIN_PEAK_VARIANCE_KEPT = 0.9
+_MIN_PEAK_VARIANCE_KEPT_AT_ALL = 0.01  # below this the cut-off is an error, not a warning
+
+_SUFFIXES = (".yaml", ".yml")
+_SEQUENCE_TAG = "tag:yaml.org,2002:seq"
+_MAPPING_TAG = "tag:yaml.org,2002:map"
+_FRAME_RUN = re.compile(r"#+")
+_LOCATED = re.compile(r"^(?P<file>.*?):(?P<line>\d+): ")
+
+
+class PresetError(ValueError):
+    """One or more mistakes in a preset; ``messages`` lists them, one line each.
+
+    ``str(error)`` is one block: the single message, or a count followed by the messages.
+    """
+
+    def __init__(self, messages: Sequence[str]) -> None:
+        self.messages: list[str] = list(messages)
+        if len(self.messages) == 1:
+            text = self.messages[0]
+        else:
+            text = f"{len(self.messages)} problems in the preset:\n" + "\n".join(
+                f"  {message}" for message in self.messages
+            )
+        super().__init__(text)
+
+
+# -- the resolved settings ---------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class ComponentSettings:
+    """One wave system of a preset, as written (degrees, km); see :func:`to_sea_state`.
+
+    Exactly one sizing is set: ``wind_speed_mps`` (with optional ``fetch_km``),
+    ``significant_height_m`` with ``peak_period_s``, or ``beaufort``. Settings that do not
+    apply to the chosen spectrum or spreading are ``None``.
+    """
+
+    label: str
+    spectrum: str
+    wind_speed_mps: float | None
+    fetch_km: float | None
+    significant_height_m: float | None
+    peak_period_s: float | None
+    beaufort: int | None
+    peak_enhancement: float | None
+    towards_deg: float
+    spreading: str
+    spread_deg: float | None
+    suppress_opposing: bool
+    small_wave_cutoff_m: float
+
+
+@dataclass(frozen=True)
+class SeaSettings:
+    """The water and its wave components. ``depth_m`` is ``inf`` for deep water."""
+
+    depth_m: float
+    gravity_mps2: float
+    surface_tension_npm: float
+    density_kgpm3: float
+    components: tuple[ComponentSettings, ...]
+
+
+@dataclass(frozen=True)
+class TileSettings:
+    """The square periodic patch: side in metres, texels per side."""
+
+    size_m: float
+    resolution: int
+
+
+@dataclass(frozen=True)
+class SurfaceSettings:
+    """Lateral displacement scale (0 = height only) and the Jacobian below which foam forms."""
+
+    lateral_factor: float
+    fold_threshold: float
+
+
+@dataclass(frozen=True)
+class TimeSettings:
+    """Frame range and rate; frame ``first_frame`` is at ``time_offset_s``."""
+
+    fps: float
+    first_frame: int
+    last_frame: int
+    loop_period_s: float | None
+    time_offset_s: float
+
+    @property
+    def frames(self) -> range:
+        """Every frame number of the range, first to last inclusive."""
+        return range(self.first_frame, self.last_frame + 1)
+
+    def frame_time(self, frame: int) -> float:
+        """Time in seconds of frame number ``frame``: offset + (frame − first_frame)/fps."""
+        return self.time_offset_s + (frame - self.first_frame) / self.fps
+
+
+@dataclass(frozen=True)
+class OutputSettings:
+    """Where and how the maps are written, relative to the output root."""
+
+    folder: str
+    pattern: str
+    format: str
+    precision: str
+    precision_per_map: tuple[tuple[str, str], ...]
+    compression: str
+    multilayer: bool
+
+    def precision_for(self, map_name: str) -> str:
+        """``half`` or ``float`` for one map: its own entry, else ``precision``."""
+        return dict(self.precision_per_map).get(map_name, self.precision)
+
+    def relative_path(self, preset_name: str, map_name: str, frame: int) -> str:
+        """The file of one map and frame, relative to the output root, with ``/`` separators.
+
+        Each run of ``#`` in ``pattern`` becomes the frame number zero-padded to its length.
+        """
+        values = {"preset": preset_name, "map": map_name, "ext": self.format}
+        name = _FRAME_RUN.sub(lambda run: f"{frame:0{len(run.group())}d}", self.pattern)
+        folder = self.folder.format(**values).replace("\\", "/")
+        return str(PurePosixPath(folder) / name.format(**values).replace("\\", "/"))
+
+
+@dataclass(frozen=True)
+class SceneSettings:
+    """How the maps meet the 3D package: metres per scene unit and the up axis."""
+
+    metres_per_unit: float
+    up_axis: str
+
+
+@dataclass(frozen=True)
+class Preset:
+    """A fully resolved preset: every default filled, every value checked.
+
+    ``name`` (the file's stem) and ``source`` (its absolute path) say where it came from
+    and take no part in equality or :func:`preset_hash`.
+    """
+
+    description: str
+    seed: int
+    sea: SeaSettings
+    tile: TileSettings
+    surface: SurfaceSettings
+    maps: tuple[str, ...]
+    time: TimeSettings
+    output: OutputSettings
+    scene: SceneSettings
+    name: str = field(default="", compare=False)
+    source: Path | None = field(default=None, compare=False)
+
+
+# -- public functions --------------------------------------------------------------------
+
+
+def load_preset(
+    ref: str | os.PathLike[str],
+    *,
+    overrides: Sequence[str] = (),
+    allow_outside_output: bool = False,
+) -> Preset:
+    """Read, merge, override and validate a preset.
+
+    Parameters
+    ----------
+    ref : str or path
+        A shipped preset's name (see :func:`list_presets`), or the path of a YAML file. A
+        string without a folder separator and without a ``.yaml``/``.yml`` suffix is a name.
+    overrides : sequence of str
+        ``key=value`` settings applied after the file and its ``extends`` chain, in order,
+        e.g. ``tile.resolution=1024`` or ``sea.components.0.wind_speed_mps=14``. The value
+        is read as YAML (``maps=[height,normal]``).
+    allow_outside_output : bool
+        Accept an absolute ``output.folder`` or one climbing out with ``..`` (for a path
+        the user typed on the command line); otherwise output stays under the output root.
+
+    Returns
+    -------
+    Preset
+
+    Raises
+    ------
+    PresetError
+        Listing every mistake found, each with its file:line or override.
+    """
+    if isinstance(overrides, str):
+        overrides = (overrides,)
+    errors: list[str] = []
+    path = _top_path(ref)
+    tree = _read_tree(path, errors, chain=())
+    preset = None
+    if tree is not None:
+        for text in overrides:
+            _apply_override(tree, text, errors)
+        preset = _build_preset(tree, errors, path, allow_outside_output)
+    if errors or preset is None:
+        raise PresetError(_in_reading_order(errors) or [f"{path}: the preset could not be read"])
+    return preset
+
+
+def list_presets() -> list[tuple[str, Path, str]]:
+    """The shipped presets as (name, path, description), sorted by name.
+
+    A preset that does not load is listed with its first problem as its description.
+    """
+    found = []
+    for path in sorted(_shipped_folder().glob("*.yaml")):
+        try:
+            description = load_preset(path).description
+        except PresetError as error:
+            description = f"(does not load: {error.messages[0]})"
+        found.append((path.stem, path, description))
+    return found
+
+
+def dump_preset(preset: Preset) -> str:
+    """The preset as fully resolved YAML: every key written out, no ``extends``.
+
+    Loading the text back gives a preset equal to ``preset``.
+    """
+    header = f"# oceanfield preset `{preset.name}`, fully resolved: every key written out.\n"
+    return header + yaml.safe_dump(
+        _as_tree(preset), sort_keys=False, allow_unicode=True, default_flow_style=False, width=100
+    )
+
+
+def preset_hash(preset: Preset) -> str:
+    """SHA-256 (hex) of everything in the preset that changes what a render writes.
+
+    Computed over the canonical resolved form without ``description``, ``name`` and
+    ``source``, so renaming or re-describing a preset keeps its hash; stable across runs
+    and machines.
+    """
+    tree = _as_tree(preset)
+    del tree["description"]
+    canonical = json.dumps(tree, sort_keys=True, separators=(",", ":"), allow_nan=False)
+    return hashlib.sha256(canonical.encode("utf-8")).hexdigest()
+
+
+def to_sea_state(preset: Preset) -> SeaState:
+    """The preset's sea as a :class:`~oceanfield.seastate.SeaState` (SI units, radians).
+
+    Degrees become radians, kilometres metres, ``deep`` infinity.
+
+    Raises
+    ------
+    PresetError
+        If the physics refuses the sea; :func:`load_preset` has already built every
+        component once, so only a hand-made :class:`Preset` can meet this.
+    """
+    sea = preset.sea
+    try:
+        return SeaState(tuple(_component(sea, item) for item in sea.components), **_fluid(sea))
+    except ValueError as error:
+        raise PresetError([f"sea: {error}"]) from None
+
+
+def preset_warnings(preset: Preset, *, sea_state: SeaState | None = None) -> list[str]:
+    """Physically doubtful choices in a valid preset, one sentence each (not errors).
+
+    Checks that a fetch is not past full development, that the tile holds at least two
+    peak wavelengths of every component, that the lattice resolves and holds at least
+    95 % of the variance, that Hs/depth stays below 0.4 (beyond it linear theory is a
+    stretch), that ripples the tile resolves are not ones surface tension would speed up
+    by more than 5 % while it is off, that the small-wave cut-off spares the peak, and
+    that data maps are not written lossy. All thresholds are common practice.
+
+    Parameters
+    ----------
+    preset : Preset
+    sea_state : SeaState, optional
+        ``to_sea_state(preset)``, if already built.
+    """
+    sea_state = to_sea_state(preset) if sea_state is None else sea_state
+    sea, tile = preset.sea, preset.tile
+    warnings = []
+    total_variance = sea_state.band_variance(0.0, math.inf)
+
+    for item, component, stats in zip(sea.components, sea_state.components, sea_state.component_statistics()):
+        if item.fetch_km is not None:
+            developed = _component(sea, replace(item, fetch_km=None, peak_enhancement=None))
+            if component == developed:
+                warnings.append(
+                    f"fetch_km {item.fetch_km:g} km is more than the wind of `{item.label}` needs: the sea is "
+                    f"fully developed (Pierson–Moskowitz), so the fetch and peak_enhancement change nothing"
+                )
+        needed = _MIN_TILE_PER_PEAK_WAVELENGTH * stats.peak_wavelength
+        if tile.size_m < needed:
+            warnings.append(
+                f"tile.size_m {tile.size_m:g} m is under twice the peak wavelength of `{item.label}` "
+                f"({stats.peak_wavelength:.3g} m): its longest waves do not fit and the repeat shows; "
+                f"use at least {needed:.3g} m"
+            )
+        kept = math.exp(-((2.0 * math.pi / stats.peak_wavelength * item.small_wave_cutoff_m) ** 2))
+        if kept < _MIN_PEAK_VARIANCE_KEPT:
+            warnings.append(
+                f"small_wave_cutoff_m {item.small_wave_cutoff_m:g} m of `{item.label}` removes "
+                f"{1 - kept:.0%} of the variance at its peak wavelength ({stats.peak_wavelength:.3g} m)"
+            )
+
+    nyquist = math.pi * tile.resolution / tile.size_m
+    fundamental = 2.0 * math.pi / tile.size_m
+    too_short = sea_state.band_variance(nyquist, math.inf) / total_variance
+    too_long = sea_state.band_variance(0.0, fundamental) / total_variance
+    if too_short > _MAX_UNRESOLVED_VARIANCE:
+        warnings.append(
+            f"{too_short:.0%} of the variance is in waves shorter than two texels "
+            f"({2 * tile.size_m / tile.resolution:.3g} m), which the tile cannot show: raise "
+            f"tile.resolution or set small_wave_cutoff_m"
+        )
+    if too_long > _MAX_UNRESOLVED_VARIANCE:
+        warnings.append(
+            f"{too_long:.0%} of the variance is in waves longer than the tile ({tile.size_m:g} m), "
+            f"which it cannot hold: raise tile.size_m"
+        )
+
+    hs = sea_state.statistics().hs
+    if math.isfinite(sea.depth_m) and hs / sea.depth_m > _MAX_HEIGHT_TO_DEPTH:
+        warnings.append(
+            f"significant height {hs:.3g} m is {hs / sea.depth_m:.2f} of the depth {sea.depth_m:g} m "
+            f"(over {_MAX_HEIGHT_TO_DEPTH}): waves this high for the depth steepen and break, "
+            f"and linear theory is a stretch"
+        )
+
+    if sea.surface_tension_npm == 0.0:
+        # Deep water c² = g/k + Tk/ρ: capillarity adds the fraction Tk²/(ρg) to c², so it
+        # changes the speed by more than 5 % once k > √(((1.05)² − 1) ρg/T).
+        ratio = (1.0 + _MAX_CAPILLARY_SPEED_ERROR) ** 2 - 1.0
+        k_capillary = math.sqrt(ratio * sea.density_kgpm3 * sea.gravity_mps2 / SURFACE_TENSION)
+        if nyquist > k_capillary:
+            warnings.append(
+                f"the tile resolves waves down to {200 * tile.size_m / tile.resolution:.3g} cm, where "
+                f"surface tension changes wave speed by more than 5 %; set sea.surface_tension_npm "
+                f"(clean water: {SURFACE_TENSION:g})"
+            )
+
+    lossy = [name for name in preset.maps if name in _DATA_MAPS]
+    if preset.output.format == "exr" and preset.output.compression == "dwaa" and lossy:
+        warnings.append(
+            f"output.compression dwaa is lossy and would blur the values of {', '.join(lossy)}; "
+            f"use zip or piz for data maps"
+        )
+    return warnings
+
+
+def _component(sea: SeaSettings, item: ComponentSettings) -> Component:
+    """One component in SI units and radians, from the constructor its sizing calls for."""
+    options: dict[str, Any] = dict(
+        spectrum=item.spectrum,
+        depth=sea.depth_m,
+        direction=math.radians(item.towards_deg),
+        spreading=item.spreading,
+        suppress_opposing=item.suppress_opposing,
+        cutoff_length=item.small_wave_cutoff_m,
+        gravity=sea.gravity_mps2,
+        label=item.label,
+    )
+    if item.peak_enhancement is not None:
+        options["gamma"] = item.peak_enhancement
+    if item.spread_deg is not None:
+        options["spread"] = math.radians(item.spread_deg)
+    fetch = None if item.fetch_km is None else item.fetch_km * 1000.0
+    if item.beaufort is not None:
+        return beaufort_sea(item.beaufort, fetch=fetch, **options)
+    if item.wind_speed_mps is not None:
+        return wind_sea(item.wind_speed_mps, fetch=fetch, **options)
+    return height_period(item.significant_height_m, item.peak_period_s, **options)
+
+
+def _fluid(sea: SeaSettings) -> dict[str, float]:
+    return dict(
+        depth=sea.depth_m,
+        gravity=sea.gravity_mps2,
+        surface_tension=sea.surface_tension_npm,
+        density=sea.density_kgpm3,
+    )
+
+
+# -- reading YAML with its marks ---------------------------------------------------------
+
+
+@dataclass
+class _Node:
+    """A YAML value with where it was written.
+
+    ``value`` is a dict of _Node (mapping), a list of _Node (sequence) or a scalar.
+    ``where`` locates the value, ``key_where`` the key that holds it (for mapping
+    entries); ``text`` is a scalar's source text (``yes`` for a boolean read from yes).
+    """
+
+    value: Any
+    where: str
+    key_where: str = ""
+    text: str = ""
+
+
+class _Located(Exception):
+    """A mistake that stops reading one document, with its location."""
+
+    def __init__(self, where: str, message: str) -> None:
+        super().__init__(f"{where}: {message}")
+
+
+def _parse_yaml(text: str, locate: Callable[[Any], str], errors: list[str]) -> tuple[bool, _Node | None]:
+    """Compose ``text`` with the safe loader into a _Node tree: (ok, tree or None if empty)."""
+    loader = None
+    try:
+        loader = yaml.SafeLoader(text)
+        root = loader.get_single_node()
+        if root is None:
+            return True, None
+        return True, _convert(loader, root, locate, errors, [0], 0)
+    except yaml.MarkedYAMLError as error:
+        mark = error.problem_mark or error.context_mark
+        problem = error.problem or error.context or "unreadable"
+        errors.append(f"{locate(mark)}: invalid YAML: {problem}")
+    except yaml.YAMLError as error:
+        errors.append(f"{locate(None)}: invalid YAML: {error}")
+    except _Located as error:
+        errors.append(str(error))
+    finally:
+        if loader is not None:
+            loader.dispose()
+    return False, None
+
+
+def _convert(
+    loader: yaml.SafeLoader,
+    node: yaml.Node,
+    locate: Callable[[Any], str],
+    errors: list[str],
+    count: list[int],
+    depth: int,
+) -> _Node:
+    """Turn a composed YAML node into a _Node tree, checking keys as it goes."""
+    where = locate(node.start_mark)
+    count[0] += 1
+    if count[0] > _MAX_NODES or depth > _MAX_NESTING:
+        raise _Located(where, "the document is too large or too deeply nested to be a preset")
+    if isinstance(node, yaml.ScalarNode):
+        return _Node(_scalar(loader, node, where), where, text=node.value)
+    if node.tag not in (_SEQUENCE_TAG, _MAPPING_TAG):
+        raise _Located(where, f"the tag {node.tag} is not allowed in a preset")
+    if isinstance(node, yaml.SequenceNode):
+        return _Node([_convert(loader, item, locate, errors, count, depth + 1) for item in node.value], where)
+    loader.flatten_mapping(node)  # resolves YAML merge keys (<<) as the safe loader does
+    entries: dict[Any, _Node] = {}
+    for key_node, value_node in node.value:
+        key_where = locate(key_node.start_mark)
+        if not isinstance(key_node, yaml.ScalarNode):
+            raise _Located(key_where, "a key must be a plain name, not a list or mapping")
+        key = _scalar(loader, key_node, key_where)
+        if isinstance(key, bool) or not isinstance(key, (str, int)):
+            key = key_node.value  # `yes:` or `null:` as a key: keep the written name
+        if key in entries:
+            first = entries[key].key_where
+            errors.append(f"{key_where}: key `{key_node.value}` is given twice (first at {first})")
+            continue
+        child = _convert(loader, value_node, locate, errors, count, depth + 1)
+        child.key_where = key_where
+        entries[key] = child
+    return _Node(entries, where)
+
+
+def _scalar(loader: yaml.SafeLoader, node: yaml.ScalarNode, where: str) -> Any:
+    """The value of a scalar node as the safe loader reads it (int, float, bool, str, ...)."""
+    try:
+        return loader.construct_object(node)
+    except (ValueError, TypeError, AttributeError, OverflowError):  # e.g. `!!int twelve`
+        raise _Located(where, f"cannot read `{node.value}` as {node.tag}") from None
+
+
+def _file_locator(path: Path) -> Callable[[Any], str]:
+    shown = _display(path)
+    return lambda mark: f"{shown}:{1 if mark is None else mark.line + 1}"
+
+
+def _display(path: Path) -> str:
+    """The path relative to the working folder when under it, else absolute."""
+    resolved = path.resolve()
+    try:
+        return str(resolved.relative_to(Path.cwd().resolve()))
+    except ValueError:
+        return str(resolved)
+
+
+# -- files, names and extends --------------------------------------------------------------
+
+
+def _shipped_folder() -> Path:
+    """The folder of the shipped presets: the installed package, else the source tree's."""
+    spec = find_spec("oceanfield.presets")
+    locations = spec.submodule_search_locations if spec is not None else None
+    for location in locations or []:
+        if Path(location).is_dir():
+            return Path(location)
+    return Path(__file__).resolve().parent.parent / "presets"
+
+
+def _is_name(ref: str) -> bool:
+    return not ("/" in ref or "\\" in ref or ref.lower().endswith(_SUFFIXES) or ref in ("", ".", ".."))
+
+
+def _shipped_path(name: str) -> tuple[Path | None, str]:
+    """(path of a shipped preset, '') or (None, why not)."""
+    folder = _shipped_folder()
+    path = folder / f"{name}.yaml"
+    if path.is_file():
+        return path, ""
+    names = sorted(p.stem for p in folder.glob("*.yaml"))
+    close = difflib.get_close_matches(name, names, n=1)
+    hint = f" — did you mean `{close[0]}`?" if close else ""
+    return None, (
+        f"no shipped preset named `{name}`{hint} (shipped: {', '.join(names) or 'none'}; "
+        f"a file of your own needs a .yaml suffix or a folder in its path)"
+    )
+
+
+def _top_path(ref: str | os.PathLike[str]) -> Path:
+    if isinstance(ref, str) and _is_name(ref):
+        path, why = _shipped_path(ref)
+        if path is None:
+            raise PresetError([why])
+        return path
+    path = Path(ref)
+    if not path.is_file():
+        raise PresetError([f"{path}: no such preset file" if not path.exists() else f"{path}: not a file"])
+    return path
+
+
+def _read_tree(path: Path, errors: list[str], chain: tuple[Path, ...]) -> _Node | None:
+    """One file's tree merged over its ``extends`` chain; None when it cannot be read."""
+    locate = _file_locator(path)
+    try:
+        text = path.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError) as error:
+        errors.append(f"{locate(None)}: cannot read the file: {error}")
+        return None
+    ok, root = _parse_yaml(text, locate, errors)
+    if not ok:
+        return None
+    if root is None:
+        errors.append(f"{locate(None)}: the file is empty; a preset is a mapping of keys (see reference.yaml)")
+        return None
+    if not isinstance(root.value, dict):
+        errors.append(f"{root.where}: a preset is a mapping of keys, got {_describe(root)}")
+        return None
+    parent = root.value.pop("extends", None)
+    if parent is None or parent.value is None:
+        return root
+    target = _extends_target(parent, path, errors)
+    if target is None:
+        return None
+    here = path.resolve()
+    if target.resolve() in chain + (here,):
+        loop = " → ".join(p.name for p in chain + (here, target.resolve()))
+        errors.append(f"{parent.where}: extends: the chain loops: {loop}")
+        return None
+    base = _read_tree(target, errors, chain + (here,))
+    if base is None:
+        return None
+    return _merge(base, root, errors, "")
+
+
+def _extends_target(node: _Node, path: Path, errors: list[str]) -> Path | None:
+    ref = node.value
+    if not isinstance(ref, str) or not ref.strip():
+        errors.append(
+            f"{node.where}: extends: expected a shipped preset's name or a .yaml path, got {_describe(node)}"
+        )
+        return None
+    if _is_name(ref):
+        target, why = _shipped_path(ref)
+        if target is None:
+            errors.append(f"{node.where}: extends: {why}")
+        return target
+    if not ref.lower().endswith(_SUFFIXES):
+        errors.append(f"{node.where}: extends: `{ref}` is not a .yaml or .yml file")
+        return None
+    target = path.parent / ref
+    if not target.is_file():
+        errors.append(f"{node.where}: extends: no preset file `{ref}` (looked for {target.resolve()})")
+        return None
+    return target
+
+
+def _merge(base: _Node, over: _Node, errors: list[str], path: str) -> _Node:
+    """``over`` laid on ``base``: mappings merge key by key, anything else is replaced.
+
+    A mapping of item numbers laid on a list changes those items (``components: {0:
+    {wind_speed_mps: 14}}``); any other list replaces the inherited one whole.
+    """
+    if isinstance(base.value, dict) and isinstance(over.value, dict):
+        merged = dict(base.value)
+        for key, child in over.value.items():
+            inherited = base.value.get(key)
+            merged[key] = child if inherited is None else _merge(inherited, child, errors, _join(path, key))
+        return _Node(merged, over.where, over.key_where)
+    if isinstance(base.value, list) and isinstance(over.value, dict) and _is_index_map(over.value):
+        items = list(base.value)
+        for index, child in over.value.items():
+            if not 0 <= index < len(items):
+                errors.append(
+                    f"{child.key_where}: {_join(path, index)}: no item {index} to change; the inherited "
+                    f"list has {len(items)} item(s), numbered from 0"
+                )
+                continue
+            items[index] = _merge(items[index], child, errors, _join(path, index))
+        return _Node(items, over.where, over.key_where)
+    return over
+
+
+def _is_index_map(entries: dict) -> bool:
+    return bool(entries) and all(isinstance(key, int) and not isinstance(key, bool) for key in entries)
+
+
+def _join(path: str, key: Any) -> str:
+    return f"{path}.{key}" if path else str(key)
+
+
+def _apply_override(tree: _Node, text: str, errors: list[str]) -> None:
+    """Apply one ``key.path=value`` override to the merged tree, in place."""
+    where = f"--set {text}"
+    key, equals, raw = text.partition("=")
+    parts = key.strip().split(".")
+    if not equals or not all(parts):
+        errors.append(f"{where}: expected key=value with a dotted key, e.g. tile.resolution=1024")
+        return
+    if parts[0] == "extends":
+        errors.append(f"{where}: extends cannot be changed by an override; load the other preset instead")
+        return
+    ok, value = _parse_yaml(raw, lambda mark: where, errors)
+    if not ok:
+        return
+    value = value if value is not None else _Node(None, where)
+    _set_where(value, where)
+    node = tree
+    for depth, part in enumerate(parts):
+        last = depth == len(parts) - 1
+        done = ".".join(parts[:depth]) or "the top level"
+        if isinstance(node.value, list):
+            if not part.isdigit() or int(part) >= len(node.value):
+                errors.append(
+                    f"{where}: {done} is a list of {len(node.value)} item(s); `{part}` is not one of its "
+                    f"numbers (0 to {len(node.value) - 1})"
+                )
+                return
+            if last:
+                node.value[int(part)] = value
+                return
+            node = node.value[int(part)]
+        elif isinstance(node.value, dict) or node.value is None:
+            if node.value is None:
+                node.value = {}
+            if last:
+                node.value[part] = value
+                return
+            child = node.value.get(part)
+            if child is None:
+                child = node.value[part] = _Node({}, where, where)
+            node = child
+        else:
+            errors.append(f"{where}: {done} is a single value, not a section")
+            return
+
+
+def _set_where(node: _Node, where: str) -> None:
+    """Mark ``node`` and everything under it as written at ``where`` (an override)."""
+    node.where = node.key_where = where
+    if isinstance(node.value, dict):
+        children = list(node.value.values())
+    elif isinstance(node.value, list):
+        children = node.value
+    else:
+        children = []
+    for child in children:
+        _set_where(child, where)
+
+
+def _in_reading_order(errors: list[str]) -> list[str]:
+    """Errors grouped by file (first seen first) and sorted by line within each."""
+    files: dict[str, int] = {}
+    keyed = []
+    for order, message in enumerate(errors):
+        match = _LOCATED.match(message)
+        if match is None:
+            keyed.append(((len(errors), 0, order), message))
+            continue
+        rank = files.setdefault(match["file"], len(files))
+        keyed.append(((rank, int(match["line"]), order), message))
+    return [message for _, message in sorted(keyed)]
+
+
+# -- validation ----------------------------------------------------------------------------
+
+
+class _Bad:
+    """Stands for a value that failed its check (already reported)."""
+
+    def __repr__(self) -> str:
+        return "<invalid>"
+
+
+_BAD = _Bad()
+
+
+def _ok(*values: Any) -> bool:
+    return not any(value is _BAD for value in values)
+
+
+def _describe(node: _Node) -> str:
+    value = node.value
+    if isinstance(value, dict):
+        return "a mapping"
+    if isinstance(value, list):
+        return "a list"
+    if value is None:
+        return "nothing (null)"
+    if isinstance(value, bool):
+        return f"`{node.text}` (a boolean in YAML)"
+    if isinstance(value, str):
+        return f"the text {value!r}"
+    return f"`{node.text or value}`"
+
+
+def _allowed(low: float | None, high: float | None, low_open: bool) -> str:
+    def shown(x: float | None) -> str:
+        return str(x) if isinstance(x, int) else f"{x:g}"
+
+    if high is None:
+        return f"above {shown(low)}" if low_open else f"{shown(low)} or more"
+    return f"above {shown(low)}, up to {shown(high)}" if low_open else f"{shown(low)} to {shown(high)}"
+
+
+class _Section:
+    """One mapping of the tree being read: hands out checked values, records asked keys."""
+
+    def __init__(self, context: _Context, node: _Node | None, path: str, fallback: str = "") -> None:
+        self.context, self.path = context, path
+        self.asked: list[str] = []
+        self.where = node.where if node is not None else fallback
+        self.items: dict[Any, _Node] = {}
+        if node is None or node.value is None:
+            pass
+        elif isinstance(node.value, dict):
+            self.items = node.value
+        else:
+            got = _describe(node)
+            context.errors.append(f"{node.where}: {path or 'preset'}: expected a mapping of keys, got {got}")
+        context.sections.append(self)
+
+    def _get(self, key: str) -> _Node | None:
+        self.asked.append(key)
+        return self.items.get(key)
+
+    def fail(self, key: str, problem: str) -> _Bad:
+        """Report ``problem`` at ``key``'s value (or at the section for key '')."""
+        node = self.items.get(key)
+        where = node.where if node is not None else self.where
+        self.context.errors.append(f"{where}: {_join(self.path, key) if key else self.path}: {problem}")
+        return _BAD
+
+    def section(self, key: str) -> _Section:
+        return _Section(self.context, self._get(key), _join(self.path, key), self.where)
+
+    def number(
+        self,
+        key: str,
+        default: float | None,
+        *,
+        low: float | None = None,
+        high: float | None = None,
+        low_open: bool = False,
+        whole: bool = False,
+        optional: bool = False,
+        words: dict[str, float] | None = None,
+    ) -> Any:
+        """A finite number within [low, high] (or (low, high]); an int when ``whole``.
+
+        ``words`` names values that may be written as a word (``{"deep": inf}``).
+        """
+        node = self._get(key)
+        if node is None:
+            return default
+        words = words or {}
+        if isinstance(node.value, str) and node.value in words:
+            return words[node.value]
+        allowed = "".join(f"{word}, or " for word in words) + ("a whole number, " if whole else "")
+        allowed += _allowed(low, high, low_open) + (", or null" if optional else "")
+        value = node.value
+        if value is None:
+            return None if optional else self.fail(key, f"needs a value (allowed: {allowed})")
+        numeric = isinstance(value, int if whole else (int, float)) and not isinstance(value, bool)
+        if not numeric:
+            kind = "a whole number" if whole else "a number"
+            return self.fail(key, f"expected {kind}, got {_describe(node)} (allowed: {allowed})")
+        if not math.isfinite(value):
+            return self.fail(key, f"expected a finite number, got `{node.text}` (allowed: {allowed})")
+        below = low is not None and (value <= low if low_open else value < low)
+        if below or (high is not None and value > high):
+            return self.fail(key, f"`{node.text}` is out of range (allowed: {allowed})")
+        return int(value) if whole else float(value)
+
+    def choice(self, key: str, default: str | None, choices: Iterable[str], *, optional: bool = False) -> Any:
+        node = self._get(key)
+        if node is None or (node.value is None and optional):
+            return default
+        choices = tuple(choices)
+        if isinstance(node.value, str) and node.value in choices:
+            return node.value
+        close = difflib.get_close_matches(node.value, choices, n=1) if isinstance(node.value, str) else []
+        hint = f" — did you mean `{close[0]}`?" if close else ""
+        return self.fail(key, f"{_describe(node)} is not allowed{hint} (allowed: {', '.join(choices)})")
+
+    def flag(self, key: str, default: bool) -> Any:
+        node = self._get(key)
+        if node is None:
+            return default
+        if isinstance(node.value, bool):
+            return node.value
+        return self.fail(key, f"expected true or false, got {_describe(node)}")
+
+    def text(self, key: str, default: str) -> Any:
+        node = self._get(key)
+        if node is None or node.value is None:
+            return default
+        if not isinstance(node.value, str):
+            return self.fail(key, f"expected text, got {_describe(node)}")
+        if "\n" in node.value.strip():
+            return self.fail(key, "must be one line")
+        return node.value.strip()
+
+    def node(self, key: str) -> _Node | None:
+        return self._get(key)
+
+
+class _Context:
+    """The errors of one validation and every section read, for unknown-key reporting."""
+
+    def __init__(self, errors: list[str]) -> None:
+        self.errors = errors
+        self.sections: list[_Section] = []
+        self.component_sections: list[_Section] = []
+
+    def report_unknown_keys(self) -> None:
+        home: dict[str, str] = {}
+        for section in self.sections:
+            for key in section.asked:
+                home.setdefault(key, section.path)
+        for section in self.sections:
+            known = section.asked
+            for key, node in section.items.items():
+                if key in known:
+                    continue
+                written = str(key)
+                close = difflib.get_close_matches(written, known, n=1, cutoff=0.6)
+                if close:
+                    hint = f" — did you mean `{close[0]}`?"
+                elif written in home:
+                    hint = f" — it belongs in {home[written] or 'the top level'}"
+                else:
+                    hint = f" (known keys here: {', '.join(known)})"
+                place = section.path or "the top level"
+                where = node.key_where or node.where
+                self.errors.append(f"{where}: unknown key `{written}` in {place}{hint}")
+
+
+def _build_preset(tree: _Node, errors: list[str], path: Path, allow_outside_output: bool) -> Preset | None:
+    context = _Context(errors)
+    top = _Section(context, tree, "")
+    top.asked.append("extends")  # read before merging; listed so typos of it get a suggestion
+    description = top.text("description", "")
+    seed = top.number("seed", 0, low=0, high=_MAX_SEED, whole=True)
+    sea = _read_sea(top.section("sea"))
+    tile = _read_tile(top.section("tile"))
+    surface = _read_surface(top.section("surface"))
+    maps = _read_maps(top)
+    time = _read_time(top.section("time"))
+    output = _read_output(top.section("output"), maps, allow_outside_output)
+    scene = _read_scene(top.section("scene"))
+    context.report_unknown_keys()
+    if not errors:
+        _check_physics(sea, context.component_sections)
+    if errors:
+        return None
+    return Preset(
+        description, seed, sea, tile, surface, maps, time, output, scene, name=path.stem, source=path.resolve()
+    )
+
+
+def _check_physics(sea: SeaSettings, sections: list[_Section]) -> None:
+    """Build each component as :func:`to_sea_state` will; report what fails where it was written."""
+    for item, sec in zip(sea.components, sections):
+        try:
+            if item.small_wave_cutoff_m > 0:
+                uncut = _component(sea, replace(item, small_wave_cutoff_m=0.0))
+                k_peak = float(SeaState((uncut,), **_fluid(sea)).wavenumber(uncut.peak_frequency))
+                if math.exp(-((k_peak * item.small_wave_cutoff_m) ** 2)) < _MIN_PEAK_VARIANCE_KEPT_AT_ALL:
+                    sec.fail(
+                        "small_wave_cutoff_m",
+                        f"`{item.small_wave_cutoff_m:g}` m removes over 99 % of the variance at this "
+                        f"component's peak (wavelength {2 * math.pi / k_peak:.3g} m); keep it under a "
+                        f"twentieth of that",
+                    )
+                    continue
+            _component(sea, item)
+        except ValueError as error:
+            sec.fail("", f"cannot build this component: {error}")
+
+
+def _read_sea(sec: _Section) -> SeaSettings:
+    depth = sec.number("depth_m", math.inf, low=0.01, high=20_000.0, words={"deep": math.inf})
+    gravity = sec.number("gravity_mps2", GRAVITY, low=0.1, high=100.0)
+    tension = sec.number("surface_tension_npm", 0.0, low=0.0, high=1.0)
+    density = sec.number("density_kgpm3", SEAWATER_DENSITY, low=1.0, high=25_000.0)
+    node = sec.node("components")
+    components: Any = _BAD
+    if node is None:
+        components = (_default_component(),)
+    elif not isinstance(node.value, list) or not node.value:
+        got = "an empty list" if node.value == [] else _describe(node)
+        sec.fail("components", f"expected a list of one or more components, got {got}")
+    else:
+        sections = [
+            _Section(sec.context, item, f"{sec.path}.components.{index}") for index, item in enumerate(node.value)
+        ]
+        sec.context.component_sections = sections
+        components = tuple(_read_component(section, depth) for section in sections)
+    return SeaSettings(depth, gravity, tension, density, components)
+
+
+def _default_component() -> ComponentSettings:
+    return ComponentSettings(
+        label="wind sea",
+        spectrum="jonswap",
+        wind_speed_mps=_DEFAULT_COMPONENT_WIND,
+        fetch_km=None,
+        significant_height_m=None,
+        peak_period_s=None,
+        beaufort=None,
+        peak_enhancement=None,
+        towards_deg=0.0,
+        spreading="mitsuyasu",
+        spread_deg=None,
+        suppress_opposing=False,
+        small_wave_cutoff_m=0.0,
+    )
+
+
+def _read_component(sec: _Section, depth: float) -> ComponentSettings:
+    label = sec.text("label", "")
+    spectrum = sec.choice("spectrum", "jonswap", SPECTRA)
+    wind = sec.number("wind_speed_mps", None, low=0.1, high=75.0, optional=True)
+    fetch = sec.number("fetch_km", None, low=0.001, high=5000.0, optional=True)
+    hs = sec.number("significant_height_m", None, low=0.0001, high=40.0, optional=True)
+    tp = sec.number("peak_period_s", None, low=0.05, high=60.0, optional=True)
+    force = sec.number("beaufort", None, low=1, high=12, whole=True, optional=True)
+    gamma = sec.number("peak_enhancement", None, low=1, high=10, optional=True)
+    towards = sec.number("towards_deg", 0.0, low=-360, high=360)
+    spreading = sec.choice("spreading", None, SPREADING, optional=True)
+    spread = sec.number("spread_deg", None, low=1, high=80, optional=True)
+    suppress = sec.flag("suppress_opposing", False)
+    cutoff = sec.number("small_wave_cutoff_m", 0.0, low=0, high=1000)
+
+    sizings = [
+        key
+        for key, given in (
+            ("wind_speed_mps", wind is not None),
+            ("significant_height_m", hs is not None or tp is not None),
+            ("beaufort", force is not None),
+        )
+        if given
+    ]
+    sizing = sizings[0] if len(sizings) == 1 else None
+    if not sizings:
+        sec.fail(
+            "",
+            "size the component with one of: wind_speed_mps (with optional fetch_km), "
+            "significant_height_m with peak_period_s, or beaufort",
+        )
+    elif len(sizings) > 1:
+        sec.fail(sizings[-1], f"the component is sized twice ({' and '.join(sizings)}); keep one")
+    if sizing == "significant_height_m" and tp is None:
+        sec.fail("significant_height_m", "needs peak_period_s too: the two size the component together")
+    if sizing == "significant_height_m" and hs is None:
+        sec.fail("peak_period_s", "needs significant_height_m too: the two size the component together")
+    wind_driven = sizing in ("wind_speed_mps", "beaufort")
+
+    if fetch is not None and sizing == "significant_height_m":
+        sec.fail("fetch_km", "applies to a component sized by wind_speed_mps or beaufort")
+    if spectrum == "phillips" and sizing == "significant_height_m":
+        sec.fail("spectrum", "phillips is sized by the wind (wind_speed_mps or beaufort), not height and period")
+    if spectrum == "phillips" and fetch is not None:
+        sec.fail("fetch_km", "the phillips spectrum has no fetch law; set fetch_km: null")
+    if spectrum == "pierson_moskowitz" and fetch is not None:
+        sec.fail("fetch_km", "pierson_moskowitz is the fully developed sea; fetch-limited seas are jonswap or tma")
+    if spectrum == "tma" and depth == math.inf:
+        sec.fail("spectrum", "tma needs a finite sea.depth_m (its depth factor), but the sea is deep")
+
+    # JONSWAP's γ shapes a sized or fetch-limited peak; a fully developed wind sea is
+    # Pierson–Moskowitz whatever γ says, so γ is left unset there.
+    shapes_peak = spectrum in ("jonswap", "tma") and (sizing == "significant_height_m" or fetch is not None)
+    if not shapes_peak and gamma not in (None, _BAD):
+        if spectrum in ("jonswap", "tma"):
+            why = "a fully developed wind sea (no fetch_km) is Pierson–Moskowitz"
+        else:
+            why = f"{spectrum} has no peak enhancement"
+        gamma = sec.fail("peak_enhancement", f"has no effect here: {why}; set peak_enhancement: null")
+    elif shapes_peak and gamma is None:
+        gamma = JONSWAP_GAMMA
+
+    if spreading is None:
+        spreading = "mitsuyasu" if wind_driven or sizing is None else "cos2s"
+    if spreading == "cos2s" and spread is None:
+        spread = _DEFAULT_SPREAD_DEG
+    elif spreading not in ("cos2s", _BAD) and spread not in (None, _BAD):
+        spread = sec.fail(
+            "spread_deg", f"applies to spreading cos2s only; {spreading} sets its own (set spread_deg: null)"
+        )
+    if not label:
+        label = "wind sea" if wind_driven or sizing is None else "wave system"
+    return ComponentSettings(
+        label, spectrum, wind, fetch, hs, tp, force, gamma, towards, spreading, spread, suppress, cutoff
+    )
+
+
+def _read_tile(sec: _Section) -> TileSettings:
+    size = sec.number("size_m", 256.0, low=0.01, high=100_000.0)
+    resolution = sec.number("resolution", 512, low=16, high=16384, whole=True)
+    if _ok(resolution) and resolution % 2:
+        resolution = sec.fail("resolution", f"`{resolution}` is odd (allowed: an even whole number)")
+    return TileSettings(size, resolution)
+
+
+def _read_surface(sec: _Section) -> SurfaceSettings:
+    lateral = sec.number("lateral_factor", 1.0, low=0.0, high=5.0)
+    threshold = sec.number("fold_threshold", 0.3, low=-1.0, high=1.0)
+    return SurfaceSettings(lateral, threshold)
+
+
+def _read_maps(top: _Section) -> Any:
+    node = top.node("maps")
+    if node is None:
+        return ("displacement", "normal", "foam")
+    if not isinstance(node.value, list) or not node.value:
+        got = "an empty list" if node.value == [] else _describe(node)
+        return top.fail("maps", f"expected a list of one or more of {', '.join(MAPS)}, got {got}")
+    names: list[str] = []
+    for index, item in enumerate(node.value):
+        if not isinstance(item.value, str) or item.value not in MAPS:
+            close = difflib.get_close_matches(str(item.value), MAPS, n=1)
+            hint = f" — did you mean `{close[0]}`?" if close else ""
+            allowed = ", ".join(MAPS)
+            problem = f"{_describe(item)} is not a map{hint} (allowed: {allowed})"
+            top.context.errors.append(f"{item.where}: maps.{index}: {problem}")
+            return _BAD
+        if item.value in names:
+            top.context.errors.append(f"{item.where}: maps.{index}: `{item.value}` is listed twice")
+            return _BAD
+        names.append(item.value)
+    return tuple(names)
+
+
+def _read_time(sec: _Section) -> TimeSettings:
+    fps = sec.number("fps", 24.0, low=0.0, high=1000.0, low_open=True)
+    first = sec.number("first_frame", 1001, low=-1_000_000_000, high=1_000_000_000, whole=True)
+    last = sec.number("last_frame", 1048, low=-1_000_000_000, high=1_000_000_000, whole=True)
+    loop = sec.number("loop_period_s", None, low=0.0, high=1.0e6, low_open=True, optional=True)
+    offset = sec.number("time_offset_s", 0.0, low=-1.0e9, high=1.0e9)
+    if _ok(first, last) and last < first:
+        last = sec.fail("last_frame", f"`{last}` is before first_frame {first}")
+    if _ok(fps) and loop not in (None, _BAD) and loop <= 1.0 / fps:
+        frame = f"{1.0 / fps:.4g} s at {fps:g} fps"
+        loop = sec.fail("loop_period_s", f"`{loop:g}` s is not longer than one frame ({frame})")
+    return TimeSettings(fps, first, last, loop, offset)
+
+
+def _read_output(sec: _Section, maps: Any, allow_outside_output: bool) -> OutputSettings:
+    folder = sec.text("folder", "{preset}")
+    pattern = sec.text("pattern", "{map}.####.{ext}")
+    file_format = sec.choice("format", "exr", _FORMATS)
+    precision = sec.choice("precision", "half", _PRECISIONS)
+    per_map = _read_precision_per_map(sec.section("precision_per_map"))
+    compression = sec.choice("compression", "zip", _COMPRESSIONS)
+    multilayer = sec.flag("multilayer", False)
+    if _ok(folder):
+        _check_template(sec, "folder", folder, frame_run=False, allow_outside=allow_outside_output)
+    if _ok(pattern):
+        _check_template(sec, "pattern", pattern, frame_run=True, allow_outside=False)
+        if _ok(file_format) and "{ext}" not in pattern and not pattern.lower().endswith(f".{file_format}"):
+            sec.fail("pattern", f"`{pattern}` would not end in .{file_format}; end it with .{{ext}}")
+    if _ok(folder, pattern, maps) and len(maps) > 1 and "{map}" not in folder + pattern:
+        sec.fail("pattern", f"`{pattern}` has no {{map}}: the {len(maps)} maps would overwrite each other")
+    if multilayer is True and file_format == "png":
+        sec.fail("multilayer", "layered files are EXR only; set format: exr or multilayer: false")
+    return OutputSettings(folder, pattern, file_format, precision, per_map, compression, multilayer)
+
+
+def _read_precision_per_map(sec: _Section) -> Any:
+    chosen = []
+    for name in MAPS:
+        value = sec.choice(name, None, _PRECISIONS, optional=True)
+        if value is _BAD:
+            return _BAD
+        if value is not None:
+            chosen.append((name, value))
+    return tuple(chosen)
+
+
+def _check_template(sec: _Section, key: str, template: str, *, frame_run: bool, allow_outside: bool) -> None:
+    """Placeholders, the frame-number run and the path's staying under the output root."""
+    try:
+        parsed = list(string.Formatter().parse(template))
+    except ValueError as error:
+        sec.fail(key, f"`{template}`: {error} (write a literal brace as {{{{ or }}}})")
+        return
+    for _, name, spec, conversion in parsed:
+        if name is None:
+            continue
+        if name not in _PATTERN_FIELDS or spec or conversion:
+            close = difflib.get_close_matches(name, _PATTERN_FIELDS, n=1)
+            hint = f" — did you mean {{{close[0]}}}?" if close else ""
+            sec.fail(key, f"`{{{name}}}` is not a placeholder{hint} (allowed: {{preset}}, {{map}}, {{ext}})")
+            return
+    runs = _FRAME_RUN.findall(template)
+    if frame_run and len(runs) != 1:
+        sec.fail(key, f"`{template}` needs exactly one run of # for the frame number (found {len(runs)})")
+    if not frame_run and runs:
+        sec.fail(key, f"`{template}`: frame numbers (#) belong in output.pattern, not the folder")
+    parts = template.replace("\\", "/").split("/")
+    absolute = template.startswith(("/", "\\", "~")) or re.match(r"^[A-Za-z]:", template) is not None
+    outside = absolute or ".." in parts
+    if outside and not allow_outside:
+        sec.fail(
+            key,
+            f"`{template}` leaves the output root (no absolute paths, no `..`); a path outside it "
+            f"can be given on the command line",
+        )
+    if frame_run and (not parts[-1] or parts[-1] in (".", "..")):
+        sec.fail(key, f"`{template}` does not end in a file name")
+
+
+def _read_scene(sec: _Section) -> SceneSettings:
+    metres = sec.number("metres_per_unit", 1.0, low=1.0e-6, high=1.0e6)
+    up_axis = sec.choice("up_axis", "y", UP_AXES)
+    return SceneSettings(metres, up_axis)
+
+
+# -- writing -------------------------------------------------------------------------------
+
+
+def _as_tree(preset: Preset) -> dict[str, Any]:
+    """The preset as plain YAML/JSON-ready data, keys in reading order."""
+
+    def plain(value: Any) -> Any:
+        if is_dataclass(value):
+            return {f.name: plain(getattr(value, f.name)) for f in fields(value) if f.compare}
+        if isinstance(value, tuple):
+            return [plain(item) for item in value]
+        return value
+
+    tree = plain(preset)
+    tree["sea"]["depth_m"] = "deep" if preset.sea.depth_m == math.inf else preset.sea.depth_m
+    tree["output"]["precision_per_map"] = dict(preset.output.precision_per_map)
+    return tree

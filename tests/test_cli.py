@@ -1,0 +1,134 @@
+"""The command line's looking commands: presets, stats, resolve, preview, and its errors."""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+
+import numpy as np
+import pytest
+
+from oceanfield.cli import main
+from oceanfield.preset import dump_preset, list_presets, load_preset, to_sea_state
+from oceanfield.synth import Ocean
+
+SMALL = ("--set", "tile.resolution=64")
+
+
+def test_presets_lists_every_shipped_preset_with_its_figures(capsys):
+    assert main(["presets", "--json"]) == 0
+    rows = json.loads(capsys.readouterr().out)
+    shipped = {name for name, _path, _description in list_presets()} - {"reference"}
+    assert {row["name"] for row in rows} == shipped
+    assert len(shipped) >= 9
+    for row in rows:
+        expected = to_sea_state(load_preset(row["name"])).statistics()
+        assert row["hs_m"] == pytest.approx(expected.hs, rel=1e-12)
+        assert row["tp_s"] == pytest.approx(expected.tp, rel=1e-12)
+
+
+def test_presets_table_is_readable(capsys):
+    assert main(["presets"]) == 0
+    out = capsys.readouterr().out
+    assert out.splitlines()[0].split()[:3] == ["preset", "Hs", "m"]
+    assert "storm_force_ten" in out
+
+
+def test_stats_json_matches_the_sea_state(capsys):
+    assert main(["stats", "fresh_chop", "--json", *SMALL]) == 0
+    report = json.loads(capsys.readouterr().out)
+    preset = load_preset("fresh_chop", overrides=("tile.resolution=64",))
+    stats = to_sea_state(preset).statistics()
+    assert report["total"]["hs_m"] == pytest.approx(stats.hs, rel=1e-12)
+    assert report["total"]["tm02_s"] == pytest.approx(stats.tm02, rel=1e-12)
+    assert report["total"]["peak_wavelength_m"] == pytest.approx(stats.peak_wavelength, rel=1e-12)
+    # The lattice's sum of Ψ Δk² over the sea's m0: near 1 for a tile of a few peak
+    # wavelengths; its sampling of a peaked spectrum may exceed 1 by a few per cent.
+    assert 0.8 < report["tile"]["captured_variance_share"] < 1.1
+    assert 0.0 <= report["folded_surface_share"] <= 1.0
+    assert report["components"][0]["beaufort"] == 6
+
+
+def test_stats_text_names_each_component_and_the_total(capsys):
+    assert main(["stats", "swell_under_wind_sea", *SMALL]) == 0
+    out = capsys.readouterr().out
+    assert "total" in out and "captured:" in out and "folding:" in out
+
+
+def test_resolve_round_trips_to_identical_settings_and_pixels(capsys, tmp_path):
+    assert main(["resolve", "shallow_coastal", *SMALL]) == 0
+    text = capsys.readouterr().out
+    saved = tmp_path / "resolved.yaml"
+    saved.write_text(text, encoding="utf-8")
+    original = load_preset("shallow_coastal", overrides=("tile.resolution=64",))
+    again = load_preset(saved)
+    assert again == original
+    assert dump_preset(again).splitlines()[1:] == dump_preset(original).splitlines()[1:]
+    first = Ocean.from_preset(original).frame(1.25)
+    second = Ocean.from_preset(again).frame(1.25)
+    assert np.array_equal(first.height, second.height)
+    assert np.array_equal(first.normal, second.normal)
+
+
+def test_preview_writes_a_picture_that_is_not_blank(tmp_path, capsys):
+    out = tmp_path / "look.png"
+    assert main(["preview", "swell_under_wind_sea", *SMALL, "--out", str(out)]) == 0
+    assert str(out) in capsys.readouterr().out
+    import imageio.v3 as iio
+
+    picture = iio.imread(out)
+    assert picture.shape[:2] == (1000, 1300)  # 13 × 10 inches at 100 dpi
+    grey = picture[..., :3].astype(float).mean(axis=-1)
+    assert grey.std() > 20.0  # panels, curves and a shaded sea, not a flat page
+
+
+@pytest.mark.parametrize(
+    "argv, fragment",
+    [
+        (["stats", "no_such_sea"], "no_such_sea"),
+        (["stats", "fresh_chop", "--set", "tile.resolution=abc"], "tile.resolution"),
+        (["stats", "fresh_chop", "--set", "sea.depth_m=-3"], "depth_m"),
+        (["preview", "fresh_chop", *SMALL, "--out", "/no/such/folder/x.png"], "--out"),
+        (["preview", "fresh_chop", *SMALL, "--out", "picture.jpg"], "--out"),
+    ],
+)
+def test_user_errors_exit_2_with_one_clear_block(argv, fragment, capsys):
+    assert main(argv) == 2
+    captured = capsys.readouterr()
+    assert captured.err.startswith("oceanfield: error: ")
+    assert fragment in captured.err
+    assert "Traceback" not in captured.err
+
+
+def test_a_malformed_preset_file_names_its_line(tmp_path, capsys):
+    bad = tmp_path / "storm.yaml"
+    bad.write_text("seed: 3\ntile:\n  size_m: 100\n  resoluton: 128\n", encoding="utf-8")
+    assert main(["stats", str(bad)]) == 2
+    err = capsys.readouterr().err
+    assert "storm.yaml:4" in err and "resolution" in err
+
+
+def test_argparse_errors_exit_2(capsys):
+    with pytest.raises(SystemExit) as stop:
+        main(["stats"])
+    assert stop.value.code == 2
+
+
+def test_help_is_instant_and_compiles_nothing():
+    """--help must not import numba, OpenEXR or matplotlib (STYLE: heavy imports inside commands)."""
+    code = (
+        "import sys\n"
+        "from oceanfield.cli import main\n"
+        "try:\n    main(['--help'])\nexcept SystemExit:\n    pass\n"
+        "heavy = [m for m in ('numba', 'OpenEXR', 'matplotlib', 'distributed') if m in sys.modules]\n"
+        "print('HEAVY', heavy)\n"
+    )
+    result = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
+    assert "HEAVY []" in result.stdout, result.stdout + result.stderr
+
+
+def test_the_installed_command_runs():
+    result = subprocess.run(["oceanfield", "stats", "moderate_breeze", *SMALL], capture_output=True, text=True, timeout=120)
+    assert result.returncode == 0, result.stderr
+    assert "moderate_breeze" in result.stdout
