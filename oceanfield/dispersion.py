@@ -47,6 +47,11 @@ def _tanh_kh(k: NDArray[np.float64], depth: float) -> NDArray[np.float64]:
     return np.tanh(k * depth)
 
 
+def _long_wave_speed(depth: float, gravity: float) -> float:
+    """Limit of phase and group speed as k → 0: √(g h), or inf in deep water."""
+    return np.inf if np.isinf(depth) else float(np.sqrt(gravity * depth))
+
+
 def angular_frequency(
     k: ArrayLike,
     depth: float = np.inf,
@@ -112,8 +117,7 @@ def group_velocity(
     omega = np.sqrt(restoring * tanh_kh)
     with np.errstate(divide="ignore", invalid="ignore"):
         speed = (d_restoring * tanh_kh + restoring * d_tanh) / (2.0 * omega)
-    long_wave_limit = np.inf if np.isinf(depth) else np.sqrt(gravity * depth)
-    return np.where(k > 0, speed, long_wave_limit)
+    return np.where(k > 0, speed, _long_wave_speed(depth, gravity))
 
 
 def phase_velocity(
@@ -132,8 +136,7 @@ def phase_velocity(
     )
     with np.errstate(divide="ignore", invalid="ignore"):
         speed = omega / k
-    long_wave_limit = np.inf if np.isinf(depth) else np.sqrt(gravity * depth)
-    return np.where(k > 0, speed, long_wave_limit)
+    return np.where(k > 0, speed, _long_wave_speed(depth, gravity))
 
 
 def wavenumber(
