@@ -258,10 +258,22 @@ class Ocean:
         n = self.tile.resolution
         if buffer is None:
             buffer = self.new_buffer()
-        elif buffer.shape != (4, n, n) or buffer.dtype != np.complex64 or not buffer.flags.c_contiguous:
+        elif (
+            not isinstance(buffer, np.ndarray)
+            or buffer.shape != (4, n, n)
+            or buffer.dtype != np.complex64
+            or not buffer.flags.c_contiguous
+            or not buffer.flags.writeable
+        ):
+            if isinstance(buffer, np.ndarray):
+                layout = "" if buffer.flags.c_contiguous else " non-contiguous"
+                access = "" if buffer.flags.writeable else " read-only"
+                received = f"a{access}{layout} {buffer.dtype} array of shape {buffer.shape}"
+            else:
+                received = f"a {type(buffer).__name__}"
             raise ValueError(
-                f"buffer: shape {buffer.shape} {buffer.dtype} is not allowed; "
-                f"allowed: a C-contiguous complex64 array of shape (4, {n}, {n}) from new_buffer()"
+                f"buffer: {received} is not allowed; "
+                f"allowed: a writable C-contiguous complex64 array of shape (4, {n}, {n}) from new_buffer()"
             )
         rotation = np.empty(self._omega.shape, dtype=np.complex128)
         _kernels.rotation_kernel(self._omega, float(t), rotation)
