@@ -7,8 +7,10 @@ every value. Mistakes are collected, not stopped at: one :class:`PresetError` li
 all, each naming the file and line (or the override) it came from, the value, and what is
 allowed, with a suggestion for a misspelt key.
 
-YAML is read with PyYAML's safe loader only; its node tree is kept so that every value
-remembers where it was written.
+YAML is read with PyYAML's safe loader only, into the located tree of
+:mod:`oceanfield._yamltree` (which also merges ``extends`` and applies overrides), so
+that every value remembers where it was written. This module is the schema: the settings,
+their defaults and checks, and what a preset becomes (a sea state, YAML, a hash).
 
 Conventions at this edge (SI inside, see the design notes): lengths in metres, periods in
 seconds, speeds in m/s; ``towards_deg`` is the direction the waves travel *towards*, in
@@ -27,10 +29,22 @@ import string
 from dataclasses import dataclass, field, fields, is_dataclass, replace
 from importlib.util import find_spec
 from pathlib import Path, PurePosixPath
-from typing import Any, Callable, Iterable, Sequence
+from typing import Any, Sequence
 
 import yaml
 
+from ._yamltree import (
+    BAD,
+    Context,
+    Node,
+    Section,
+    apply_override,
+    describe,
+    in_reading_order,
+    is_name,
+    read_tree,
+    valid,
+)
 from .constants import GRAVITY, SEAWATER_DENSITY, SURFACE_TENSION
 from .maps import MAPS, UP_AXES
 from .seastate import Component, SeaState, beaufort_sea, height_period, wind_sea
@@ -64,8 +78,6 @@ _DATA_MAPS = ("displacement", "height", "velocity")  # values, not pictures: kee
 _DEFAULT_COMPONENT_WIND = 10.0  # m/s: the default sea is a fully developed Beaufort 5 sea
 _DEFAULT_SPREAD_DEG = 25.0  # cos-2s spread; s = 2/σ² − 1 ≈ 9.5 (Kuik et al. 1988)
 _MAX_SEED = 2**63 - 1
-_MAX_NODES = 50_000  # YAML nodes in one document (aliases expanded): far above any preset
-_MAX_NESTING = 40
 
 # Warning thresholds (all "common practice", none from a standard).
 _MIN_TILE_PER_PEAK_WAVELENGTH = 2.0
@@ -75,11 +87,7 @@ _MAX_CAPILLARY_SPEED_ERROR = 0.05
 _MIN_PEAK_VARIANCE_KEPT = 0.9
 _MIN_PEAK_VARIANCE_KEPT_AT_ALL = 0.01  # below this the cut-off is an error, not a warning
 
-_SUFFIXES = (".yaml", ".yml")
-_SEQUENCE_TAG = "tag:yaml.org,2002:seq"
-_MAPPING_TAG = "tag:yaml.org,2002:map"
 _FRAME_RUN = re.compile(r"#+")
-_LOCATED = re.compile(r"^(?P<file>.*?):(?P<line>\d+): ")
 
 
 class PresetError(ValueError):
@@ -266,14 +274,14 @@ def load_preset(
         overrides = (overrides,)
     errors: list[str] = []
     path = _top_path(ref)
-    tree = _read_tree(path, errors, chain=())
+    tree = read_tree(path, errors, _shipped_path)
     preset = None
     if tree is not None:
         for text in overrides:
-            _apply_override(tree, text, errors)
+            apply_override(tree, text, errors)
         preset = _build_preset(tree, errors, path, allow_outside_output)
     if errors or preset is None:
-        raise PresetError(_in_reading_order(errors) or [f"{path}: the preset could not be read"])
+        raise PresetError(in_reading_order(errors) or [f"{path}: the preset could not be read"])
     return preset
 
 
@@ -455,115 +463,7 @@ def _fluid(sea: SeaSettings) -> dict[str, float]:
     )
 
 
-# -- reading YAML with its marks ---------------------------------------------------------
-
-
-@dataclass
-class _Node:
-    """A YAML value with where it was written.
-
-    ``value`` is a dict of _Node (mapping), a list of _Node (sequence) or a scalar.
-    ``where`` locates the value, ``key_where`` the key that holds it (for mapping
-    entries); ``text`` is a scalar's source text (``yes`` for a boolean read from yes).
-    """
-
-    value: Any
-    where: str
-    key_where: str = ""
-    text: str = ""
-
-
-class _Located(Exception):
-    """A mistake that stops reading one document, with its location."""
-
-    def __init__(self, where: str, message: str) -> None:
-        super().__init__(f"{where}: {message}")
-
-
-def _parse_yaml(text: str, locate: Callable[[Any], str], errors: list[str]) -> tuple[bool, _Node | None]:
-    """Compose ``text`` with the safe loader into a _Node tree: (ok, tree or None if empty)."""
-    loader = None
-    try:
-        loader = yaml.SafeLoader(text)
-        root = loader.get_single_node()
-        if root is None:
-            return True, None
-        return True, _convert(loader, root, locate, errors, [0], 0)
-    except yaml.MarkedYAMLError as error:
-        mark = error.problem_mark or error.context_mark
-        problem = error.problem or error.context or "unreadable"
-        errors.append(f"{locate(mark)}: invalid YAML: {problem}")
-    except yaml.YAMLError as error:
-        errors.append(f"{locate(None)}: invalid YAML: {error}")
-    except _Located as error:
-        errors.append(str(error))
-    finally:
-        if loader is not None:
-            loader.dispose()
-    return False, None
-
-
-def _convert(
-    loader: yaml.SafeLoader,
-    node: yaml.Node,
-    locate: Callable[[Any], str],
-    errors: list[str],
-    count: list[int],
-    depth: int,
-) -> _Node:
-    """Turn a composed YAML node into a _Node tree, checking keys as it goes."""
-    where = locate(node.start_mark)
-    count[0] += 1
-    if count[0] > _MAX_NODES or depth > _MAX_NESTING:
-        raise _Located(where, "the document is too large or too deeply nested to be a preset")
-    if isinstance(node, yaml.ScalarNode):
-        return _Node(_scalar(loader, node, where), where, text=node.value)
-    if node.tag not in (_SEQUENCE_TAG, _MAPPING_TAG):
-        raise _Located(where, f"the tag {node.tag} is not allowed in a preset")
-    if isinstance(node, yaml.SequenceNode):
-        return _Node([_convert(loader, item, locate, errors, count, depth + 1) for item in node.value], where)
-    loader.flatten_mapping(node)  # resolves YAML merge keys (<<) as the safe loader does
-    entries: dict[Any, _Node] = {}
-    for key_node, value_node in node.value:
-        key_where = locate(key_node.start_mark)
-        if not isinstance(key_node, yaml.ScalarNode):
-            raise _Located(key_where, "a key must be a plain name, not a list or mapping")
-        key = _scalar(loader, key_node, key_where)
-        if isinstance(key, bool) or not isinstance(key, (str, int)):
-            key = key_node.value  # `yes:` or `null:` as a key: keep the written name
-        if key in entries:
-            first = entries[key].key_where
-            errors.append(f"{key_where}: key `{key_node.value}` is given twice (first at {first})")
-            continue
-        child = _convert(loader, value_node, locate, errors, count, depth + 1)
-        child.key_where = key_where
-        entries[key] = child
-    return _Node(entries, where)
-
-
-def _scalar(loader: yaml.SafeLoader, node: yaml.ScalarNode, where: str) -> Any:
-    """The value of a scalar node as the safe loader reads it (int, float, bool, str, ...)."""
-    try:
-        return loader.construct_object(node)
-    except (ValueError, TypeError, AttributeError, OverflowError):  # e.g. `!!int twelve`
-        raise _Located(where, f"cannot read `{node.value}` as {node.tag}") from None
-
-
-def _file_locator(path: Path) -> Callable[[Any], str]:
-    shown = _display(path)
-    return lambda mark: f"{shown}:{1 if mark is None else mark.line + 1}"
-
-
-def _display(path: Path) -> str:
-    """The path relative to the working folder when under it, else absolute."""
-    resolved = path.resolve()
-    try:
-        return str(resolved.relative_to(Path.cwd().resolve()))
-    except ValueError:
-        return str(resolved)
-
-
-# -- files, names and extends --------------------------------------------------------------
+# -- shipped presets and names ------------------------------------------------------------
 
 
 def _shipped_folder() -> Path:
@@ -574,10 +474,6 @@ def _shipped_folder() -> Path:
         if Path(location).is_dir():
             return Path(location)
     return Path(__file__).resolve().parent.parent / "presets"
-
-
-def _is_name(ref: str) -> bool:
-    return not ("/" in ref or "\\" in ref or ref.lower().endswith(_SUFFIXES) or ref in ("", ".", ".."))
 
 
 def _shipped_path(name: str) -> tuple[Path | None, str]:
@@ -596,7 +492,7 @@ def _shipped_path(name: str) -> tuple[Path | None, str]:
 
 
 def _top_path(ref: str | os.PathLike[str]) -> Path:
-    if isinstance(ref, str) and _is_name(ref):
+    if isinstance(ref, str) and is_name(ref):
         path, why = _shipped_path(ref)
         if path is None:
             raise PresetError([why])
@@ -607,350 +503,17 @@ def _top_path(ref: str | os.PathLike[str]) -> Path:
     return path
 
 
-def _read_tree(path: Path, errors: list[str], chain: tuple[Path, ...]) -> _Node | None:
-    """One file's tree merged over its ``extends`` chain; None when it cannot be read."""
-    locate = _file_locator(path)
-    try:
-        text = path.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as error:
-        errors.append(f"{locate(None)}: cannot read the file: {error}")
-        return None
-    ok, root = _parse_yaml(text, locate, errors)
-    if not ok:
-        return None
-    if root is None:
-        errors.append(f"{locate(None)}: the file is empty; a preset is a mapping of keys (see reference.yaml)")
-        return None
-    if not isinstance(root.value, dict):
-        errors.append(f"{root.where}: a preset is a mapping of keys, got {_describe(root)}")
-        return None
-    parent = root.value.pop("extends", None)
-    if parent is None or parent.value is None:
-        return root
-    target = _extends_target(parent, path, errors)
-    if target is None:
-        return None
-    here = path.resolve()
-    if target.resolve() in chain + (here,):
-        loop = " → ".join(p.name for p in chain + (here, target.resolve()))
-        errors.append(f"{parent.where}: extends: the chain loops: {loop}")
-        return None
-    base = _read_tree(target, errors, chain + (here,))
-    if base is None:
-        return None
-    return _merge(base, root, errors, "")
-
-
-def _extends_target(node: _Node, path: Path, errors: list[str]) -> Path | None:
-    ref = node.value
-    if not isinstance(ref, str) or not ref.strip():
-        errors.append(
-            f"{node.where}: extends: expected a shipped preset's name or a .yaml path, got {_describe(node)}"
-        )
-        return None
-    if _is_name(ref):
-        target, why = _shipped_path(ref)
-        if target is None:
-            errors.append(f"{node.where}: extends: {why}")
-        return target
-    if not ref.lower().endswith(_SUFFIXES):
-        errors.append(f"{node.where}: extends: `{ref}` is not a .yaml or .yml file")
-        return None
-    target = path.parent / ref
-    if not target.is_file():
-        errors.append(f"{node.where}: extends: no preset file `{ref}` (looked for {target.resolve()})")
-        return None
-    return target
-
-
-def _merge(base: _Node, over: _Node, errors: list[str], path: str) -> _Node:
-    """``over`` laid on ``base``: mappings merge key by key, anything else is replaced.
-
-    A mapping of item numbers laid on a list changes those items (``components: {0:
-    {wind_speed_mps: 14}}``); any other list replaces the inherited one whole.
-    """
-    if isinstance(base.value, dict) and isinstance(over.value, dict):
-        merged = dict(base.value)
-        for key, child in over.value.items():
-            inherited = base.value.get(key)
-            merged[key] = child if inherited is None else _merge(inherited, child, errors, _join(path, key))
-        return _Node(merged, over.where, over.key_where)
-    if isinstance(base.value, list) and isinstance(over.value, dict) and _is_index_map(over.value):
-        items = list(base.value)
-        for index, child in over.value.items():
-            if not 0 <= index < len(items):
-                errors.append(
-                    f"{child.key_where}: {_join(path, index)}: no item {index} to change; the inherited "
-                    f"list has {len(items)} item(s), numbered from 0"
-                )
-                continue
-            items[index] = _merge(items[index], child, errors, _join(path, index))
-        return _Node(items, over.where, over.key_where)
-    return over
-
-
-def _is_index_map(entries: dict) -> bool:
-    return bool(entries) and all(isinstance(key, int) and not isinstance(key, bool) for key in entries)
-
-
-def _join(path: str, key: Any) -> str:
-    return f"{path}.{key}" if path else str(key)
-
-
-def _apply_override(tree: _Node, text: str, errors: list[str]) -> None:
-    """Apply one ``key.path=value`` override to the merged tree, in place."""
-    where = f"--set {text}"
-    key, equals, raw = text.partition("=")
-    parts = key.strip().split(".")
-    if not equals or not all(parts):
-        errors.append(f"{where}: expected key=value with a dotted key, e.g. tile.resolution=1024")
-        return
-    if parts[0] == "extends":
-        errors.append(f"{where}: extends cannot be changed by an override; load the other preset instead")
-        return
-    ok, value = _parse_yaml(raw, lambda mark: where, errors)
-    if not ok:
-        return
-    value = value if value is not None else _Node(None, where)
-    _set_where(value, where)
-    node = tree
-    for depth, part in enumerate(parts):
-        last = depth == len(parts) - 1
-        done = ".".join(parts[:depth]) or "the top level"
-        if isinstance(node.value, list):
-            if not part.isdigit() or int(part) >= len(node.value):
-                errors.append(
-                    f"{where}: {done} is a list of {len(node.value)} item(s); `{part}` is not one of its "
-                    f"numbers (0 to {len(node.value) - 1})"
-                )
-                return
-            if last:
-                node.value[int(part)] = value
-                return
-            node = node.value[int(part)]
-        elif isinstance(node.value, dict) or node.value is None:
-            if node.value is None:
-                node.value = {}
-            if last:
-                node.value[part] = value
-                return
-            child = node.value.get(part)
-            if child is None:
-                child = node.value[part] = _Node({}, where, where)
-            node = child
-        else:
-            errors.append(f"{where}: {done} is a single value, not a section")
-            return
-
-
-def _set_where(node: _Node, where: str) -> None:
-    """Mark ``node`` and everything under it as written at ``where`` (an override)."""
-    node.where = node.key_where = where
-    if isinstance(node.value, dict):
-        children = list(node.value.values())
-    elif isinstance(node.value, list):
-        children = node.value
-    else:
-        children = []
-    for child in children:
-        _set_where(child, where)
-
-
-def _in_reading_order(errors: list[str]) -> list[str]:
-    """Errors grouped by file (first seen first) and sorted by line within each."""
-    files: dict[str, int] = {}
-    keyed = []
-    for order, message in enumerate(errors):
-        match = _LOCATED.match(message)
-        if match is None:
-            keyed.append(((len(errors), 0, order), message))
-            continue
-        rank = files.setdefault(match["file"], len(files))
-        keyed.append(((rank, int(match["line"]), order), message))
-    return [message for _, message in sorted(keyed)]
-
-
 # -- validation ----------------------------------------------------------------------------
 
 
-class _Bad:
-    """Stands for a value that failed its check (already reported)."""
-
-    def __repr__(self) -> str:
-        return "<invalid>"
-
-
-_BAD = _Bad()
-
-
-def _ok(*values: Any) -> bool:
-    return not any(value is _BAD for value in values)
-
-
-def _describe(node: _Node) -> str:
-    value = node.value
-    if isinstance(value, dict):
-        return "a mapping"
-    if isinstance(value, list):
-        return "a list"
-    if value is None:
-        return "nothing (null)"
-    if isinstance(value, bool):
-        return f"`{node.text}` (a boolean in YAML)"
-    if isinstance(value, str):
-        return f"the text {value!r}"
-    return f"`{node.text or value}`"
-
-
-def _allowed(low: float | None, high: float | None, low_open: bool) -> str:
-    def shown(x: float | None) -> str:
-        return str(x) if isinstance(x, int) else f"{x:g}"
-
-    if high is None:
-        return f"above {shown(low)}" if low_open else f"{shown(low)} or more"
-    return f"above {shown(low)}, up to {shown(high)}" if low_open else f"{shown(low)} to {shown(high)}"
-
-
-class _Section:
-    """One mapping of the tree being read: hands out checked values, records asked keys."""
-
-    def __init__(self, context: _Context, node: _Node | None, path: str, fallback: str = "") -> None:
-        self.context, self.path = context, path
-        self.asked: list[str] = []
-        self.where = node.where if node is not None else fallback
-        self.items: dict[Any, _Node] = {}
-        if node is None or node.value is None:
-            pass
-        elif isinstance(node.value, dict):
-            self.items = node.value
-        else:
-            got = _describe(node)
-            context.errors.append(f"{node.where}: {path or 'preset'}: expected a mapping of keys, got {got}")
-        context.sections.append(self)
-
-    def _get(self, key: str) -> _Node | None:
-        self.asked.append(key)
-        return self.items.get(key)
-
-    def fail(self, key: str, problem: str) -> _Bad:
-        """Report ``problem`` at ``key``'s value (or at the section for key '')."""
-        node = self.items.get(key)
-        where = node.where if node is not None else self.where
-        self.context.errors.append(f"{where}: {_join(self.path, key) if key else self.path}: {problem}")
-        return _BAD
-
-    def section(self, key: str) -> _Section:
-        return _Section(self.context, self._get(key), _join(self.path, key), self.where)
-
-    def number(
-        self,
-        key: str,
-        default: float | None,
-        *,
-        low: float | None = None,
-        high: float | None = None,
-        low_open: bool = False,
-        whole: bool = False,
-        optional: bool = False,
-        words: dict[str, float] | None = None,
-    ) -> Any:
-        """A finite number within [low, high] (or (low, high]); an int when ``whole``.
-
-        ``words`` names values that may be written as a word (``{"deep": inf}``).
-        """
-        node = self._get(key)
-        if node is None:
-            return default
-        words = words or {}
-        if isinstance(node.value, str) and node.value in words:
-            return words[node.value]
-        allowed = "".join(f"{word}, or " for word in words) + ("a whole number, " if whole else "")
-        allowed += _allowed(low, high, low_open) + (", or null" if optional else "")
-        value = node.value
-        if value is None:
-            return None if optional else self.fail(key, f"needs a value (allowed: {allowed})")
-        numeric = isinstance(value, int if whole else (int, float)) and not isinstance(value, bool)
-        if not numeric:
-            kind = "a whole number" if whole else "a number"
-            return self.fail(key, f"expected {kind}, got {_describe(node)} (allowed: {allowed})")
-        if not math.isfinite(value):
-            return self.fail(key, f"expected a finite number, got `{node.text}` (allowed: {allowed})")
-        below = low is not None and (value <= low if low_open else value < low)
-        if below or (high is not None and value > high):
-            return self.fail(key, f"`{node.text}` is out of range (allowed: {allowed})")
-        return int(value) if whole else float(value)
-
-    def choice(self, key: str, default: str | None, choices: Iterable[str], *, optional: bool = False) -> Any:
-        node = self._get(key)
-        if node is None or (node.value is None and optional):
-            return default
-        choices = tuple(choices)
-        if isinstance(node.value, str) and node.value in choices:
-            return node.value
-        close = difflib.get_close_matches(node.value, choices, n=1) if isinstance(node.value, str) else []
-        hint = f" — did you mean `{close[0]}`?" if close else ""
-        return self.fail(key, f"{_describe(node)} is not allowed{hint} (allowed: {', '.join(choices)})")
-
-    def flag(self, key: str, default: bool) -> Any:
-        node = self._get(key)
-        if node is None:
-            return default
-        if isinstance(node.value, bool):
-            return node.value
-        return self.fail(key, f"expected true or false, got {_describe(node)}")
-
-    def text(self, key: str, default: str) -> Any:
-        node = self._get(key)
-        if node is None or node.value is None:
-            return default
-        if not isinstance(node.value, str):
-            return self.fail(key, f"expected text, got {_describe(node)}")
-        if "\n" in node.value.strip():
-            return self.fail(key, "must be one line")
-        return node.value.strip()
-
-    def node(self, key: str) -> _Node | None:
-        return self._get(key)
-
-
-class _Context:
-    """The errors of one validation and every section read, for unknown-key reporting."""
-
-    def __init__(self, errors: list[str]) -> None:
-        self.errors = errors
-        self.sections: list[_Section] = []
-        self.component_sections: list[_Section] = []
-
-    def report_unknown_keys(self) -> None:
-        home: dict[str, str] = {}
-        for section in self.sections:
-            for key in section.asked:
-                home.setdefault(key, section.path)
-        for section in self.sections:
-            known = section.asked
-            for key, node in section.items.items():
-                if key in known:
-                    continue
-                written = str(key)
-                close = difflib.get_close_matches(written, known, n=1, cutoff=0.6)
-                if close:
-                    hint = f" — did you mean `{close[0]}`?"
-                elif written in home:
-                    hint = f" — it belongs in {home[written] or 'the top level'}"
-                else:
-                    hint = f" (known keys here: {', '.join(known)})"
-                place = section.path or "the top level"
-                where = node.key_where or node.where
-                self.errors.append(f"{where}: unknown key `{written}` in {place}{hint}")
-
-
-def _build_preset(tree: _Node, errors: list[str], path: Path, allow_outside_output: bool) -> Preset | None:
-    context = _Context(errors)
-    top = _Section(context, tree, "")
+def _build_preset(tree: Node, errors: list[str], path: Path, allow_outside_output: bool) -> Preset | None:
+    context = Context(errors)
+    component_sections: list[Section] = []
+    top = Section(context, tree, "")
     top.asked.append("extends")  # read before merging; listed so typos of it get a suggestion
     description = top.text("description", "")
     seed = top.number("seed", 0, low=0, high=_MAX_SEED, whole=True)
-    sea = _read_sea(top.section("sea"))
+    sea = _read_sea(top.section("sea"), component_sections)
     tile = _read_tile(top.section("tile"))
     surface = _read_surface(top.section("surface"))
     maps = _read_maps(top)
@@ -959,7 +522,7 @@ def _build_preset(tree: _Node, errors: list[str], path: Path, allow_outside_outp
     scene = _read_scene(top.section("scene"))
     context.report_unknown_keys()
     if not errors:
-        _check_physics(sea, context.component_sections)
+        _check_physics(sea, component_sections)
     if errors:
         return None
     return Preset(
@@ -967,7 +530,7 @@ def _build_preset(tree: _Node, errors: list[str], path: Path, allow_outside_outp
     )
 
 
-def _check_physics(sea: SeaSettings, sections: list[_Section]) -> None:
+def _check_physics(sea: SeaSettings, sections: list[Section]) -> None:
     """Build each component as :func:`to_sea_state` will; report what fails where it was written."""
     for item, sec in zip(sea.components, sections):
         try:
@@ -987,23 +550,24 @@ def _check_physics(sea: SeaSettings, sections: list[_Section]) -> None:
             sec.fail("", f"cannot build this component: {error}")
 
 
-def _read_sea(sec: _Section) -> SeaSettings:
+def _read_sea(sec: Section, component_sections: list[Section]) -> SeaSettings:
+    """The sea section; the components' sections go into ``component_sections``."""
     depth = sec.number("depth_m", math.inf, low=0.01, high=20_000.0, words={"deep": math.inf})
     gravity = sec.number("gravity_mps2", GRAVITY, low=0.1, high=100.0)
     tension = sec.number("surface_tension_npm", 0.0, low=0.0, high=1.0)
     density = sec.number("density_kgpm3", SEAWATER_DENSITY, low=1.0, high=25_000.0)
     node = sec.node("components")
-    components: Any = _BAD
+    components: Any = BAD
     if node is None:
         components = (_default_component(),)
     elif not isinstance(node.value, list) or not node.value:
-        got = "an empty list" if node.value == [] else _describe(node)
+        got = "an empty list" if node.value == [] else describe(node)
         sec.fail("components", f"expected a list of one or more components, got {got}")
     else:
         sections = [
-            _Section(sec.context, item, f"{sec.path}.components.{index}") for index, item in enumerate(node.value)
+            Section(sec.context, item, f"{sec.path}.components.{index}") for index, item in enumerate(node.value)
         ]
-        sec.context.component_sections = sections
+        component_sections[:] = sections
         components = tuple(_read_component(section, depth) for section in sections)
     return SeaSettings(depth, gravity, tension, density, components)
 
@@ -1026,7 +590,7 @@ def _default_component() -> ComponentSettings:
     )
 
 
-def _read_component(sec: _Section, depth: float) -> ComponentSettings:
+def _read_component(sec: Section, depth: float) -> ComponentSettings:
     label = sec.text("label", "")
     spectrum = sec.choice("spectrum", "jonswap", SPECTRA)
     wind = sec.number("wind_speed_mps", None, low=0.1, high=75.0, optional=True)
@@ -1079,7 +643,7 @@ def _read_component(sec: _Section, depth: float) -> ComponentSettings:
     # JONSWAP's γ shapes a sized or fetch-limited peak; a fully developed wind sea is
     # Pierson–Moskowitz whatever γ says, so γ is left unset there.
     shapes_peak = spectrum in ("jonswap", "tma") and (sizing == "significant_height_m" or fetch is not None)
-    if not shapes_peak and gamma not in (None, _BAD):
+    if not shapes_peak and gamma not in (None, BAD):
         if spectrum in ("jonswap", "tma"):
             why = "a fully developed wind sea (no fetch_km) is Pierson–Moskowitz"
         else:
@@ -1092,7 +656,7 @@ def _read_component(sec: _Section, depth: float) -> ComponentSettings:
         spreading = "mitsuyasu" if wind_driven or sizing is None else "cos2s"
     if spreading == "cos2s" and spread is None:
         spread = _DEFAULT_SPREAD_DEG
-    elif spreading not in ("cos2s", _BAD) and spread not in (None, _BAD):
+    elif spreading not in ("cos2s", BAD) and spread not in (None, BAD):
         spread = sec.fail(
             "spread_deg", f"applies to spreading cos2s only; {spreading} sets its own (set spread_deg: null)"
         )
@@ -1103,26 +667,26 @@ def _read_component(sec: _Section, depth: float) -> ComponentSettings:
     )
 
 
-def _read_tile(sec: _Section) -> TileSettings:
+def _read_tile(sec: Section) -> TileSettings:
     size = sec.number("size_m", 256.0, low=0.01, high=100_000.0)
     resolution = sec.number("resolution", 512, low=16, high=16384, whole=True)
-    if _ok(resolution) and resolution % 2:
+    if valid(resolution) and resolution % 2:
         resolution = sec.fail("resolution", f"`{resolution}` is odd (allowed: an even whole number)")
     return TileSettings(size, resolution)
 
 
-def _read_surface(sec: _Section) -> SurfaceSettings:
+def _read_surface(sec: Section) -> SurfaceSettings:
     lateral = sec.number("lateral_factor", 1.0, low=0.0, high=5.0)
     threshold = sec.number("fold_threshold", 0.3, low=-1.0, high=1.0)
     return SurfaceSettings(lateral, threshold)
 
 
-def _read_maps(top: _Section) -> Any:
+def _read_maps(top: Section) -> Any:
     node = top.node("maps")
     if node is None:
         return ("displacement", "normal", "foam")
     if not isinstance(node.value, list) or not node.value:
-        got = "an empty list" if node.value == [] else _describe(node)
+        got = "an empty list" if node.value == [] else describe(node)
         return top.fail("maps", f"expected a list of one or more of {', '.join(MAPS)}, got {got}")
     names: list[str] = []
     for index, item in enumerate(node.value):
@@ -1130,31 +694,31 @@ def _read_maps(top: _Section) -> Any:
             close = difflib.get_close_matches(str(item.value), MAPS, n=1)
             hint = f" — did you mean `{close[0]}`?" if close else ""
             allowed = ", ".join(MAPS)
-            problem = f"{_describe(item)} is not a map{hint} (allowed: {allowed})"
+            problem = f"{describe(item)} is not a map{hint} (allowed: {allowed})"
             top.context.errors.append(f"{item.where}: maps.{index}: {problem}")
-            return _BAD
+            return BAD
         if item.value in names:
             top.context.errors.append(f"{item.where}: maps.{index}: `{item.value}` is listed twice")
-            return _BAD
+            return BAD
         names.append(item.value)
     return tuple(names)
 
 
-def _read_time(sec: _Section) -> TimeSettings:
+def _read_time(sec: Section) -> TimeSettings:
     fps = sec.number("fps", 24.0, low=0.0, high=1000.0, low_open=True)
     first = sec.number("first_frame", 1001, low=-1_000_000_000, high=1_000_000_000, whole=True)
     last = sec.number("last_frame", 1048, low=-1_000_000_000, high=1_000_000_000, whole=True)
     loop = sec.number("loop_period_s", None, low=0.0, high=1.0e6, low_open=True, optional=True)
     offset = sec.number("time_offset_s", 0.0, low=-1.0e9, high=1.0e9)
-    if _ok(first, last) and last < first:
+    if valid(first, last) and last < first:
         last = sec.fail("last_frame", f"`{last}` is before first_frame {first}")
-    if _ok(fps) and loop not in (None, _BAD) and loop <= 1.0 / fps:
+    if valid(fps) and loop not in (None, BAD) and loop <= 1.0 / fps:
         frame = f"{1.0 / fps:.4g} s at {fps:g} fps"
         loop = sec.fail("loop_period_s", f"`{loop:g}` s is not longer than one frame ({frame})")
     return TimeSettings(fps, first, last, loop, offset)
 
 
-def _read_output(sec: _Section, maps: Any, allow_outside_output: bool) -> OutputSettings:
+def _read_output(sec: Section, maps: Any, allow_outside_output: bool) -> OutputSettings:
     folder = sec.text("folder", "{preset}")
     pattern = sec.text("pattern", "{map}.####.{ext}")
     file_format = sec.choice("format", "exr", _FORMATS)
@@ -1162,31 +726,31 @@ def _read_output(sec: _Section, maps: Any, allow_outside_output: bool) -> Output
     per_map = _read_precision_per_map(sec.section("precision_per_map"))
     compression = sec.choice("compression", "zip", _COMPRESSIONS)
     multilayer = sec.flag("multilayer", False)
-    if _ok(folder):
+    if valid(folder):
         _check_template(sec, "folder", folder, frame_run=False, allow_outside=allow_outside_output)
-    if _ok(pattern):
+    if valid(pattern):
         _check_template(sec, "pattern", pattern, frame_run=True, allow_outside=False)
-        if _ok(file_format) and "{ext}" not in pattern and not pattern.lower().endswith(f".{file_format}"):
+        if valid(file_format) and "{ext}" not in pattern and not pattern.lower().endswith(f".{file_format}"):
             sec.fail("pattern", f"`{pattern}` would not end in .{file_format}; end it with .{{ext}}")
-    if _ok(folder, pattern, maps) and len(maps) > 1 and "{map}" not in folder + pattern:
+    if valid(folder, pattern, maps) and len(maps) > 1 and "{map}" not in folder + pattern:
         sec.fail("pattern", f"`{pattern}` has no {{map}}: the {len(maps)} maps would overwrite each other")
     if multilayer is True and file_format == "png":
         sec.fail("multilayer", "layered files are EXR only; set format: exr or multilayer: false")
     return OutputSettings(folder, pattern, file_format, precision, per_map, compression, multilayer)
 
 
-def _read_precision_per_map(sec: _Section) -> Any:
+def _read_precision_per_map(sec: Section) -> Any:
     chosen = []
     for name in MAPS:
         value = sec.choice(name, None, _PRECISIONS, optional=True)
-        if value is _BAD:
-            return _BAD
+        if value is BAD:
+            return BAD
         if value is not None:
             chosen.append((name, value))
     return tuple(chosen)
 
 
-def _check_template(sec: _Section, key: str, template: str, *, frame_run: bool, allow_outside: bool) -> None:
+def _check_template(sec: Section, key: str, template: str, *, frame_run: bool, allow_outside: bool) -> None:
     """Placeholders, the frame-number run and the path's staying under the output root."""
     try:
         parsed = list(string.Formatter().parse(template))
@@ -1219,7 +783,7 @@ def _check_template(sec: _Section, key: str, template: str, *, frame_run: bool, 
         sec.fail(key, f"`{template}` does not end in a file name")
 
 
-def _read_scene(sec: _Section) -> SceneSettings:
+def _read_scene(sec: Section) -> SceneSettings:
     metres = sec.number("metres_per_unit", 1.0, low=1.0e-6, high=1.0e6)
     up_axis = sec.choice("up_axis", "y", UP_AXES)
     return SceneSettings(metres, up_axis)
