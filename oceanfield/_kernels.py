@@ -3,7 +3,8 @@
 Why they are shaped this way (see the performance model in DEVELOPERS.md):
 
 * ω depends on |k| alone, so ``rotation_kernel`` evaluates e^{−iωt} once per distinct
-  q = nx² + ny² (a quarter as many sines and cosines as texels, or fewer).
+  q = nx² + ny² that carries energy (a sum of two squares: about a twentieth as many
+  sines and cosines as texels at N = 1024); ``slots[q]`` indexes that compact table.
 * ``spectra_kernel`` makes one pass over half the lattice. For each wave index k it reads
   h0(k), h0(−k) (the mirrored index: no second amplitude array is stored) and the
   rotation of its q, and writes the spectra of eight real fields packed two to a complex
@@ -59,10 +60,10 @@ def rotation_kernel(omega_table, t, out):  # pragma: no cover - compiled
 
 
 @numba.njit(parallel=True, cache=True, fastmath=False)
-def spectra_kernel(h0, rotation, dk, lateral, out):  # pragma: no cover - compiled
+def spectra_kernel(h0, slots, rotation, dk, lateral, out):  # pragma: no cover - compiled
     n = h0.shape[0]
     half = n // 2
-    q_max = rotation.shape[0] - 1
+    q_max = slots.shape[0] - 1
     # Each iteration handles a wave index k and its mirror -k together: every field's
     # spectrum is Hermitian, so the values at -k are the conjugates of those at k and
     # h0(k), h0(-k) and the rotation are read once for both.
@@ -86,7 +87,7 @@ def spectra_kernel(h0, rotation, dk, lateral, out):  # pragma: no cover - compil
             k = math.sqrt(kx * kx + ky * ky)
             a = h0[iy, ix]
             b = h0[my, mx]
-            e = rotation[q]
+            e = rotation[slots[q]]
             c = e.real
             s = -e.imag
             # ĥ = h0(k) e^{-iωt} + conj(h0(-k)) e^{+iωt}
@@ -151,10 +152,10 @@ def surface_kernel(fields, fold_threshold, foam_ramp):  # pragma: no cover - com
 
 
 @numba.njit(parallel=True, cache=True, fastmath=False)
-def velocity_kernel(h0, omega_table, rotation, dk, lateral, out):  # pragma: no cover - compiled
+def velocity_kernel(h0, slots, omega_table, rotation, dk, lateral, out):  # pragma: no cover - compiled
     n = h0.shape[0]
     half = n // 2
-    q_max = rotation.shape[0] - 1
+    q_max = slots.shape[0] - 1
     for row in numba.prange(n):
         iy = np.int64(row)
         ny = iy if iy < half else iy - n
@@ -173,9 +174,10 @@ def velocity_kernel(h0, omega_table, rotation, dk, lateral, out):  # pragma: no 
             k = math.sqrt(kx * kx + ky * ky)
             a = h0[iy, ix]
             b = h0[my, mx]
-            w = omega_table[q]
-            c = rotation[q].real
-            s = -rotation[q].imag
+            slot = slots[q]
+            w = omega_table[slot]
+            c = rotation[slot].real
+            s = -rotation[slot].imag
             # ∂ĥ/∂t = -iω h0 e^{-iωt} + iω conj(h0(-k)) e^{+iωt}
             er = a.real * c + a.imag * s
             ei = a.imag * c - a.real * s

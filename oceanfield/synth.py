@@ -25,8 +25,8 @@ from .tile import Tile
 
 __all__ = ["Ocean", "LoopInfo", "amplitude_noise", "frame_bytes_per_texel", "available_memory"]
 
-#: Bytes a texel needs: what an Ocean keeps (h0 as complex64, plus ω and its rotation per
-#: distinct |k|², under 4 bytes a texel) and what a frame holds (four complex64 arrays).
+#: Bytes a texel needs: what an Ocean keeps (h0 as complex64, plus ω and a slot per
+#: distinct |k|², 3 bytes a texel) and what a frame holds (four complex64 arrays).
 #: Work arrays while building are float64 over a block of rows only. Used to refuse
 #: resolutions the machine cannot hold.
 _PERSISTENT_BYTES = 8 + 4
@@ -169,6 +169,13 @@ class Ocean:
         self.fft_workers = fft_workers if fft_workers is not None else (os.cpu_count() or 1)
         self._check_memory()
         self._h0, self._omega, self.lattice_variance, self.loop_info = self._build()
+        # Rotations are needed only for the q = nx² + ny² that carry energy: slot 0 stands
+        # for all others (their amplitudes are zero), slots 1… for the used ones.
+        used = np.flatnonzero(self._used)
+        self._slots = np.zeros(self._omega.size, dtype=np.int32)
+        self._slots[used] = np.arange(1, used.size + 1, dtype=np.int32)
+        self._omega_used = np.concatenate([[0.0], self._omega[used]])
+        del self._used
 
     @classmethod
     def from_preset(cls, preset, *, velocity: bool | None = None, fft_workers: int | None = None) -> "Ocean":
@@ -234,6 +241,7 @@ class Ocean:
                 float(relative.max()) if relative.size else 0.0,
             )
             omega = quantised
+        self._used = used
         return h0, omega, variance, info
 
     # -- frames ------------------------------------------------------------------------
@@ -275,9 +283,9 @@ class Ocean:
                 f"buffer: {received} is not allowed; "
                 f"allowed: a writable C-contiguous complex64 array of shape (4, {n}, {n}) from new_buffer()"
             )
-        rotation = np.empty(self._omega.shape, dtype=np.complex128)
-        _kernels.rotation_kernel(self._omega, float(t), rotation)
-        _kernels.spectra_kernel(self._h0, rotation, self.tile.dk, self.lateral_factor, buffer)
+        rotation = np.empty(self._omega_used.shape, dtype=np.complex128)
+        _kernels.rotation_kernel(self._omega_used, float(t), rotation)
+        _kernels.spectra_kernel(self._h0, self._slots, rotation, self.tile.dk, self.lateral_factor, buffer)
         # h(x) = Σ ĥ e^{ik·x}: an unnormalised inverse transform (norm="forward").
         scipy.fft.ifft2(buffer, axes=(-2, -1), norm="forward", overwrite_x=True, workers=self.fft_workers)
         _kernels.surface_kernel(buffer, self.fold_threshold, self.foam_ramp)
@@ -291,7 +299,9 @@ class Ocean:
 
         n = self.tile.resolution
         packed = np.empty((2, n, n), dtype=np.complex64)
-        _kernels.velocity_kernel(self._h0, self._omega, rotation, self.tile.dk, self.lateral_factor, packed)
+        _kernels.velocity_kernel(
+            self._h0, self._slots, self._omega_used, rotation, self.tile.dk, self.lateral_factor, packed
+        )
         scipy.fft.ifft2(packed, axes=(-2, -1), norm="forward", overwrite_x=True, workers=self.fft_workers)
         return np.stack([packed[0].real, packed[0].imag, packed[1].real], axis=-1)
 

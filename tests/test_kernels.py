@@ -29,6 +29,11 @@ SIZES = (16, 48, 64, 96)
 GRAVITY = 9.81
 
 
+
+def _every_slot(omega_table):
+    """The identity slot map: one rotation per q = nx² + ny² (the Ocean compacts it)."""
+    return np.arange(omega_table.size, dtype=np.int32)
+
 def _lattice_case(n: int, seed: int = 0, size: float = 80.0):
     """Random amplitudes on the carried lattice of a tile, and ω by deep-water dispersion.
 
@@ -81,7 +86,7 @@ def test_spectra_kernel_matches_reference(n, t, lateral):
     rotation = np.exp(-1j * omega_table * t)
     out = np.empty((4, n, n), np.complex64)
     out[...] = np.nan  # every slot must be written, including the zeros
-    _kernels.spectra_kernel(h0, rotation, dk, lateral, out)
+    _kernels.spectra_kernel(h0, _every_slot(omega_table), rotation, dk, lateral, out)
     expected = _kernels.spectra_reference(h0.astype(np.complex128), omega, t, dk, lateral)
     for slot in range(4):
         _close(out[slot], expected[slot])
@@ -93,7 +98,7 @@ def test_spectra_kernel_gives_real_fields(n):
     unpacking the kernel's output gives spectra with A(−k) = conj A(k)."""
     h0, omega_table, _, dk = _lattice_case(n, seed=7)
     out = np.empty((4, n, n), np.complex64)
-    _kernels.spectra_kernel(h0, np.exp(-1j * omega_table * 2.0), dk, 1.3, out)
+    _kernels.spectra_kernel(h0, _every_slot(omega_table), np.exp(-1j * omega_table * 2.0), dk, 1.3, out)
     fields = np.fft.ifft2(out.astype(np.complex128), norm="forward")
     for slot in range(4):
         a, b = _unpack(out[slot].astype(np.complex128))
@@ -108,7 +113,7 @@ def test_spectra_kernel_gives_real_fields(n):
 def _transformed_fields(n: int, seed: int, lateral: float):
     h0, omega_table, _, dk = _lattice_case(n, seed=seed)
     out = np.empty((4, n, n), np.complex64)
-    _kernels.spectra_kernel(h0, np.exp(-1j * omega_table * 1.1), dk, lateral, out)
+    _kernels.spectra_kernel(h0, _every_slot(omega_table), np.exp(-1j * omega_table * 1.1), dk, lateral, out)
     return np.fft.ifft2(out, norm="forward").astype(np.complex64)
 
 
@@ -158,7 +163,7 @@ def test_velocity_kernel_is_the_time_derivative_of_the_spectra(n, lateral):
     dh, ddx = _unpack(derivative[0])
     ddy, _ = _unpack(derivative[1])
     out = np.empty((2, n, n), np.complex64)
-    _kernels.velocity_kernel(h0, omega_table, np.exp(-1j * omega_table * t), dk, lateral, out)
+    _kernels.velocity_kernel(h0, _every_slot(omega_table), omega_table, np.exp(-1j * omega_table * t), dk, lateral, out)
     if lateral > 0:
         _close(out[0], ddx + 1j * ddy)
     else:
@@ -171,9 +176,28 @@ def test_kernels_accept_a_lattice_with_only_low_waves():
     n = 48
     h0, omega_table, _, dk = _lattice_case(n)
     out = np.ones((4, n, n), np.complex64)
-    _kernels.spectra_kernel(h0, np.exp(-1j * omega_table * 0.5), dk, 1.0, out)
+    _kernels.spectra_kernel(h0, _every_slot(omega_table), np.exp(-1j * omega_table * 0.5), dk, 1.0, out)
     half = n // 2
     assert np.all(out[:, 0, 0] == 0)
     assert np.all(out[:, half, :] == 0)
     assert np.all(out[:, :, half] == 0)
     assert math.isfinite(float(np.abs(out).max()))
+
+
+def test_compact_slots_give_the_same_spectra_as_every_slot():
+    """The Ocean keeps rotations only for the q that carry energy; the packed spectra
+    must not change (q without energy have zero amplitudes)."""
+    from oceanfield.seastate import SeaState, height_period
+    from oceanfield.synth import Ocean
+    from oceanfield.tile import Tile
+
+    ocean = Ocean(SeaState((height_period(1.0, 6.0),)), Tile(120.0, 48), seed=5)
+    t = 2.75
+    compact = np.empty((4, 48, 48), np.complex64)
+    rotation = np.exp(-1j * ocean._omega_used * t)
+    _kernels.spectra_kernel(ocean._h0, ocean._slots, rotation, ocean.tile.dk, 1.0, compact)
+    full = np.empty_like(compact)
+    _kernels.spectra_kernel(ocean._h0, _every_slot(ocean._omega), np.exp(-1j * ocean._omega * t),
+                            ocean.tile.dk, 1.0, full)
+    np.testing.assert_array_equal(compact, full)
+    assert ocean._omega_used.size < ocean._omega.size / 2
