@@ -1,0 +1,272 @@
+"""Tests for ``oceanfield render``: refusals, progress, exit status, chunks, a real SIGKILL.
+
+Commands run in-process through `oceanfield.cli.main` (stdout and stderr captured); the
+kill test and one end-to-end test run the installed ``oceanfield`` command.
+"""
+
+from __future__ import annotations
+
+import os
+import re
+import shutil
+import signal
+import subprocess
+import time
+from collections import Counter
+from pathlib import Path
+
+import pytest
+
+from oceanfield.cli import main
+from oceanfield.io.atomic import is_temporary
+from oceanfield.io.exr import exr_is_complete
+from oceanfield.preset import load_preset
+from oceanfield.render import MANIFEST_NAME, plan_render, render
+
+#: How long an unreachable scheduler may take to be reported (the issue's bound, seconds).
+_SCHEDULER_REFUSAL_S = 15.0
+_FRAME_LINE = re.compile(r"^frame (\d+) (written in \d+\.\d\d s|skipped|failed: .+)$")
+
+
+def _render_args(preset: Path, out: Path, *extra: str) -> list[str]:
+    return ["render", str(preset), "--out", str(out), "--workers", "1", *extra]
+
+
+def _files(root: Path) -> dict[str, tuple[int, int]]:
+    """Every file under ``root`` (hidden ones too) → (size, modification time in ns)."""
+    if not root.exists():
+        return {}
+    return {str(p.relative_to(root)): (p.stat().st_size, p.stat().st_mtime_ns)
+            for p in sorted(root.rglob("*")) if p.is_file()}
+
+
+def _assert_one_error_block(err: str, *needles: str) -> None:
+    lines = err.strip("\n").splitlines()
+    assert len(lines) == 1 and lines[0].startswith("oceanfield: error: "), err
+    for needle in needles:
+        assert needle in lines[0], (needle, err)
+
+
+def _same_frames(a: Path, b: Path) -> None:
+    names = sorted(p.relative_to(a) for p in a.rglob("*.exr") if not is_temporary(p))
+    assert names == sorted(p.relative_to(b) for p in b.rglob("*.exr") if not is_temporary(p))
+    for name in names:
+        assert (a / name).read_bytes() == (b / name).read_bytes(), name
+
+
+# -- refusals --------------------------------------------------------------------------------
+
+
+@pytest.mark.parametrize(
+    ("extra", "needles"),
+    [
+        (("--frames", "5-1"), ("--frames", "'5-1'", "allowed")),
+        (("--frames", "a-b"), ("--frames", "'a-b'", "allowed")),
+        (("--chunk", "9/8"), ("--chunk", "'9/8'", "allowed")),
+        (("--chunk", "0/3"), ("--chunk", "'0/3'", "allowed")),
+        (("--workers", "0"), ("--workers", "0", "allowed")),
+    ],
+    ids=["frames-backwards", "frames-not-numbers", "chunk-beyond", "chunk-zero", "no-workers"],
+)
+def test_bad_arguments_are_refused_before_anything_is_written(tmp_path, preset_file, capsys, extra, needles):
+    out = tmp_path / "out"
+    status = main(["render", str(preset_file()), "--out", str(out), *extra])
+    captured = capsys.readouterr()
+    assert status == 2
+    assert captured.out == ""
+    _assert_one_error_block(captured.err, *needles)
+    assert not out.exists()
+
+
+def test_an_unwritable_output_root_is_refused(tmp_path, preset_file, capsys):
+    # Tests run as root, so permissions stop nothing: put the root under a file instead.
+    blocker = tmp_path / "a-file"
+    blocker.write_text("not a folder", encoding="utf-8")
+    status = main(_render_args(preset_file(), blocker / "renders"))
+    captured = capsys.readouterr()
+    assert status == 2
+    _assert_one_error_block(captured.err, "not writable", str(blocker))
+    assert sorted(_files(tmp_path)) == ["a-file", "tiny.yaml"]
+
+
+def test_an_unreachable_scheduler_is_refused_quickly(tmp_path, preset_file, capsys):
+    pytest.importorskip("distributed")
+    out = tmp_path / "out"
+    started = time.perf_counter()
+    status = main(["render", str(preset_file()), "--out", str(out), "--scheduler", "tcp://127.0.0.1:9"])
+    elapsed = time.perf_counter() - started
+    captured = capsys.readouterr()
+    assert status == 2
+    _assert_one_error_block(captured.err, "--scheduler", "tcp://127.0.0.1:9")
+    assert elapsed < _SCHEDULER_REFUSAL_S
+    assert _files(out) == {}  # no frames, no temporaries, no manifest
+
+
+def test_another_preset_into_a_rendered_folder_is_refused(tmp_path, preset_file, capsys):
+    out = tmp_path / "out"
+    assert main(_render_args(preset_file(), out, "--frames", "1001-1002")) == 0
+    # Another preset, another sea, told to write into tiny's folder.
+    other = preset_file("other", settings={"seed": 9, "output": {"folder": "tiny"}})
+    capsys.readouterr()
+    before = _files(out)
+    status = main(_render_args(other, out, "--frames", "1001-1002"))
+    captured = capsys.readouterr()
+    assert status == 2
+    _assert_one_error_block(captured.err, str(out / "tiny"), "rendered from tiny", "--overwrite")
+    assert _files(out) == before
+    # --overwrite replaces them.
+    assert main(_render_args(other, out, "--frames", "1001-1002", "--overwrite")) == 0
+    assert "2 written, 0 skipped" in capsys.readouterr().out
+    assert '"preset_name": "other"' in (out / "tiny" / MANIFEST_NAME).read_text(encoding="utf-8")
+
+
+# -- progress, summary, exit status ------------------------------------------------------------
+
+
+def test_progress_lines_summary_and_exit_status(tmp_path, preset_file, capsys):
+    out = tmp_path / "out"
+    path = preset_file()
+    assert main(_render_args(path, out, "--frames", "1001-1004")) == 0
+    lines = capsys.readouterr().out.splitlines()
+    assert lines[0] == f"rendering 4 frames of tiny (displacement, normal, foam) into {out / 'tiny'}"
+    progress = [_FRAME_LINE.match(line) for line in lines[1:5]]
+    assert all(progress), lines
+    assert sorted(int(m.group(1)) for m in progress) == [1001, 1002, 1003, 1004]
+    assert all(m.group(2).startswith("written") for m in progress)
+    assert re.fullmatch(r"4 written, 0 skipped \(already complete\), 0 failed of 4 frames in "
+                        r"\d+\.\d s \(\d+\.\d\d frames/s\)", lines[5])
+    assert lines[6:] == [f"frames are in {out / 'tiny'}"]
+
+    # Again: every frame is complete, so every frame is skipped.
+    assert main(_render_args(path, out, "--frames", "1001-1004")) == 0
+    lines = capsys.readouterr().out.splitlines()
+    assert sorted(lines[1:5]) == [f"frame {f} skipped" for f in range(1001, 1005)]
+    assert lines[5].startswith("0 written, 4 skipped (already complete), 0 failed of 4 frames")
+
+
+def test_a_frame_that_cannot_be_written_fails_the_run(tmp_path, preset_file, capsys):
+    out = tmp_path / "out"
+    path = preset_file()
+    blocked = plan_render(load_preset(path), root=out).files(1003)["normal"]
+    blocked.mkdir(parents=True)  # a folder where the file should go
+    status = main(_render_args(path, out, "--frames", "1001-1004"))
+    captured = capsys.readouterr()
+    assert status == 1
+    assert "frame 1003 failed: cannot write" in captured.out
+    assert "3 written, 0 skipped (already complete), 1 failed of 4 frames" in captured.out
+    assert "frames are in" not in captured.out
+    assert captured.err.startswith(f"oceanfield: error: frame 1003: cannot write '{blocked}'")
+    assert '"frames_done": [\n    1001,\n    1002,\n    1004\n  ]' in (out / "tiny" / MANIFEST_NAME).read_text()
+
+
+def test_chunks_from_the_command_line_match_one_run(tmp_path, preset_file, capsys):
+    path = preset_file()
+    for chunk in ("2/3", "3/3", "1/3"):  # in any order
+        assert main(_render_args(path, tmp_path / "chunks", "--chunk", chunk)) == 0
+        assert "2 written, 0 skipped" in capsys.readouterr().out
+    assert main(_render_args(path, tmp_path / "whole")) == 0
+    _same_frames(tmp_path / "whole", tmp_path / "chunks")
+    assert main(_render_args(path, tmp_path / "chunks")) == 0
+    assert "0 written, 6 skipped" in capsys.readouterr().out.splitlines()[-2]
+
+
+# -- the installed command ---------------------------------------------------------------------
+
+
+def _command() -> str:
+    command = shutil.which("oceanfield")
+    assert command, "the oceanfield command is not on PATH (pip install -e .)"
+    return command
+
+
+def test_installed_command_renders_a_tiny_preset(tmp_path, preset_file):
+    out = tmp_path / "out"
+    result = subprocess.run(
+        [_command(), "render", str(preset_file()), "--out", str(out), "--frames", "1001-1002", "--workers", "1"],
+        capture_output=True, text=True, timeout=120, check=False,
+    )
+    assert result.returncode == 0, result.stderr
+    assert result.stderr == ""
+    assert result.stdout.splitlines()[-1] == f"frames are in {out / 'tiny'}"
+    assert sorted(p.name for p in (out / "tiny").glob("*.exr")) == [
+        f"{m}.{f}.exr" for m in ("displacement", "foam", "normal") for f in (1001, 1002)]
+
+
+#: The render job writes through a thread on small jobs and through a writer process from
+#: 8 Mi texels of frames on (render._WRITER_PROCESS_TEXELS): 256² × 48 frames is 3 Mi,
+#: 256² × 128 frames 8.4 Mi. Both paths are killed.
+_KILLED_JOBS = {"writer-thread": 48, "writer-process": 128}
+
+
+@pytest.mark.parametrize("writer", list(_KILLED_JOBS))
+def test_sigkill_mid_render_leaves_no_partial_frame_and_resumes(tmp_path, preset_file, capsys, writer):
+    """A real SIGKILL mid-run: every file under a frame's name is whole; a re-run completes."""
+    from oceanfield.render import _WRITER_PROCESS_TEXELS
+
+    frames = _KILLED_JOBS[writer]
+    assert (frames * 256**2 >= _WRITER_PROCESS_TEXELS) == (writer == "writer-process")
+    last = 1000 + frames
+    path = preset_file("killed", settings={"tile": {"resolution": 256}, "time": {"last_frame": last}})
+    out = tmp_path / "out"
+    folder = out / "killed"
+    log = (tmp_path / "killed.log").open("w")
+    process = subprocess.Popen([_command(), *_render_args(path, out)], stdout=log, stderr=subprocess.STDOUT,
+                               start_new_session=True)
+    caught_writing = False
+    children_outlived = None
+    try:
+        deadline = time.monotonic() + 60.0
+        while process.poll() is None and time.monotonic() < deadline:
+            names = os.listdir(folder) if folder.is_dir() else []
+            done = Counter(n.split(".")[1] for n in names if n.endswith(".exr") and not is_temporary(n))
+            whole = sum(count == 3 for count in done.values())
+            # Once a frame is whole, kill while a file is being written if we catch one,
+            # else after a few frames.
+            if whole and any(is_temporary(n) for n in names):
+                caught_writing = True
+                break
+            if whole >= 6:
+                break
+            time.sleep(0.001)
+        os.kill(process.pid, signal.SIGKILL)  # the render process alone, as an OOM killer would
+        process.wait(timeout=30)
+        # A writer process the render started must not outlive it for long.
+        for _ in range(50):
+            try:
+                os.killpg(process.pid, 0)
+            except ProcessLookupError:
+                children_outlived = False
+                break
+            time.sleep(0.1)
+        else:
+            children_outlived = True
+    finally:
+        log.close()
+        try:  # anything the killed render started itself (its session is its own)
+            os.killpg(process.pid, signal.SIGKILL)
+        except ProcessLookupError:
+            pass
+    assert process.returncode == -signal.SIGKILL, "the render ended before it was killed"
+
+    finals = [p for p in folder.glob("*.exr") if not is_temporary(p)]
+    assert finals, "no frame was written before the kill"
+    assert len(finals) < 3 * frames, "every frame was written before the kill"
+    for file in finals:
+        assert exr_is_complete(file, decode=True), f"{file.name} is partial"
+    leftovers = [p.name for p in folder.iterdir() if is_temporary(p)]
+
+    status = main(_render_args(path, out))
+    captured = capsys.readouterr()
+    assert status == 0, captured.err
+    summary = captured.out.splitlines()[-2]
+    written, skipped = (int(n) for n in re.match(r"(\d+) written, (\d+) skipped", summary).groups())
+    assert written > 0 and skipped > 0 and written + skipped == frames
+
+    clean = render(plan_render(load_preset(path), root=tmp_path / "clean"), workers=1)
+    assert clean.ok
+    _same_frames(out, tmp_path / "clean")
+    # Report what the kill left beside the frames (hidden temporaries of the dead writer are
+    # removed by a later run once five minutes old; see io.atomic.remove_stale_temporaries).
+    print(f"killed while writing: {caught_writing}; temporaries left: {leftovers}; "
+          f"processes outlived the render by 5 s: {children_outlived}; "
+          f"frames redone: {written}, skipped: {skipped}")
