@@ -398,6 +398,8 @@ def _write_result(frame: int, jobs: list[FileJob], started: float) -> FrameResul
         return FrameResult(frame, "written", time.perf_counter() - started)
     except (OSError, ValueError) as error:
         return FrameResult(frame, "failed", time.perf_counter() - started, str(error))
+    except Exception as error:  # noqa: BLE001 - a bug must fail the frame, not hang the render
+        return FrameResult(frame, "failed", time.perf_counter() - started, f"{type(error).__name__}: {error}")
 
 
 class _ThreadSink:
@@ -581,9 +583,30 @@ def render(plan: RenderPlan, *, workers: int | None = None, scheduler: str | Any
     """
     started = time.perf_counter()
     summary = RenderSummary(requested=len(plan.frames))
+    cores = os.cpu_count() or 1
+    count = cores if workers is None else workers
+    if isinstance(count, bool) or not isinstance(count, int) or count < 1:
+        raise ValueError(f"--workers: {workers!r} is not allowed; allowed: an integer >= 1")
     if not plan.frames:
         return summary
-    _prepare_folder(plan, overwrite)
+    # Reach the scheduler before anything is created, so a wrong address writes nothing.
+    client, own_client = _connect(scheduler) if scheduler is not None else (None, False)
+    try:
+        _prepare_folder(plan, overwrite)
+        _update_manifest(plan, [])  # claim the folder at once: a killed first run still leaves it
+        _run(plan, summary, client, count, cores, overwrite, progress)
+    finally:
+        if own_client:
+            client.close()
+    summary.written.sort()
+    summary.skipped.sort()
+    _update_manifest(plan, summary.written + summary.skipped)
+    summary.wall_seconds = time.perf_counter() - started
+    return summary
+
+
+def _run(plan: RenderPlan, summary: RenderSummary, client, count: int, cores: int, overwrite: bool,
+         progress: Callable[[FrameResult], None] | None) -> None:
     lock = threading.Lock()
 
     def record(result: FrameResult) -> None:
@@ -597,24 +620,15 @@ def render(plan: RenderPlan, *, workers: int | None = None, scheduler: str | Any
         if progress is not None:
             progress(result)
 
-    cores = os.cpu_count() or 1
-    if scheduler is not None:
-        _render_on_dask(plan, scheduler, overwrite, record)
+    if client is not None:
+        _render_on_dask(plan, client, overwrite, record)
+        return
+    count = min(count, len(plan.frames))
+    threads = max(1, cores // count)
+    if count == 1:
+        _render_frames(plan, plan.frames, threads=threads, overwrite=overwrite, report=record)
     else:
-        count = cores if workers is None else workers
-        if isinstance(count, bool) or not isinstance(count, int) or count < 1:
-            raise ValueError(f"--workers: {workers!r} is not allowed; allowed: an integer >= 1")
-        count = min(count, len(plan.frames))
-        threads = max(1, cores // count)
-        if count == 1:
-            _render_frames(plan, plan.frames, threads=threads, overwrite=overwrite, report=record)
-        else:
-            _render_on_processes(plan, count, threads, overwrite, record)
-    summary.written.sort()
-    summary.skipped.sort()
-    _update_manifest(plan, summary.written + summary.skipped)
-    summary.wall_seconds = time.perf_counter() - started
-    return summary
+        _render_on_processes(plan, count, threads, overwrite, record)
 
 
 def _render_on_processes(plan: RenderPlan, count: int, threads: int, overwrite: bool,
@@ -655,39 +669,39 @@ def _render_on_processes(plan: RenderPlan, count: int, threads: int, overwrite: 
         record(FrameResult(frame, "failed", 0.0, "its worker process ended without rendering it"))
 
 
-def _render_on_dask(plan: RenderPlan, scheduler: Any, overwrite: bool,
-                    record: Callable[[FrameResult], None]) -> None:
+def _connect(scheduler: Any) -> tuple[Any, bool]:
+    """(client, whether we own it) for a scheduler address or an existing client."""
+    if not isinstance(scheduler, str):
+        return scheduler, False
     try:
-        from distributed import Client, as_completed
+        from distributed import Client
     except ImportError:
         raise ValueError(
             "--scheduler: rendering on a cluster needs the 'distributed' package; "
             "install it with: pip install 'oceanfield[farm]'"
         ) from None
-    own_client = isinstance(scheduler, str)
-    if own_client:
-        try:
-            client = Client(scheduler, timeout="10s")
-        except (OSError, TimeoutError) as error:
-            raise ValueError(f"--scheduler: could not reach a Dask scheduler at {scheduler!r} ({error})") from None
-    else:
-        client = scheduler
     try:
-        n_workers = max(1, len(client.scheduler_info().get("workers", {})))
-        groups = _groups(plan.frames, n_workers * 4)
-        # as_completed yields in completion order: look each future's frames up, never zip.
-        futures = {client.submit(_dask_frames, plan, group, 1, overwrite, pure=False): group for group in groups}
-        for future in as_completed(futures):
-            group = futures[future]
-            try:
-                results = future.result()
-            except Exception as error:  # noqa: BLE001 - a remote failure is reported per frame
-                results = [FrameResult(f, "failed", 0.0, f"cluster task failed: {error}") for f in group]
-            for result in results:
-                record(result)
-    finally:
-        if own_client:
-            client.close()
+        return Client(scheduler, timeout="10s"), True
+    except (OSError, TimeoutError, ValueError) as error:
+        raise ValueError(f"--scheduler: could not reach a Dask scheduler at {scheduler!r} ({error})") from None
+
+
+def _render_on_dask(plan: RenderPlan, client: Any, overwrite: bool,
+                    record: Callable[[FrameResult], None]) -> None:
+    from distributed import as_completed
+
+    n_workers = max(1, len(client.scheduler_info().get("workers", {})))
+    groups = _groups(plan.frames, n_workers * 4)
+    # as_completed yields in completion order: look each future's frames up, never zip.
+    futures = {client.submit(_dask_frames, plan, group, 1, overwrite, pure=False): group for group in groups}
+    for future in as_completed(futures):
+        group = futures[future]
+        try:
+            results = future.result()
+        except Exception as error:  # noqa: BLE001 - a remote failure is reported per frame
+            results = [FrameResult(f, "failed", 0.0, f"cluster task failed: {error}") for f in group]
+        for result in results:
+            record(result)
 
 
 # -- the manifest ------------------------------------------------------------------------------
@@ -736,7 +750,7 @@ def _update_manifest(plan: RenderPlan, frames_done: list[int]) -> None:
     from .preset import dump_preset
 
     path = _manifest_path(plan)
-    lock_path = path.with_name(path.name + ".lock")
+    lock_path = path.with_name("." + path.name + ".lock")
     with open(lock_path, "a+") as lock_file:
         try:
             import fcntl
@@ -803,7 +817,7 @@ class _progress_reporter:  # noqa: N801 - used like a function
 
     def __init__(self, total: int) -> None:
         self.bar = None
-        if sys.stderr.isatty():
+        if sys.stdout.isatty() and sys.stderr.isatty():  # a log file gets one line per frame
             from tqdm import tqdm
 
             self.bar = tqdm(total=total, unit="frame", file=sys.stderr)
