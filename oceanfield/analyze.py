@@ -1,0 +1,1720 @@
+"""The spectral analyzer: measure a height sequence's spectrum, statistics and wave timing.
+
+Any ocean can be checked — ours, another tool's render, a fluid simulation's surface
+cache — as long as it is a sequence of square height frames at a known frame rate over a
+known area. The analysis streams: each frame is read once, its 2-D spectrum accumulated
+and the low-wavenumber part of its transform kept (complex64) for the frequency analysis,
+so 240 frames of 512² never sit in memory as float64.
+
+What is measured
+----------------
+- the wavenumber spectrum, 2-D and omnidirectional (binned in |k|), averaged over frames;
+  frames that do not repeat across their edges (a crop never does) are Hann-windowed and
+  the window's energy loss divided out (by mean(w²));
+- the frequency–wavenumber spectrum from the 3-D transform over (t, y, x), Hann-windowed
+  in time, and from it the dispersion the waves actually obey: for each |k| annulus the
+  energy-weighted frequency of its spectral peak, fitted with ω² = g_eff·k·tanh(kh) by
+  weighted least squares; g_eff/g gives the scale the motion implies (Froude scaling);
+- Hs = 4√m0, Tp (time series and wavenumber peak), Tm01, Tm02, the mean direction of
+  travel and the directional spread (Kuik et al. 1988), the significant steepness and,
+  for lateral displacement maps, the share of the surface that folds (J < 0);
+- against a preset: the energy in half-octave bands around the target's peak.
+
+Conventions
+-----------
+Array columns are x, rows are y (texel (iy, ix) at (ix, iy)·L/N), directions are
+counter-clockwise from +x, the direction waves travel *towards*. A surface
+h = Σ ĥ e^{i(k·x − ωt)} holds waves running along +k. numpy's forward transforms use
+e^{−i(…)}, so the spatial transform of such a wave is a line at +k whose time transform
+peaks at the *negative* numpy frequency −ω: here ω_phys = −2π·fftfreq. Energy at
+(k, ω_phys > 0) travels towards k̂ (tested on the output, with plane waves and synthesised
+seas).
+
+References
+----------
+Harris, F. J. (1978). On the use of windows for harmonic analysis with the discrete
+Fourier transform. Proc. IEEE 66(1), 51–83 (Hann window, equivalent noise bandwidth 1.5 bins).
+Kuik, A. J., van Vledder, G. Ph. & Holthuijsen, L. H. (1988). A method for the routine
+analysis of pitch-and-roll buoy wave data. J. Phys. Oceanogr. 18, 1020–1034 (mean
+direction, directional spread σ = √(2(1 − r))).
+WMO (1998). Guide to Wave Analysis and Forecasting, WMO-No. 702 (Hm0 = 4√m0, moments).
+Froude scaling: model time ∝ √(model length) for gravity waves (Hughes, S. A. (1993),
+Physical Models and Laboratory Techniques in Coastal Engineering, World Scientific; the
+chapter on similitude, from memory). It follows from ω² = gk: at fixed g, ω ∝ k^½.
+"""
+
+from __future__ import annotations
+
+import argparse
+import glob
+import json
+import math
+import os
+import re
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any, Iterable, Sequence
+
+import numpy as np
+from numpy.typing import ArrayLike, NDArray
+
+from .constants import GRAVITY
+from .dispersion import angular_frequency, check_depth, group_velocity
+
+__all__ = [
+    "MIN_FRAMES",
+    "BandVerdict",
+    "DispersionFit",
+    "SequenceAnalysis",
+    "SequenceAccumulator",
+    "analyze_heights",
+    "band_comparison",
+    "directional_moments",
+    "fit_dispersion",
+    "format_verdict",
+    "frequency_spectrum",
+    "hann_window",
+    "lateral_jacobian",
+    "measure_dispersion",
+    "run_analyze_command",
+    "seam_ratio",
+    "expand_sequence",
+]
+
+#: Fewest frames analysed: the positive half of a T-point transform has T/2 − 1
+#: frequencies, and a peak centroid needs two bins either side of it and room below
+#: Nyquist; with fewer than 16 nothing is left to fit. 64 or more resolve a sea well.
+MIN_FRAMES = 16
+#: Smallest square region analysed, in texels (the synthesiser's own minimum tile).
+_MIN_SIZE = 16
+#: Frames are periodic when the RMS jump across their edges is at most this many times
+#: the RMS step between neighbouring texels. For a field that repeats, the seam is just
+#: another step (ratio ≈ 1, within about 10 % over the seams of a few 128² frames); for
+#: one that does not, the two edges are unrelated and the ratio is 1/√(1 − ρ1), with ρ1
+#: the correlation of neighbouring texels: above 1.4 once ρ1 > 0.5, i.e. once a wave spans
+#: more than six texels. Rougher fields leak little from their seams, window or not
+#: (common practice threshold).
+_SEAM_RATIO_PERIODIC = 1.4
+#: Frames pooled to decide periodicity before the first is transformed.
+_DECIDE_FRAMES = 4
+#: Memory for the kept part of each frame's transform (complex64), all frames together.
+_CUBE_BYTES = 768 * 2**20
+#: Work memory for one block of the time transform.
+_BLOCK_BYTES = 48 * 2**20
+#: Point time series for the frequency spectrum: at most this many points per side.
+_SERIES_POINTS = 64
+#: Half-width in frequency bins of the centroid around a spectral peak: the main lobe of
+#: the Hann window spans ±2 bins (Harris 1978), so ±2 holds all but its sidelobes.
+_PEAK_HALF_WIDTH = 2
+#: Annuli whose peak energy is at least this share of the strongest's count as energetic
+#: (the fit weights them by energy, so the weakest barely count; the floor keeps out
+#: numerical noise)...
+_ENERGETIC_FRACTION = 1e-3
+#: ...and hold a wave when at least this share of their energy lies within the peak's
+#: ±2 bins: a wave of one |k| has one |ω|, a static pattern or noise has none (common
+#: practice threshold).
+_CONCENTRATION = 0.5
+#: Annuli holding less than this share of the sequence's variance are ignored: float32
+#: round-off of a still surface, not waves.
+_MOVING_FLOOR = 1e-6
+#: Frequencies above this share of Nyquist (fps·π) count as aliased: near Nyquist a peak's
+#: window is cut off and above it the frequency folds (common practice margin).
+_ALIAS_MARGIN = 0.8
+#: Timing counts as right when g_eff/g is within ±5 % (±2.5 % in wave speed), below the
+#: speed changes a viewer notices in a wave's period (common practice), or within two
+#: standard errors of the fit when those are wider.
+_TIMING_TOLERANCE = 0.05
+#: Half-octave band centres around the target's peak, in ωp, from 0.5 to 4.
+_BAND_EXPONENTS = (-2, -1, 0, 1, 2, 3, 4)
+#: A band is within expectation within ±25 % or three standard errors of its sampling
+#: error if larger (see `band_comparison`): seven bands are judged at once and a band's
+#: energy is skewed like a χ² of few degrees of freedom, so two would flag a correct sea
+#: too often (common practice).
+_BAND_TOLERANCE = 0.25
+_BAND_ERRORS = 3.0
+#: Bands holding less than this share of the target's variance on both sides are negligible.
+_NEGLIGIBLE_BAND = 1e-3
+#: Hann equivalent noise bandwidth in bins (Harris 1978, Table 1): neighbouring bins of a
+#: windowed transform share information, which widens the sampling error by about this
+#: factor per windowed dimension in variance.
+_HANN_ENBW = 1.5
+#: Lattice steps from k = 0 that a windowed spectrum cannot separate from the mean.
+_WINDOWED_MIN_INDEX = 2.5
+#: Directions in the polar histogram of the report.
+_DIRECTION_BINS = 36
+
+
+# -- results -----------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class DispersionFit:
+    """The dispersion relation a sequence obeys, against the one declared.
+
+    Attributes
+    ----------
+    g_ratio : float
+        g_eff/g from the fit of ω² = g_eff·k·tanh(kh) (nan when not measurable).
+    g_ratio_error : float
+        Its standard error from the fit's residuals.
+    scale_factor : float
+        g/g_eff: the surface moves like one this many times its declared size.
+    playback_speed : float
+        √(g/g_eff): the playback speed that makes the motion right for the declared size
+        (Froude scaling, time ∝ √length); below 1 means slow down.
+    depth : float
+        Depth used in the fit, metres (inf = deep).
+    gravity : float
+        Declared gravity, m/s².
+    status : str
+        ``ok``, ``too fast``, ``too slow`` or ``not measurable``.
+    bins_used, bins_energetic, bins_aliased, bins_too_slow : int
+        |k| annuli in the fit; holding at least 0.1 % of the strongest annulus's energy,
+        half of it at one frequency; energetic but excluded because their declared or
+        measured frequency is near or above Nyquist; energetic but too slow for the
+        sequence's length to resolve.
+    aliased_energy_fraction : float
+        Share of the energetic annuli's energy in aliased ones.
+    k_low, k_high : float
+        Wavenumber range of the fit, rad/m.
+    g_ratio_low, g_ratio_high : float
+        g_eff/g over the lower and upper halves of that range (a trend means the declared
+        depth is wrong: shallow water slows the long waves).
+    wavenumbers, frequencies, energies : ndarray
+        Per annulus: energy-weighted |k| (rad/m), measured peak frequency (rad/s, nan
+        where unresolved) and the energy around the peak (m²).
+    used, aliased, resolved : ndarray of bool
+        Which annuli entered the fit; which were left out as aliased; whose peak lies at
+        least 3 frequency bins from zero (there the window keeps waves running towards
+        +k̂ apart from those running towards −k̂).
+    """
+
+    g_ratio: float
+    g_ratio_error: float
+    scale_factor: float
+    playback_speed: float
+    depth: float
+    gravity: float
+    status: str
+    bins_used: int
+    bins_energetic: int
+    bins_aliased: int
+    bins_too_slow: int
+    aliased_energy_fraction: float
+    k_low: float
+    k_high: float
+    g_ratio_low: float
+    g_ratio_high: float
+    wavenumbers: NDArray[np.float64] = field(repr=False)
+    frequencies: NDArray[np.float64] = field(repr=False)
+    energies: NDArray[np.float64] = field(repr=False)
+    used: NDArray[np.bool_] = field(repr=False)
+    aliased: NDArray[np.bool_] = field(repr=False)
+    resolved: NDArray[np.bool_] = field(repr=False)
+
+
+@dataclass(frozen=True)
+class BandVerdict:
+    """Energy in one frequency band, measured against a target spectrum.
+
+    The band is [omega_low, omega_high) rad/s, measured as the wavenumbers the target's
+    dispersion maps it to, [k_low, k_high) rad/m, so that the comparison is one of
+    spectral shape alone, independent of the timing (checked separately).
+    """
+
+    centre: float  # band centre in units of the target's ωp
+    omega_low: float
+    omega_high: float
+    k_low: float
+    k_high: float
+    measured: float  # m²
+    target: float  # m²
+    ratio: float  # measured / target (inf when the target holds nothing)
+    tolerance: float  # relative: ok within 1 ± tolerance
+    verdict: str  # ok | too much | too little | negligible | not resolved
+    partial: bool  # the band reaches beyond the wavenumbers the frames resolve
+
+
+@dataclass(frozen=True)
+class SequenceAnalysis:
+    """Everything measured on a height sequence (SI units; angles in radians, the mean
+    direction in (−π, π] counter-clockwise from +x, the direction waves travel towards;
+    `to_dict` gives it in degrees from 0 to 360)."""
+
+    frames: int
+    resolution: int
+    size: float
+    fps: float
+    periodic: bool
+    seam_ratio: float
+    m0: float
+    hs: float
+    tp: float
+    tp_from_wavenumber: float
+    tm01: float
+    tm02: float
+    mean_direction: float
+    directional_spread: float
+    significant_steepness: float
+    folded_fraction: float | None
+    dispersion: DispersionFit
+    bands: tuple[BandVerdict, ...] | None
+    nyquist_frequency: float
+    frequency_resolution: float
+    wavenumber_resolution: float
+    analysed_wavenumber: float
+    # spectra, for reports
+    wavenumbers: NDArray[np.float64] = field(repr=False)
+    wavenumber_spectrum: NDArray[np.float64] = field(repr=False)
+    frequencies: NDArray[np.float64] = field(repr=False)
+    frequency_spectrum: NDArray[np.float64] = field(repr=False)
+    annulus_power: NDArray[np.float64] = field(repr=False)
+    direction_bins: NDArray[np.float64] = field(repr=False)
+    direction_energy: NDArray[np.float64] = field(repr=False)
+    target_spectrum: NDArray[np.float64] | None = field(default=None, repr=False)
+    target_hs: float | None = None
+    target_tp: float | None = None
+    notes: tuple[str, ...] = ()
+
+    def to_dict(self) -> dict[str, Any]:
+        """Every figure as plain JSON-ready values; angles in degrees (keys say so)."""
+        fit = self.dispersion
+        data: dict[str, Any] = {
+            "frames": self.frames,
+            "resolution": self.resolution,
+            "size_m": self.size,
+            "fps": self.fps,
+            "duration_s": self.frames / self.fps,
+            "periodic": self.periodic,
+            "seam_ratio": self.seam_ratio,
+            "m0_m2": self.m0,
+            "hs_m": self.hs,
+            "tp_s": self.tp,
+            "tp_from_wavenumber_s": self.tp_from_wavenumber,
+            "tm01_s": self.tm01,
+            "tm02_s": self.tm02,
+            "towards_deg": math.degrees(self.mean_direction) % 360.0,
+            "directional_spread_deg": math.degrees(self.directional_spread),
+            "significant_steepness": self.significant_steepness,
+            "folded_fraction": self.folded_fraction,
+            "nyquist_frequency_radps": self.nyquist_frequency,
+            "frequency_resolution_radps": self.frequency_resolution,
+            "wavenumber_resolution_radpm": self.wavenumber_resolution,
+            "analysed_wavenumber_radpm": self.analysed_wavenumber,
+            "dispersion": {
+                "g_eff_over_g": fit.g_ratio,
+                "g_eff_over_g_error": fit.g_ratio_error,
+                "scale_factor": fit.scale_factor,
+                "playback_speed": fit.playback_speed,
+                "status": fit.status,
+                "depth_m": fit.depth,
+                "gravity_mps2": fit.gravity,
+                "bins_used": fit.bins_used,
+                "bins_energetic": fit.bins_energetic,
+                "bins_aliased": fit.bins_aliased,
+                "bins_too_slow": fit.bins_too_slow,
+                "aliased_energy_fraction": fit.aliased_energy_fraction,
+                "k_low_radpm": fit.k_low,
+                "k_high_radpm": fit.k_high,
+                "g_eff_over_g_low_half": fit.g_ratio_low,
+                "g_eff_over_g_high_half": fit.g_ratio_high,
+            },
+            "target_hs_m": self.target_hs,
+            "target_tp_s": self.target_tp,
+            "bands": None if self.bands is None else [
+                {
+                    "centre_over_peak": band.centre,
+                    "omega_low_radps": band.omega_low,
+                    "omega_high_radps": band.omega_high,
+                    "k_low_radpm": band.k_low,
+                    "k_high_radpm": band.k_high,
+                    "measured_m2": band.measured,
+                    "target_m2": band.target,
+                    "ratio": band.ratio,
+                    "tolerance": band.tolerance,
+                    "verdict": band.verdict,
+                    "partial": band.partial,
+                }
+                for band in self.bands
+            ],
+            "wavenumber_spectrum": {
+                "k_radpm": self.wavenumbers.tolist(),
+                "density_m3": self.wavenumber_spectrum.tolist(),
+            },
+            "frequency_spectrum": {
+                "omega_radps": self.frequencies.tolist(),
+                "density_m2s": self.frequency_spectrum.tolist(),
+            },
+            "notes": list(self.notes),
+        }
+        return _json_ready(data)
+
+
+def _json_ready(value: Any) -> Any:
+    """NaN and infinities become None (JSON has neither); numpy scalars become Python."""
+    if isinstance(value, dict):
+        return {key: _json_ready(item) for key, item in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_json_ready(item) for item in value]
+    if isinstance(value, (np.floating, float)):
+        number = float(value)
+        return number if math.isfinite(number) else None
+    if isinstance(value, np.integer):
+        return int(value)
+    if isinstance(value, np.bool_):
+        return bool(value)
+    return value
+
+
+# -- pure measurements -------------------------------------------------------------------
+
+
+def hann_window(n: int) -> NDArray[np.float64]:
+    """The periodic ("DFT-even") Hann window of n points, w_j = ½ − ½cos(2πj/n) (Harris 1978)."""
+    return 0.5 - 0.5 * np.cos(2.0 * np.pi * np.arange(n) / n)
+
+
+def seam_ratio(heights: ArrayLike) -> float:
+    """RMS jump across the edges of frames over the RMS step between neighbouring texels.
+
+    ``heights`` is one frame (n, n) or several (T, n, n), pooled. About 1 for a field that
+    repeats across its edges, above 1.4 for a resolved one that does not (see
+    `_SEAM_RATIO_PERIODIC`); nan for constant frames.
+    """
+    h = np.asarray(heights, dtype=np.float64)
+    inner = np.concatenate([np.diff(h, axis=-1).ravel(), np.diff(h, axis=-2).ravel()])
+    seam = np.concatenate([(h[..., :, 0] - h[..., :, -1]).ravel(), (h[..., 0, :] - h[..., -1, :]).ravel()])
+    inner_rms = math.sqrt(float(np.mean(inner**2)))
+    if inner_rms == 0.0:
+        return math.nan
+    return math.sqrt(float(np.mean(seam**2))) / inner_rms
+
+
+def frequency_spectrum(series: ArrayLike, fps: float) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+    """One-sided frequency spectrum S(ω) in m²·s/rad of time series, averaged over points.
+
+    Parameters
+    ----------
+    series : array_like, shape (T, P)
+        P time series of height in metres, T ≥ 2 samples at ``fps`` frames per second.
+    fps : float
+        Frames per second.
+
+    Returns
+    -------
+    omega : ndarray
+        ω_m = 2π m fps / T for m = 1 … T//2, rad/s.
+    density : ndarray
+        S(ω_m) with Σ S Δω ≈ the series' variance: Hann-windowed periodograms, divided by
+        mean(w²) for the window's energy loss (Harris 1978).
+    """
+    x = np.asarray(series, dtype=np.float64)
+    t = x.shape[0]
+    w = hann_window(t)
+    x = x - (w @ x) / w.sum()  # the window-weighted mean: no leakage from the mean
+    spectrum = np.fft.rfft(x * w[:, None], axis=0) / t
+    power = np.mean(np.abs(spectrum) ** 2, axis=1) / np.mean(w**2)
+    d_omega = 2.0 * math.pi * fps / t
+    one_sided = 2.0 * power[1:]
+    if t % 2 == 0:
+        one_sided[-1] = power[-1]  # the Nyquist bin has no mirror
+    omega = d_omega * np.arange(1, t // 2 + 1)
+    return omega, one_sided / d_omega
+
+
+def _peak(x: NDArray[np.float64], y: NDArray[np.float64]) -> float:
+    """Abscissa of the maximum of y(x) on a uniform grid, refined by a parabola through
+    the three samples around it (common practice); nan if y holds no energy."""
+    if y.size == 0 or not np.any(y > 0):
+        return math.nan
+    i = int(np.argmax(y))
+    if 0 < i < y.size - 1:
+        below, top, above = y[i - 1], y[i], y[i + 1]
+        curvature = below - 2.0 * top + above
+        offset = 0.5 * (below - above) / curvature if curvature < 0 else 0.0
+        return float(x[i] + offset * (x[i + 1] - x[i]))
+    return float(x[i])
+
+
+def directional_moments(directions: ArrayLike, energy: ArrayLike) -> tuple[float, float]:
+    """Mean direction and directional spread of energy at directions (radians).
+
+    a1 + i b1 = Σ E e^{iθ} / Σ E; mean direction atan2(b1, a1), spread
+    σ = √(2(1 − √(a1² + b1²))) (Kuik et al. 1988).
+    """
+    theta = np.asarray(directions, dtype=np.float64)
+    e = np.asarray(energy, dtype=np.float64)
+    total = float(e.sum())
+    if not total > 0:
+        return math.nan, math.nan
+    a1 = float(np.sum(e * np.cos(theta))) / total
+    b1 = float(np.sum(e * np.sin(theta))) / total
+    resultant = min(math.hypot(a1, b1), 1.0)
+    return math.atan2(b1, a1), math.sqrt(2.0 * (1.0 - resultant))
+
+
+def lateral_jacobian(
+    displacement_x: ArrayLike, displacement_y: ArrayLike, spacing: float, *, periodic: bool
+) -> NDArray[np.float64]:
+    """Jacobian determinant of the lateral map (x, y) → (x + Dx, y + Dy), dimensionless.
+
+    J = (1 + ∂Dx/∂x)(1 + ∂Dy/∂y) − (∂Dx/∂y)(∂Dy/∂x); J < 0 where the surface folds.
+    Derivatives are spectral for periodic frames, second-order central differences
+    otherwise. ``spacing`` is the texel size in metres, displacements in metres.
+    """
+    dx = np.asarray(displacement_x, dtype=np.float64)
+    dy = np.asarray(displacement_y, dtype=np.float64)
+    if periodic:
+        n_rows, n_cols = dx.shape
+        ky = 2.0 * np.pi * np.fft.fftfreq(n_rows, d=spacing)[:, None]
+        kx = 2.0 * np.pi * np.fft.rfftfreq(n_cols, d=spacing)[None, :]
+        if n_rows % 2 == 0:
+            ky[n_rows // 2] = 0.0  # the unpaired Nyquist row has no odd derivative
+        if n_cols % 2 == 0:
+            kx[:, -1] = 0.0
+        fx, fy = np.fft.rfft2(dx), np.fft.rfft2(dy)
+        shape = dx.shape
+        dxdx = np.fft.irfft2(1j * kx * fx, s=shape)
+        dxdy = np.fft.irfft2(1j * ky * fx, s=shape)
+        dydx = np.fft.irfft2(1j * kx * fy, s=shape)
+        dydy = np.fft.irfft2(1j * ky * fy, s=shape)
+    else:
+        dxdy, dxdx = np.gradient(dx, spacing)
+        dydy, dydx = np.gradient(dy, spacing)
+    return (1.0 + dxdx) * (1.0 + dydy) - dxdy * dydx
+
+
+def fit_dispersion(
+    wavenumbers: ArrayLike,
+    frequencies: ArrayLike,
+    weights: ArrayLike,
+    *,
+    depth: float = np.inf,
+) -> tuple[float, float]:
+    """Weighted least-squares g_eff of ω² = g_eff·k·tanh(kh), with its standard error.
+
+    Fitted as ω = a·s with s = √(k tanh kh) and a = √g_eff, so that the residuals are in
+    frequency, where the measurement error lies (a fraction of a frequency bin, the same
+    at every k). Returns (g_eff in m/s², its standard error); nan without points, and an error of nan
+    with one.
+    """
+    k = np.asarray(wavenumbers, dtype=np.float64)
+    omega = np.asarray(frequencies, dtype=np.float64)
+    w = np.asarray(weights, dtype=np.float64)
+    if k.size < 1 or not np.sum(w) > 0:
+        return math.nan, math.nan
+    s = np.sqrt(k * (np.tanh(k * depth) if np.isfinite(depth) else 1.0))
+    a = float(np.sum(w * omega * s) / np.sum(w * s * s))
+    residual = omega - a * s
+    effective = float(np.sum(w) ** 2 / np.sum(w**2))  # Kish's effective number of points
+    if effective > 1.0:
+        variance = float(np.sum(w * residual**2) / np.sum(w)) * effective / (effective - 1.0)
+        error_a = math.sqrt(variance * np.sum(w**2 * s * s)) / float(np.sum(w * s * s))
+    else:
+        error_a = math.nan
+    return a * a, 2.0 * a * error_a
+
+
+def measure_dispersion(
+    annulus_power: ArrayLike,
+    wavenumbers: ArrayLike,
+    omega: ArrayLike,
+    *,
+    nyquist: float,
+    depth: float = np.inf,
+    gravity: float = GRAVITY,
+    variance: float | None = None,
+) -> DispersionFit:
+    """The dispersion relation obeyed, from the power of each |k| annulus over frequency.
+
+    Parameters
+    ----------
+    annulus_power : array_like, shape (B, M)
+        Power of annulus b (|k| ≈ b Δk; b = 0 is the mean and is skipped) at the positive
+        frequencies ``omega``, m².
+    wavenumbers : array_like, shape (B,)
+        Energy-weighted |k| of each annulus, rad/m.
+    omega : array_like, shape (M,)
+        ω_m = m Δω, m = 1 … M, rad/s, below ``nyquist``.
+    nyquist : float
+        fps·π, rad/s.
+    depth : float
+        Depth for the fitted and the declared relation, metres (inf = deep).
+    gravity : float
+        Declared gravity, m/s².
+    variance : float, optional
+        The sequence's variance, m²: annuli with less than 1e-6 of it are round-off.
+
+    Notes
+    -----
+    For each annulus the peak bin is found and the frequency taken as the power-weighted
+    mean over the peak ± 2 bins (the Hann main lobe), which recovers a pure tone's
+    frequency to a small fraction of a bin. An annulus enters the fit when it holds at
+    least 0.1 % of the strongest annulus's energy around its peak, with at least half of
+    its own energy there (one |k|, one |ω|; and at least twice the share the ±2 bins
+    would hold of a flat spectrum, for short sequences), its peak lies at bin ≥ 3 (slower waves
+    are not resolved by the sequence's length), and both its declared and its measured
+    frequency are below 0.8·Nyquist; since ω(k) rises with k, a measured frequency that
+    falls with k means folding, and that annulus and all beyond it are excluded too.
+    """
+    depth = check_depth(depth)
+    power = np.asarray(annulus_power, dtype=np.float64)
+    k = np.asarray(wavenumbers, dtype=np.float64)
+    omega = np.asarray(omega, dtype=np.float64)
+    n_bins, n_freq = power.shape
+    d_omega = float(omega[0]) if omega.size else math.nan
+    measured = np.full(n_bins, np.nan)
+    energy = np.zeros(n_bins)
+    low_ok = np.zeros(n_bins, dtype=bool)
+    concentrated = np.zeros(n_bins, dtype=bool)
+    high_ok = np.zeros(n_bins, dtype=bool)
+    for b in range(1, n_bins):
+        row = power[b]
+        if not np.any(row > 0):
+            continue
+        p = int(np.argmax(row))
+        lo, hi = max(p - _PEAK_HALF_WIDTH, 0), min(p + _PEAK_HALF_WIDTH, n_freq - 1)
+        window = row[lo:hi + 1]
+        energy[b] = float(window.sum())
+        flat_share = (hi - lo + 1) / n_freq  # what the window holds of a featureless row
+        concentrated[b] = energy[b] >= max(_CONCENTRATION, 2.0 * flat_share) * float(row.sum())
+        measured[b] = float(np.sum(window * omega[lo:hi + 1]) / energy[b])
+        low_ok[b] = p - _PEAK_HALF_WIDTH >= 0  # peak at bin m = p + 1 ≥ 3
+        high_ok[b] = p + _PEAK_HALF_WIDTH <= n_freq - 1
+    declared = angular_frequency(np.maximum(k, 0.0), depth, gravity=gravity)
+    floor = _MOVING_FLOOR * variance if variance is not None else 0.0
+    energetic = concentrated & (energy >= _ENERGETIC_FRACTION * energy.max()) & (energy > floor)
+    energetic[0] = False
+    limit = _ALIAS_MARGIN * nyquist
+    aliased = energetic & ((declared > limit) | ~(measured <= limit) | ~high_ok)
+    # Folding: the measured ω must rise with k; where it falls by more than two bins past
+    # an energetic annulus, it has folded at Nyquist from there on.
+    previous = -math.inf
+    folded = False
+    for b in np.flatnonzero(energetic):
+        if folded or aliased[b]:
+            folded = folded or (measured[b] > limit)
+            aliased[b] = aliased[b] or folded
+            continue
+        if measured[b] < previous - 2.0 * d_omega:
+            folded = True
+            aliased[b] = True
+            continue
+        previous = max(previous, measured[b])
+    too_slow = energetic & ~aliased & ~low_ok
+    used = energetic & ~aliased & low_ok
+    total_energetic = float(energy[energetic].sum())
+    aliased_fraction = float(energy[aliased].sum()) / total_energetic if total_energetic > 0 else 0.0
+
+    g_eff, g_error = fit_dispersion(k[used], measured[used], energy[used], depth=depth)
+    g_low = g_high = math.nan
+    if used.sum() >= 4:
+        indices = np.flatnonzero(used)
+        half = indices.size // 2
+        for part, name in ((indices[:half], "low"), (indices[half:], "high")):
+            value, _ = fit_dispersion(k[part], measured[part], energy[part], depth=depth)
+            if name == "low":
+                g_low = value / gravity
+            else:
+                g_high = value / gravity
+    ratio = g_eff / gravity
+    error = g_error / gravity
+    if not math.isfinite(ratio) or ratio <= 0:
+        status = "not measurable"
+        ratio = error = math.nan
+    elif abs(ratio - 1.0) <= max(_TIMING_TOLERANCE, 2.0 * error if math.isfinite(error) else 0.0):
+        status = "ok"
+    else:
+        status = "too fast" if ratio > 1.0 else "too slow"
+    ks = k[used]
+    return DispersionFit(
+        g_ratio=ratio,
+        g_ratio_error=error,
+        scale_factor=1.0 / ratio if ratio > 0 else math.nan,
+        playback_speed=math.sqrt(1.0 / ratio) if ratio > 0 else math.nan,
+        depth=depth,
+        gravity=gravity,
+        status=status,
+        bins_used=int(used.sum()),
+        bins_energetic=int(energetic.sum()),
+        bins_aliased=int(aliased.sum()),
+        bins_too_slow=int(too_slow.sum()),
+        aliased_energy_fraction=aliased_fraction,
+        k_low=float(ks.min()) if ks.size else math.nan,
+        k_high=float(ks.max()) if ks.size else math.nan,
+        g_ratio_low=g_low,
+        g_ratio_high=g_high,
+        wavenumbers=k,
+        frequencies=measured,
+        energies=energy,
+        used=used,
+        aliased=aliased,
+        resolved=low_ok,
+    )
+
+
+def _target_omnidirectional(target, k: NDArray[np.float64]) -> NDArray[np.float64]:
+    """A target sea's omnidirectional wavenumber spectrum E(k) = S(ω(k))·dω/dk in m³/rad
+    (so that ∫E dk = m0); 0 at k = 0."""
+    kk = np.where(k > 0, k, 1.0)
+    density = target.frequency_spectrum(target.angular_frequency(kk)) * target.group_velocity(kk)
+    return np.where(k > 0, density, 0.0)
+
+
+def _target_isotropic_power(target, k: NDArray[np.float64], dk: float) -> NDArray[np.float64]:
+    """Variance a target sea puts on lattice points at |k| (m²), spread evenly over
+    direction: E(k)·Δk²/(2πk)."""
+    kk = np.where(k > 0, k, 1.0)
+    return np.where(k > 0, _target_omnidirectional(target, k) * dk * dk / (2.0 * math.pi * kk), 0.0)
+
+
+def band_comparison(
+    power: ArrayLike,
+    wavenumber: ArrayLike,
+    weight: ArrayLike,
+    dk: float,
+    target,
+    *,
+    k_max: float | None = None,
+    windowed: bool = False,
+) -> tuple[BandVerdict, ...]:
+    """Energy per half-octave band around the target's peak, measured against the target.
+
+    Parameters
+    ----------
+    power : array_like
+        Measured variance on each lattice point, m² (any shape; flattened).
+    wavenumber : array_like
+        |k| of each point, rad/m.
+    weight : array_like
+        How many lattice points each stands for (2 for a point of a half-plane whose
+        mirror −k is left out, 1 otherwise).
+    dk : float
+        Lattice spacing 2π/L, rad/m.
+    target : SeaState
+        The sea it should be.
+    k_max : float, optional
+        Largest |k| compared, rad/m: the radius of the full annuli, π n / L (the corners
+        of the lattice beyond it hold only part of each annulus, and a synthesiser may
+        leave them empty). Default: every point.
+    windowed : bool
+        Whether the measurement was windowed (widens the sampling error by the Hann
+        equivalent noise bandwidth, 1.5 bins per dimension, and leaves out |k| below
+        2.5 Δk, which the window mixes with the mean).
+
+    Returns
+    -------
+    tuple of BandVerdict
+        Bands centred at 0.5, 0.71, 1, 1.41, 2, 2.83 and 4 ωp, each half an octave wide.
+
+    Notes
+    -----
+    The target on each lattice point is the omnidirectional target spread evenly over
+    direction (E(k)Δk²/2πk), summed over the same points as the measurement, so the
+    tile's radial sampling is the same on both sides, whatever the sea's direction.
+
+    A random sea's band energy varies from one realisation to the next. On a lattice each
+    wave pair (k, −k) carries two independent complex Gaussian amplitudes, so its power P
+    (averaged over time) is a sum of two exponential variables of mean P̄/2: Var P = P̄²/2
+    and E P² = 3P̄²/2. The band sum B = Σ wP therefore has Var B = Σ w²P̄²/2 ≈ Σ w²P²/3,
+    estimated from the measured powers, so that a sea concentrated in few directions (few
+    lattice points) gets the wider tolerance it needs; a windowed measurement shares
+    information between neighbouring bins and widens it by the Hann equivalent noise
+    bandwidth (1.5 bins per dimension, Harris 1978). A band is "ok" within
+    ±max(25 %, 3 standard errors); time averaging of a sea whose amplitudes evolve only
+    narrows the true error, so the tolerance errs on the side of "ok".
+    """
+    p, k, w = (
+        np.ravel(a)
+        for a in np.broadcast_arrays(*(np.asarray(v, dtype=np.float64) for v in (power, wavenumber, weight)))
+    )
+    if k_max is None:
+        k_max = float(k.max())
+    # A window spreads each wavenumber over ±2 lattice steps (the Hann main lobe): the
+    # first two annuli of a windowed measurement hold the mean's and the longest waves'
+    # leakage, not their own energy.
+    k_min = _WINDOWED_MIN_INDEX * dk if windowed else 0.0
+    compared = (k <= k_max * (1.0 + 1e-12)) & (k >= k_min)
+    p, k, w = p[compared], k[compared], w[compared]
+    expected = _target_isotropic_power(target, k, dk)
+    total_target = target.moment(0)
+    peak = target.peak_frequency()
+    verdicts = []
+    for exponent in _BAND_EXPONENTS:
+        centre = 2.0 ** (exponent / 2.0)
+        w_low, w_high = peak * centre * 2.0 ** -0.25, peak * centre * 2.0 ** 0.25
+        k_low, k_high = (float(v) for v in target.wavenumber(np.array([w_low, w_high])))
+        inside = (k >= k_low) & (k < k_high)
+        measured = float(np.sum(w[inside] * p[inside]))
+        expect = float(np.sum(w[inside] * expected[inside]))
+        if not inside.any() or k_low > k_max:
+            verdicts.append(BandVerdict(centre, w_low, w_high, k_low, k_high, measured, expect,
+                                        math.nan, math.nan, "not resolved", True))
+            continue
+        # Sampling error from the measured powers (see Notes): Var ≈ Σ w²P²/3.
+        spread = math.sqrt(float(np.sum((w[inside] * p[inside]) ** 2)) / 3.0)
+        if windowed:
+            spread *= _HANN_ENBW  # variance × ENBW² over two windowed dimensions
+        relative_error = spread / measured if measured > 0 else math.inf
+        tolerance = max(_BAND_TOLERANCE, _BAND_ERRORS * relative_error)
+        ratio = measured / expect if expect > 0 else (math.inf if measured > 0 else math.nan)
+        if expect < _NEGLIGIBLE_BAND * total_target and measured < _NEGLIGIBLE_BAND * total_target:
+            verdict = "negligible"
+        elif ratio > 1.0 + tolerance:
+            verdict = "too much"
+        elif ratio < 1.0 - min(tolerance, 0.9):
+            verdict = "too little"
+        else:
+            verdict = "ok"
+        partial = k_high > k_max or k_low < max(dk, k_min)
+        verdicts.append(BandVerdict(centre, w_low, w_high, k_low, k_high, measured, expect,
+                                    ratio, tolerance, verdict, partial))
+    return tuple(verdicts)
+
+
+# -- the streaming accumulator -----------------------------------------------------------
+
+
+class SequenceAccumulator:
+    """Accumulates a height sequence frame by frame; :meth:`finish` measures it.
+
+    Each :meth:`add` transforms one frame (windowed unless periodic), adds its power to
+    the 2-D spectrum, keeps the low-wavenumber part of its transform for the 3-D
+    analysis and samples a grid of points for the frequency spectrum. Memory: about
+    ``frame_count × (2K)(K+1) × 8`` bytes for the kept transforms, with K the largest
+    wavenumber index kept (all of the lattice when that fits in ``max_cube_bytes``).
+
+    Parameters
+    ----------
+    frame_count : int
+        Frames that will be added (≥ `MIN_FRAMES`).
+    resolution : int
+        Texels per side n of every frame (≥ 16).
+    size : float
+        Side of the area a frame covers, metres.
+    fps : float
+        Frames per second.
+    periodic : bool or None
+        Whether frames repeat across their edges; None decides from the first frame
+        (`seam_ratio` of the first 4 frames ≤ 1.4). Non-periodic frames are Hann-windowed.
+    max_cube_bytes : int
+        Memory for the kept transforms.
+    fft_workers : int or None
+        Threads for the transforms (None: all cores).
+
+    Examples
+    --------
+    >>> acc = SequenceAccumulator(64, 128, 200.0, 24.0)      # doctest: +SKIP
+    >>> for frame in frames: acc.add(frame)                   # doctest: +SKIP
+    >>> result = acc.finish(depth=5.0)                        # doctest: +SKIP
+    """
+
+    def __init__(
+        self,
+        frame_count: int,
+        resolution: int,
+        size: float,
+        fps: float,
+        *,
+        periodic: bool | None = None,
+        max_cube_bytes: int = _CUBE_BYTES,
+        fft_workers: int | None = None,
+    ) -> None:
+        if isinstance(frame_count, bool) or not isinstance(frame_count, (int, np.integer)) or frame_count < MIN_FRAMES:
+            raise ValueError(
+                f"frames: {frame_count!r} frames is too few; the frequency analysis needs at least "
+                f"{MIN_FRAMES} (64 or more resolve a sea well)"
+            )
+        if isinstance(resolution, bool) or not isinstance(resolution, (int, np.integer)) or resolution < _MIN_SIZE:
+            raise ValueError(f"resolution: {resolution!r} is not allowed; allowed: an integer >= {_MIN_SIZE} texels")
+        _check_positive("tile size", size, "metres")
+        _check_positive("fps", fps, "frames per second")
+        self.frame_count = int(frame_count)
+        self.resolution = n = int(resolution)
+        self.size = float(size)
+        self.fps = float(fps)
+        self.periodic = periodic
+        self.fft_workers = fft_workers if fft_workers is not None else (os.cpu_count() or 1)
+        self.seam_ratio = math.nan
+        # Kept wavenumber indices: |ny| ≤ K rows, 0 ≤ nx ≤ K columns of the half plane.
+        half = n // 2
+        per_index = 2.0 * self.frame_count * 8.0
+        keep = int(min(half, max(8, math.isqrt(int(max_cube_bytes / per_index)))))
+        rows = np.fft.fftfreq(n, d=1.0 / n).astype(np.int64)
+        self._rows = np.flatnonzero(np.abs(rows) <= keep)
+        self._cols = keep + 1
+        self.kept_index = keep
+        self._cube = np.empty((self.frame_count, self._rows.size, self._cols), dtype=np.complex64)
+        self._power = np.zeros((n, n // 2 + 1), dtype=np.float64)
+        self._stride = max(1, -(-n // _SERIES_POINTS))
+        points = len(range(0, n, self._stride))
+        self._series = np.empty((self.frame_count, points * points), dtype=np.float32)
+        self._means = np.empty(self.frame_count)
+        self._variances = np.empty(self.frame_count)
+        self._folded: list[float] = []
+        self._window: NDArray[np.float32] | None = None
+        self._pending: list = []
+        self._decided = False
+        self._count = 0
+
+    # -- per frame ---------------------------------------------------------------------
+    def add(self, height: ArrayLike, lateral: tuple[ArrayLike, ArrayLike] | None = None) -> None:
+        """Add the next frame: height in metres, (n, n); optionally the lateral
+        displacement (Dx, Dy) in metres along x (columns) and y (rows), for folding.
+
+        The first few frames are held until periodicity is decided (`seam_ratio` pooled
+        over 4 frames), then every frame is transformed as it arrives.
+        """
+        received = self._count + len(self._pending)
+        if received >= self.frame_count:
+            raise ValueError(f"frames: more than the {self.frame_count} frames announced")
+        n = self.resolution
+        h = np.array(height, dtype=np.float32)
+        if h.shape != (n, n):
+            raise ValueError(f"frame {received}: shape {h.shape}; expected ({n}, {n}) like the first")
+        if not np.all(np.isfinite(h)):
+            raise ValueError(f"frame {received}: holds NaN or infinite heights")
+        if self._decided:
+            self._add(h, lateral)
+            return
+        # Pool the first few frames to decide whether the frames repeat across their edges.
+        self._pending.append((h, None if lateral is None else (np.array(lateral[0]), np.array(lateral[1]))))
+        if len(self._pending) == min(_DECIDE_FRAMES, self.frame_count):
+            self._decide()
+
+    def _decide(self) -> None:
+        n = self.resolution
+        self.seam_ratio = seam_ratio(np.stack([h for h, _ in self._pending]))
+        if self.periodic is None:
+            self.periodic = bool(self.seam_ratio <= _SEAM_RATIO_PERIODIC)
+        if not self.periodic:
+            line = hann_window(n)
+            self._window = np.outer(line, line).astype(np.float32)
+        self._decided = True
+        pending, self._pending = self._pending, []
+        for h, lateral in pending:
+            self._add(h, lateral)
+
+    def _add(self, h: NDArray[np.float32], lateral) -> None:
+        import scipy.fft
+
+        n = self.resolution
+        mean = float(np.mean(h, dtype=np.float64))
+        self._means[self._count] = mean
+        self._variances[self._count] = float(np.mean((h - mean) ** 2, dtype=np.float64))
+        if self._window is None:
+            x = h - np.float32(mean)
+        else:
+            w = self._window
+            weighted_mean = float(np.sum(h * w, dtype=np.float64) / np.sum(w, dtype=np.float64))
+            x = (h - np.float32(weighted_mean)) * w
+        spectrum = scipy.fft.rfft2(x, workers=self.fft_workers)
+        spectrum /= np.float32(n * n)
+        self._power += spectrum.real.astype(np.float64) ** 2 + spectrum.imag.astype(np.float64) ** 2
+        self._cube[self._count] = spectrum[self._rows, : self._cols]
+        self._series[self._count] = h[:: self._stride, :: self._stride].ravel()
+        if lateral is not None:
+            jac = lateral_jacobian(lateral[0], lateral[1], self.size / n, periodic=bool(self.periodic))
+            self._folded.append(float(np.mean(jac < 0.0)))
+        self._count += 1
+
+    # -- the measurement ---------------------------------------------------------------
+    def finish(self, *, depth: float = np.inf, gravity: float = GRAVITY, target=None) -> SequenceAnalysis:
+        """Measure the sequence.
+
+        Parameters
+        ----------
+        depth : float
+            Water depth in metres for the dispersion relation (inf = deep).
+        gravity : float
+            Declared gravity, m/s².
+        target : SeaState, optional
+            A sea to compare the spectrum with, band by band.
+        """
+        if self._count != self.frame_count:
+            raise ValueError(f"frames: {self._count} added of the {self.frame_count} announced")
+        depth = check_depth(depth)
+        n, t = self.resolution, self.frame_count
+        dk = 2.0 * math.pi / self.size
+        notes: list[str] = []
+
+        # Variance over all frames about the grand mean (per-frame means may differ in a
+        # crop, and that difference is wave energy too).
+        m0 = float(np.mean(self._variances) + np.var(self._means))
+        hs = 4.0 * math.sqrt(m0)
+
+        # Wavenumber spectrum on the half plane, window loss divided out.
+        window_power = 1.0 if self._window is None else float(np.mean(self._window.astype(np.float64) ** 2))
+        power = self._power / (t * window_power)
+        ny = np.fft.fftfreq(n, d=1.0 / n)[:, None]
+        nx = np.arange(n // 2 + 1)[None, :]
+        radius = np.hypot(nx, ny)
+        weight = np.where((nx == 0) | ((n % 2 == 0) & (nx == n // 2)), 1.0, 2.0)
+        annulus = np.rint(radius).astype(np.int64)
+        n_annuli = n // 2 + 1
+        inside = annulus < n_annuli
+        omni = np.bincount(annulus[inside], weights=(weight * power)[inside], minlength=n_annuli)
+        k_bins = np.arange(n_annuli) * dk
+        density = omni / dk
+        # Tp from the wavenumber peak: S(ω) = E(k)/c_g at the annuli, peak in k, then ω(k).
+        c_g = group_velocity(np.where(k_bins > 0, k_bins, dk), depth, gravity=gravity)
+        first = 1 if self._window is None else math.ceil(_WINDOWED_MIN_INDEX)  # past the mean's leakage
+        k_peak = _peak(k_bins[first:], density[first:] / c_g[first:])
+        tp_k = 2.0 * math.pi / float(angular_frequency(k_peak, depth, gravity=gravity)) if k_peak > 0 else math.nan
+
+        # Frequency spectrum of point time series.
+        omega_t, s_omega = frequency_spectrum(self._series, self.fps)
+        d_omega = 2.0 * math.pi * self.fps / t
+        still = not float(np.sum(s_omega) * d_omega) > _MOVING_FLOOR * m0
+        w_peak = math.nan if still else _peak(omega_t, s_omega)
+        tp = 2.0 * math.pi / w_peak if w_peak > 0 else math.nan
+        moments = [float(np.sum(omega_t**order * s_omega) * d_omega) for order in (0, 1, 2)]
+        tm01 = 2.0 * math.pi * moments[0] / moments[1] if moments[1] > 0 and not still else math.nan
+        tm02 = 2.0 * math.pi * math.sqrt(moments[0] / moments[2]) if moments[2] > 0 and not still else math.nan
+        if still:
+            notes.append("the frames do not change over time: there are no moving waves to time")
+
+        # Frequency–wavenumber spectrum of the kept part of the lattice.
+        nyquist = math.pi * self.fps
+        cube = self._omega_k(dk)
+        fit = measure_dispersion(
+            cube["annulus_power"], cube["k_mean"], cube["omega"], nyquist=nyquist, depth=depth, gravity=gravity,
+            variance=m0,
+        )
+        duration = f"{t / self.fps:.3g} s"
+        mean_direction, spread, direction_energy, direction_notes = _directions(
+            cube, fit, self.kept_index, still, duration
+        )
+        notes += direction_notes
+
+        steepness = 2.0 * math.pi * hs / (gravity * tp * tp) if tp > 0 else math.nan
+        folded = float(np.mean(self._folded)) if self._folded else None
+
+        bands = None
+        target_spectrum = None
+        target_hs = target_tp = None
+        if target is not None:
+            target_stats = target.statistics()
+            target_hs, target_tp = target_stats.hs, target_stats.tp
+            bands = band_comparison(
+                power, radius * dk, weight, dk, target, k_max=n // 2 * dk, windowed=self._window is not None
+            )
+            target_spectrum = _target_omnidirectional(target, k_bins)
+
+        notes += _timing_notes(fit, w_peak, nyquist, self.fps, t)
+        if self.kept_index < n // 2:
+            notes.append(
+                f"the frequency analysis keeps wavenumbers up to {self.kept_index * dk:.3g} rad/m "
+                f"(of {n // 2 * dk:.3g}) to bound memory"
+            )
+
+        return SequenceAnalysis(
+            frames=t,
+            resolution=n,
+            size=self.size,
+            fps=self.fps,
+            periodic=bool(self.periodic),
+            seam_ratio=self.seam_ratio,
+            m0=m0,
+            hs=hs,
+            tp=tp,
+            tp_from_wavenumber=tp_k,
+            tm01=tm01,
+            tm02=tm02,
+            mean_direction=mean_direction,
+            directional_spread=spread,
+            significant_steepness=steepness,
+            folded_fraction=folded,
+            dispersion=fit,
+            bands=bands,
+            nyquist_frequency=nyquist,
+            frequency_resolution=d_omega,
+            wavenumber_resolution=dk,
+            analysed_wavenumber=self.kept_index * dk,
+            wavenumbers=k_bins[1:],
+            wavenumber_spectrum=density[1:],
+            frequencies=omega_t,
+            frequency_spectrum=s_omega,
+            annulus_power=cube["annulus_power"],
+            direction_bins=0.5 * (_direction_edges()[1:] + _direction_edges()[:-1]),
+            direction_energy=direction_energy,
+            target_spectrum=None if target_spectrum is None else target_spectrum[1:],
+            target_hs=target_hs,
+            target_tp=target_tp,
+            notes=tuple(notes),
+        )
+
+    def _omega_k(self, dk: float) -> dict[str, NDArray]:
+        """Time transform of the kept lattice, block by block, reduced to what is measured:
+        per annulus and positive frequency the power; per lattice point the power running
+        towards +k̂ and towards −k̂."""
+        import scipy.fft
+        import scipy.sparse
+
+        t, n = self.frame_count, self.resolution
+        rows = np.fft.fftfreq(n, d=1.0 / n)[self._rows]
+        cols = np.arange(self._cols)
+        ny, nx = np.meshgrid(rows, cols, indexing="ij")
+        radius = np.hypot(nx, ny)
+        # Each half-plane point stands for itself and its mirror −k (kept as its
+        # negative frequencies); the self-mirrored columns nx = 0 (and n/2) hold both.
+        half_weight = np.where((nx == 0) | ((n % 2 == 0) & (nx == n // 2)), 0.5, 1.0)
+        point_annulus = np.rint(radius).astype(np.int64)
+        n_annuli = self.kept_index + 1
+        n_freq = (t - 1) // 2  # positive frequencies below Nyquist
+        positive = t - np.arange(1, n_freq + 1)  # numpy index of ω_phys = +m Δω
+        negative = np.arange(1, n_freq + 1)  # numpy index of ω_phys = −m Δω
+        w_t = hann_window(t).astype(np.float32)
+        w_power = float(np.mean(w_t.astype(np.float64) ** 2))
+        annulus_power = np.zeros((n_annuli, n_freq))
+        forward = np.empty(radius.shape)
+        backward = np.empty(radius.shape)
+        per_row = t * self._cols * 8 * 3
+        block = max(1, _BLOCK_BYTES // per_row)
+        for start in range(0, rows.size, block):
+            stop = min(start + block, rows.size)
+            chunk = self._cube[:, start:stop, :]
+            mean = np.tensordot(w_t, chunk, axes=(0, 0)) / w_t.sum()
+            chunk = (chunk - mean[None]) * w_t[:, None, None]
+            spectrum = scipy.fft.fft(chunk, axis=0, workers=self.fft_workers, overwrite_x=True)
+            spectrum /= np.float32(t)
+            power = (spectrum.real**2 + spectrum.imag**2).astype(np.float64) / w_power
+            fwd = power[positive].reshape(n_freq, -1)
+            bwd = power[negative].reshape(n_freq, -1)
+            hw = half_weight[start:stop].ravel()
+            forward[start:stop] = (fwd.sum(axis=0) * hw).reshape(stop - start, -1)
+            backward[start:stop] = (bwd.sum(axis=0) * hw).reshape(stop - start, -1)
+            bins = point_annulus[start:stop].ravel()
+            within = bins < n_annuli
+            onehot = scipy.sparse.csr_matrix(
+                (hw[within], (bins[within], np.flatnonzero(within))), shape=(n_annuli, bins.size)
+            )
+            annulus_power += onehot @ (fwd + bwd).T
+        total = forward + backward
+        within = point_annulus < n_annuli
+        sums = np.bincount(point_annulus[within], weights=total[within], minlength=n_annuli)
+        k_sums = np.bincount(point_annulus[within], weights=(total * radius)[within], minlength=n_annuli)
+        k_mean = np.where(sums > 0, k_sums / np.where(sums > 0, sums, 1.0), np.arange(n_annuli)) * dk
+        return {
+            "annulus_power": annulus_power,
+            "k_mean": k_mean,
+            "omega": 2.0 * math.pi * self.fps / t * np.arange(1, n_freq + 1),
+            "point_annulus": point_annulus,
+            "theta": np.arctan2(ny, nx),
+            "forward": forward,
+            "backward": backward,
+        }
+
+
+def _direction_edges() -> NDArray[np.float64]:
+    """Edges of the direction bins of the polar histogram, radians."""
+    return np.linspace(-math.pi, math.pi, _DIRECTION_BINS + 1)
+
+
+def _directions(
+    cube: dict[str, NDArray], fit: DispersionFit, kept_index: int, still: bool, duration: str
+) -> tuple[float, float, NDArray[np.float64], list[str]]:
+    """Mean direction of travel, spread, energy per direction bin, and notes.
+
+    Only annuli below the first aliased one count (above it waves can appear in the
+    wrong half of the spectrum), and only those whose frequency is resolved: a wave
+    within 3 bins of ω = 0 leaks into the opposite half through the window and would
+    read as running both ways.
+    """
+    notes: list[str] = []
+    aliased = np.flatnonzero(fit.aliased)
+    cut = int(aliased.min()) - 1 if aliased.size else kept_index
+    annulus = cube["point_annulus"]
+    total = cube["forward"] + cube["backward"]
+    below_cut = (annulus >= 1) & (annulus <= cut)
+    keep = below_cut & fit.resolved[np.minimum(annulus, fit.resolved.size - 1)]
+    all_energy = float(np.sum(total[below_cut]))
+    kept_energy = float(np.sum(total[keep]))
+    if not still and not kept_energy > _MOVING_FLOOR * all_energy:
+        keep = below_cut
+        notes.append(
+            f"the waves are too slow for a {duration} sequence to tell which way they run: the directional "
+            f"spread reads wider than it is"
+        )
+    elif not still and kept_energy < 0.5 * all_energy:
+        notes.append(
+            f"most of the energy is in waves too slow for a {duration} sequence to tell which way they run; "
+            f"the direction comes from the {kept_energy / all_energy:.0%} that are resolved"
+        )
+    theta = np.concatenate([cube["theta"][keep], cube["theta"][keep] + math.pi])
+    energy = np.concatenate([cube["forward"][keep], cube["backward"][keep]])
+    if still:  # round-off has no direction
+        energy = np.zeros_like(energy)
+    mean, spread = directional_moments(theta, energy)
+    histogram = np.histogram(np.angle(np.exp(1j * theta)), bins=_direction_edges(), weights=energy)[0]
+    return mean, spread, histogram, notes
+
+
+def _timing_notes(fit: DispersionFit, peak: float, nyquist: float, fps: float, frames: int) -> list[str]:
+    """What limited the timing measurement: aliasing, a short sequence."""
+    notes = []
+    if fit.bins_aliased and fit.bins_aliased >= max(1, fit.bins_energetic // 2):
+        notes.append(
+            f"{fit.bins_aliased} of {fit.bins_energetic} energetic wavenumber bins "
+            f"({fit.aliased_energy_fraction:.0%} of their energy) are aliased: their frequency is near or "
+            f"above Nyquist ({nyquist:.3g} rad/s at {fps:g} fps) and folds; the timing rests on the rest. "
+            f"A higher frame rate would use them"
+        )
+    elif fit.bins_aliased:
+        notes.append(
+            f"{fit.bins_aliased} energetic wavenumber bins above {fit.k_high:.3g} rad/m are left out of the "
+            f"timing fit: their frequency is near or above Nyquist ({nyquist:.3g} rad/s)"
+        )
+    if peak > _ALIAS_MARGIN * nyquist:
+        notes.append(
+            f"the time series peaks at {peak:.3g} rad/s, near Nyquist ({nyquist:.3g} rad/s at {fps:g} fps): "
+            f"Tp may be aliased"
+        )
+    if fit.bins_too_slow:
+        notes.append(
+            f"{fit.bins_too_slow} energetic wavenumber bins are too slow for a {frames / fps:.3g} s sequence "
+            f"to resolve (under 3 frequency bins); a longer sequence would use them"
+        )
+    return notes
+
+
+def analyze_heights(
+    frames: ArrayLike | Iterable[ArrayLike],
+    size: float,
+    fps: float,
+    *,
+    depth: float = np.inf,
+    gravity: float = GRAVITY,
+    target=None,
+    periodic: bool | None = None,
+    lateral: Iterable[tuple[ArrayLike, ArrayLike]] | None = None,
+    max_cube_bytes: int = _CUBE_BYTES,
+) -> SequenceAnalysis:
+    """Measure a height sequence held in memory (or any sequence of frames).
+
+    Parameters
+    ----------
+    frames : array_like, shape (T, n, n), or a sized sequence of (n, n) arrays
+        Height in metres, rows along y, columns along x.
+    size : float
+        Side of the area a frame covers, metres.
+    fps : float
+        Frames per second.
+    depth, gravity, target
+        As in :meth:`SequenceAccumulator.finish`.
+    periodic : bool or None
+        Whether the frames repeat across their edges (None: detect).
+    lateral : sequence of (Dx, Dy), optional
+        Lateral displacement of each frame in metres, for the folded fraction.
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> x = np.arange(64) * 100.0 / 64
+    >>> k = 2 * np.pi * 4 / 100.0; w = np.sqrt(9.80665 * k)
+    >>> frames = [np.cos(k * x[None, :] - w * i / 10.0) * np.ones((64, 1)) for i in range(64)]
+    >>> result = analyze_heights(frames, 100.0, 10.0)
+    >>> round(result.hs, 2), round(float(np.degrees(result.mean_direction)))
+    (2.83, 0)
+    """
+    sequence = frames if hasattr(frames, "__len__") else list(frames)
+    count = len(sequence)  # type: ignore[arg-type]
+    if count < MIN_FRAMES:
+        raise ValueError(
+            f"frames: {count} frames is too few; the frequency analysis needs at least {MIN_FRAMES} "
+            f"(64 or more resolve a sea well)"
+        )
+    first = np.asarray(sequence[0])  # type: ignore[index]
+    if first.ndim != 2 or first.shape[0] != first.shape[1]:
+        raise ValueError(f"frames: frame shape {first.shape}; expected square (n, n) frames")
+    accumulator = SequenceAccumulator(
+        count, first.shape[0], size, fps, periodic=periodic, max_cube_bytes=max_cube_bytes
+    )
+    laterals = list(lateral) if lateral is not None else None
+    if laterals is not None and len(laterals) != count:
+        raise ValueError(f"lateral: {len(laterals)} frames for {count} height frames; expected one each")
+    for index in range(count):
+        accumulator.add(sequence[index], None if laterals is None else laterals[index])  # type: ignore[index]
+    return accumulator.finish(depth=depth, gravity=gravity, target=target)
+
+
+def _check_positive(name: str, value: object, unit: str) -> float:
+    if isinstance(value, bool) or not isinstance(value, (int, float, np.integer, np.floating)):
+        raise ValueError(f"{name}: {value!r} is not a number; allowed: a finite number > 0 {unit}")
+    number = float(value)
+    if not (math.isfinite(number) and number > 0):
+        raise ValueError(f"{name}: {value!r} is not allowed; allowed: a finite number > 0 {unit}")
+    return number
+
+
+# -- the verdict -------------------------------------------------------------------------
+
+
+def _depth_text(depth: float) -> str:
+    return "deep water" if not math.isfinite(depth) else f"depth {depth:g} m"
+
+
+def _retime_text(speed: float) -> str:
+    """How to retime footage whose correct playback speed is ``speed`` (× real time)."""
+    if speed < 1.0:
+        return f"slow it down by ×{1.0 / speed:.2f} (play at {speed:.2f}× speed)"
+    return f"speed it up by ×{speed:.2f} (play at {speed:.2f}× speed)"
+
+
+def _timing_lines(result: SequenceAnalysis) -> list[str]:
+    fit = result.dispersion
+    if fit.status == "not measurable":
+        reason = (
+            "no wavenumber bin holds resolved, unaliased waves"
+            if fit.bins_energetic else "the frames hold no moving waves"
+        )
+        return [f"Timing    not measurable: {reason}."]
+    error = f" ± {fit.g_ratio_error:.3f}" if math.isfinite(fit.g_ratio_error) else ""
+    head = (
+        f"Timing    g_eff/g = {fit.g_ratio:.3f}{error} from {fit.bins_used} wavenumber bins "
+        f"({fit.k_low:.3g}–{fit.k_high:.3g} rad/m, {_depth_text(fit.depth)})"
+    )
+    if fit.status == "ok":
+        lines = [head + ": OK", "          The waves move at the right speed for their size."]
+    else:
+        speed = math.sqrt(fit.g_ratio)  # wave speed against the declared relation, ω ∝ √g
+        declared = result.size
+        lines = [
+            head + ": WRONG TIMING",
+            f"          The waves run at ×{speed:.2f} the speed their wavelengths call for: the surface moves like "
+            f"one {fit.scale_factor:.3g}× its declared size",
+            f"          (the {declared:.4g} m area behaves as {declared * fit.scale_factor:.4g} m). "
+            f"To correct it, {_retime_text(fit.playback_speed)}: Froude scaling, time ∝ √length.",
+        ]
+    if (
+        math.isfinite(fit.g_ratio_low) and math.isfinite(fit.g_ratio_high)
+        and abs(fit.g_ratio_low / fit.g_ratio_high - 1.0) > 2.0 * _TIMING_TOLERANCE
+    ):
+        lines.append(
+            f"          g_eff/g changes across the range ({fit.g_ratio_low:.3f} on the longer waves, "
+            f"{fit.g_ratio_high:.3f} on the shorter): the depth is probably not {_depth_text(fit.depth)} "
+            f"(shallow water slows the long waves); try --depth."
+        )
+    return lines
+
+
+def _band_lines(result: SequenceAnalysis, against: str | None) -> list[str]:
+    if result.bands is None:
+        return []
+    name = f"'{against}'" if against else "the target"
+    lines = [
+        f"Spectrum  against {name} (Hs {result.target_hs:.3g} m, Tp {result.target_tp:.3g} s): "
+        f"measured Hs is {_percent(result.hs / result.target_hs - 1.0)} of the target's",
+        "          energy per half-octave band around the target's peak ωp (as the wavenumbers of its dispersion):",
+    ]
+    for band in result.bands:
+        label = f"{band.centre:4.2f} ωp  {band.omega_low:.3g}–{band.omega_high:.3g} rad/s"
+        if band.verdict == "not resolved":
+            lines.append(f"          {label:<28} not resolved by the frames")
+            continue
+        ratio = f"×{band.ratio:.3g}" if math.isfinite(band.ratio) else "—"
+        verdict = band.verdict if band.verdict in ("negligible",) else (
+            f"{band.verdict} (ok within ±{band.tolerance:.0%})"
+        )
+        partial = " [partly beyond the frames' resolution]" if band.partial else ""
+        lines.append(
+            f"          {label:<28} {band.measured:10.4g} / {band.target:10.4g} m²  {ratio:>8}  {verdict}{partial}"
+        )
+    return lines
+
+
+def _num(value: float | None, spec: str = "#.3g") -> str:
+    """A figure for the verdict, or "n/a" where it could not be measured."""
+    if value is None or not math.isfinite(value):
+        return "n/a"
+    return format(value, spec)
+
+
+def _percent(value: float) -> str:
+    return f"{value:+.0%}" if math.isfinite(value) else "n/a"
+
+
+def format_verdict(result: SequenceAnalysis, *, against: str | None = None, source: str = "") -> str:
+    """A short text verdict: what the sequence is, what is right, what is off and by how much.
+
+    ``against`` names the preset compared with; ``source`` says where the heights came
+    from (files, channel), for the first line.
+    """
+    fit = result.dispersion
+    texel = result.size / result.resolution
+    seam = (
+        "repeats across its edges (no window)" if result.periodic
+        else "does not repeat across its edges (Hann window)"
+    )
+    lines = []
+    if source:
+        lines.append(f"Source    {source}")
+    lines.append(
+        f"Sequence  {result.frames} frames of {result.resolution}×{result.resolution} texels over {result.size:.4g} m "
+        f"({texel:.3g} m texels) at {result.fps:g} fps ({result.frames / result.fps:.3g} s); {seam}"
+    )
+    folded = "" if result.folded_fraction is None else f"   folded {result.folded_fraction:.1%} of the surface"
+    lines += [
+        f"Heights   Hs {_num(result.hs)} m   Tp {_num(result.tp)} s (time series), {_num(result.tp_from_wavenumber)} s "
+        f"(wavenumber peak, {_depth_text(fit.depth)})   Tm01 {_num(result.tm01)} s   Tm02 {_num(result.tm02)} s",
+        f"          travelling towards {_num(math.degrees(result.mean_direction) % 360.0, '.0f')}° "
+        f"(counter-clockwise from +x, spread {_num(math.degrees(result.directional_spread), '.0f')}°)   "
+        f"significant steepness {_num(result.significant_steepness)}{folded}",
+    ]
+    lines += _timing_lines(result)
+    lines += _band_lines(result, against)
+
+    problems = []
+    if fit.status in ("too fast", "too slow"):
+        problems.append(
+            f"timing: the waves run at ×{math.sqrt(fit.g_ratio):.2f} their right speed; "
+            f"{_retime_text(fit.playback_speed)}"
+        )
+    for band in result.bands or ():
+        if band.verdict in ("too much", "too little"):
+            problems.append(f"{band.verdict} energy at {band.centre:.2f} ωp (×{band.ratio:.3g} the target)")
+    if problems:
+        lines.append("Verdict   OFF: " + "; ".join(problems) + ".")
+    elif fit.status == "ok":
+        checked = "the timing and every resolved band of the spectrum are" if result.bands else "the timing is"
+        lines.append(f"Verdict   RIGHT: {checked} as declared.")
+    else:
+        lines.append("Verdict   the timing could not be measured; see the notes.")
+    for note in result.notes:
+        lines.append(f"Note      {note}.")
+    return "\n".join(lines)
+
+
+# -- reading sequences -------------------------------------------------------------------
+
+_FRAME_RUN = re.compile(r"#+")
+_DIGITS = re.compile(r"-?\d+")
+_GLOB_CHARS = re.compile(r"[*?\[]")
+_FORMATS = (".exr", ".png")
+_HEIGHT_CHANNELS = ("Y", "height.Y")
+_DISPLACEMENT_LAYERS = ("", "displacement.")
+_NOT_HEIGHT_MAPS = ("normal", "foam", "velocity")
+
+
+def expand_sequence(sequence: str) -> list[tuple[int | None, Path]]:
+    """The files of a sequence, sorted by frame number: (frame number or None, path).
+
+    ``sequence`` is a glob (``renders/x/height.*.exr``) or a pattern whose file name has
+    one run of ``#`` standing for the frame number (``renders/x/height.####.exr``). A
+    glob's frame numbers are the last run of digits in each file's name.
+
+    Raises
+    ------
+    ValueError
+        When nothing matches, the pattern has several runs of ``#``, or two files have
+        the same frame number.
+    """
+    folder, name = os.path.split(os.path.expanduser(sequence))
+    runs = list(_FRAME_RUN.finditer(name))
+    found: list[tuple[int | None, Path]] = []
+    if runs:
+        if len(runs) > 1:
+            raise ValueError(f"sequence: {sequence!r} has {len(runs)} runs of '#'; allowed: one, for the frame number")
+        run = runs[0]
+        prefix, suffix = name[: run.start()], name[run.end():]
+        matcher = re.compile(re.escape(prefix) + r"(-?\d+)" + re.escape(suffix) + r"\Z")
+        candidates = glob.glob(os.path.join(folder, glob.escape(prefix) + "*" + glob.escape(suffix)))
+        for path in candidates:
+            match = matcher.match(os.path.basename(path))
+            if match:
+                found.append((int(match.group(1)), Path(path)))
+    else:
+        for path in glob.glob(os.path.expanduser(sequence)):
+            base = os.path.basename(path)
+            stem = base[: -len(os.path.splitext(base)[1])] if os.path.splitext(base)[1] else base
+            digits = _DIGITS.findall(stem)
+            found.append((int(digits[-1]) if digits else None, Path(path)))
+    found = [(frame, path) for frame, path in found if path.is_file()]
+    if not found:
+        raise ValueError(f"sequence: no files match {sequence!r}")
+    found.sort(key=lambda item: (item[0] is None, item[0] if item[0] is not None else 0, str(item[1])))
+    numbers = [frame for frame, _ in found if frame is not None]
+    if len(set(numbers)) != len(numbers):
+        seen: dict[int, Path] = {}
+        for frame, path in found:
+            if frame is not None and frame in seen:
+                raise ValueError(
+                    f"sequence: frame {frame} matches both '{seen[frame]}' and '{path}'; narrow the pattern"
+                )
+            if frame is not None:
+                seen[frame] = path
+    return found
+
+
+def _select_frames(files: list[tuple[int | None, Path]], frames: str | None) -> list[tuple[int | None, Path]]:
+    """Files within ``--frames A-B``; the frame numbers must then run without gaps."""
+    if frames is not None:
+        match = re.fullmatch(r"\s*(-?\d+)\s*-\s*(-?\d+)\s*", frames)
+        if not match or int(match.group(1)) > int(match.group(2)):
+            raise ValueError(f"--frames: {frames!r} is not allowed; allowed: a range A-B of frame numbers with A <= B")
+        first, last = int(match.group(1)), int(match.group(2))
+        if any(frame is None for frame, _ in files):
+            raise ValueError("--frames: the file names carry no frame numbers to select by")
+        files = [(frame, path) for frame, path in files if first <= frame <= last]  # type: ignore[operator]
+        if not files:
+            raise ValueError(f"--frames: no file of the sequence has a frame number from {first} to {last}")
+    numbers = [frame for frame, _ in files]
+    if all(frame is not None for frame in numbers) and len(numbers) > 1:
+        expected = set(range(numbers[0], numbers[-1] + 1))  # type: ignore[arg-type]
+        missing = sorted(expected - set(numbers))  # type: ignore[arg-type]
+        if missing:
+            shown = ", ".join(str(m) for m in missing[:5]) + (", ..." if len(missing) > 5 else "")
+            raise ValueError(
+                f"sequence: frames {shown} are missing between {numbers[0]} and {numbers[-1]}; the analysis "
+                f"needs evenly spaced frames (use --frames A-B to pick a complete run)"
+            )
+    return files
+
+
+def _read_channels(path: Path) -> tuple[dict[str, NDArray[np.float32]], dict[str, Any]]:
+    """Every channel of one frame file and its header attributes (PNG: none)."""
+    suffix = path.suffix.lower()
+    if suffix not in _FORMATS:
+        raise ValueError(f"sequence: '{path}' is not a supported format; allowed: {', '.join(_FORMATS)}")
+    from .io.errors import CorruptFileError
+
+    try:
+        if suffix == ".exr":
+            from .io.exr import read_exr
+
+            return read_exr(path)
+        from .io.png import read_png16
+
+        values, _ = read_png16(path)
+        if values.ndim == 2:
+            return {"Y": values}, {}
+        return {name: values[..., i] for i, name in enumerate("RGB")}, {}
+    except CorruptFileError as error:
+        raise ValueError(str(error)) from None
+    except OSError as error:
+        reason = error.strerror or str(error)
+        missing = f" ({error.filename})" if error.filename and str(error.filename) != str(path) else ""
+        raise ValueError(f"cannot read '{path}': {reason}{missing}") from None
+
+
+@dataclass(frozen=True)
+class _Layout:
+    """Where a file keeps height and, for displacement maps, the lateral displacement."""
+
+    height: str
+    lateral: tuple[str, float, str, float] | None  # (x channel, sign, y channel, sign)
+    description: str
+
+
+def _displacement_layout(prefix: str, up_axis: str) -> _Layout:
+    """Scene axes of a displacement map (see `oceanfield.maps`): z-up (X, Y, Z) = (x, y, z);
+    y-up (X, Y, Z) = (x, z, −y). Channels R, G, B hold scene X, Y, Z."""
+    r, g, b = (prefix + c for c in "RGB")
+    if up_axis == "z":
+        return _Layout(b, (r, 1.0, g, 1.0), f"{b} of an RGB displacement map (z up)")
+    return _Layout(g, (r, 1.0, b, -1.0), f"{g} of an RGB displacement map (y up)")
+
+
+def _choose_layout(
+    names: Iterable[str], attributes: dict[str, Any], channel: str | None, up_axis: str, path: Path
+) -> _Layout:
+    names = list(names)
+    available = ", ".join(sorted(names))
+    if channel is not None:
+        if channel not in names:
+            raise ValueError(f"--channel: {channel!r} is not in '{path}'; available: {available}")
+        return _Layout(channel, None, f"channel {channel}")
+    kind = attributes.get("oceanfield.map")
+    if isinstance(kind, str) and kind in _NOT_HEIGHT_MAPS:
+        raise ValueError(
+            f"sequence: '{path}' holds a {kind} map, not heights; analyse the height or displacement "
+            f"sequence, or pass --channel to force a channel (available: {available})"
+        )
+    if kind != "displacement":
+        for name in _HEIGHT_CHANNELS:
+            if name in names:
+                return _Layout(name, None, f"channel {name}")
+    for prefix in _DISPLACEMENT_LAYERS:
+        if all(prefix + c in names for c in "RGB"):
+            return _displacement_layout(prefix, up_axis)
+    raise ValueError(
+        f"sequence: no height channel in '{path}' (looked for Y, height.Y and an RGB displacement map); "
+        f"available: {available}; pass --channel NAME"
+    )
+
+
+def _parse_crop(text: str, rows: int, cols: int) -> tuple[int, int, int]:
+    """``X,Y,SIZE`` (or ``X,Y,W,H`` with W = H) in texels, inside a rows × cols frame."""
+    parts = [part.strip() for part in text.split(",")]
+    try:
+        numbers = [int(part) for part in parts]
+    except ValueError:
+        numbers = []
+    if len(numbers) == 4 and numbers[2] != numbers[3]:
+        raise ValueError(
+            f"--crop: {text!r} is {numbers[2]}×{numbers[3]} texels, not square; allowed: X,Y,SIZE "
+            f"(the analysis needs a square region)"
+        )
+    if len(numbers) == 4:
+        numbers = numbers[:3]
+    if len(numbers) != 3:
+        raise ValueError(f"--crop: {text!r} is not allowed; allowed: X,Y,SIZE in whole texels")
+    x, y, size = numbers
+    if size < _MIN_SIZE:
+        raise ValueError(f"--crop: size {size} is not allowed; allowed: at least {_MIN_SIZE} texels")
+    if x < 0 or y < 0 or x + size > cols or y + size > rows:
+        raise ValueError(
+            f"--crop: {text!r} reaches outside the {cols}×{rows} frame; allowed: X >= 0, Y >= 0, "
+            f"X + SIZE <= {cols}, Y + SIZE <= {rows}"
+        )
+    return x, y, size
+
+
+def _attribute_number(attributes: dict[str, Any], name: str, *, positive: bool = True) -> float | None:
+    value = attributes.get(name)
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        return None
+    value = float(value)
+    return value if math.isfinite(value) and (value > 0 or not positive) else None
+
+
+def _header_notes(
+    first: dict[str, Any], last: dict[str, Any], count: int, fps: float, size: float, metres_per_unit: float
+) -> list[str]:
+    """Where the files' own headers (their frame rate or time stamps, their tile size)
+    disagree with what the command line says; the command line wins."""
+    notes = []
+    header_fps = _attribute_number(first, "oceanfield.fps")
+    t_first = _attribute_number(first, "oceanfield.time_s", positive=False)
+    t_last = _attribute_number(last, "oceanfield.time_s", positive=False)
+    if header_fps is None and t_first is not None and t_last is not None and count > 1 and t_last > t_first:
+        header_fps = (count - 1) / (t_last - t_first)
+    if header_fps is not None and abs(header_fps / fps - 1.0) > 1e-3:
+        notes.append(f"the files say {header_fps:.4g} fps; using --fps {fps:g}")
+    header_size = _attribute_number(first, "oceanfield.tile_size")
+    if header_size is not None and abs(header_size * metres_per_unit / size - 1.0) > 1e-3:
+        notes.append(
+            f"the files say the tile is {header_size * metres_per_unit:g} m ({header_size:g} scene units); "
+            f"using --tile-size {size:g} m"
+        )
+    return notes
+
+
+def run_analyze_command(args: argparse.Namespace) -> int:
+    """``oceanfield analyze``: read a sequence, measure it, print the verdict (or JSON),
+    write the report picture if asked. User errors raise ValueError (exit status 2)."""
+    size = _check_positive("--tile-size", args.tile_size, "metres")
+    fps = _check_positive("--fps", args.fps, "frames per second")
+    if args.report is not None:
+        report = Path(args.report)
+        if report.suffix.lower() != ".png":
+            raise ValueError(f"--report: {args.report!r} is not allowed; allowed: a file name ending in .png")
+        if not report.parent.is_dir() and str(report.parent) != "":
+            raise ValueError(f"--report: the folder '{report.parent}' does not exist")
+    files = _select_frames(expand_sequence(args.sequence), args.frames)
+    if len(files) < MIN_FRAMES:
+        raise ValueError(
+            f"sequence: {len(files)} frame{'s' if len(files) != 1 else ''} matched {args.sequence!r}; "
+            f"the frequency analysis needs at least {MIN_FRAMES} (64 or more resolve a sea well)"
+        )
+    channels, attributes = _read_channels(files[0][1])
+    if args.metres_per_unit is not None:
+        metres_per_unit = _check_positive("--metres-per-unit", args.metres_per_unit, "metres per scene unit")
+    else:
+        metres_per_unit = _attribute_number(attributes, "oceanfield.metres_per_unit") or 1.0
+    header_up = attributes.get("oceanfield.up_axis")
+    up_axis = args.up_axis or (header_up if header_up in ("y", "z") else "y")
+    layout = _choose_layout(channels, attributes, args.channel, up_axis, files[0][1])
+    rows, cols = channels[layout.height].shape
+    if args.crop is not None:
+        x0, y0, n = _parse_crop(args.crop, rows, cols)
+        periodic: bool | None = False if n < min(rows, cols) or rows != cols else None
+    elif rows != cols:
+        raise ValueError(
+            f"sequence: the frames are {cols}×{rows} texels; the analysis needs a square region: pass --crop X,Y,SIZE"
+        )
+    else:
+        x0, y0, n, periodic = 0, 0, rows, None
+    region = (slice(y0, y0 + n), slice(x0, x0 + n))
+    spacing = size / cols
+    depth = np.inf
+    target = None
+    if args.against is not None:
+        from .preset import load_preset, to_sea_state
+
+        target = to_sea_state(load_preset(args.against))
+        depth = target.depth
+    if args.depth is not None:
+        depth = check_depth(args.depth, "--depth")
+
+    accumulator = SequenceAccumulator(len(files), n, n * spacing, fps, periodic=periodic)
+    first_shape = (rows, cols)
+    needed = [layout.height] + ([layout.lateral[0], layout.lateral[2]] if layout.lateral else [])
+    last_attributes = attributes
+    for index, (_, path) in enumerate(files):
+        if index:
+            channels, last_attributes = _read_channels(path)
+            missing = [name for name in needed if name not in channels]
+            if missing:
+                raise ValueError(
+                    f"sequence: '{path}' has no channel {missing[0]!r}; available: {', '.join(sorted(channels))}"
+                )
+        shape = channels[layout.height].shape
+        if shape != first_shape:
+            raise ValueError(
+                f"sequence: '{path}' is {shape[1]}×{shape[0]} texels but '{files[0][1]}' is "
+                f"{first_shape[1]}×{first_shape[0]}; all frames must share one resolution"
+            )
+        height = channels[layout.height][region] * np.float32(metres_per_unit)
+        lateral = None
+        if layout.lateral is not None:
+            x_name, x_sign, y_name, y_sign = layout.lateral
+            lateral = (
+                channels[x_name][region] * np.float32(x_sign * metres_per_unit),
+                channels[y_name][region] * np.float32(y_sign * metres_per_unit),
+            )
+        accumulator.add(height, lateral)
+        del channels
+    result = accumulator.finish(depth=depth, target=target)
+    notes = _header_notes(attributes, last_attributes, len(files), fps, size, metres_per_unit)
+    if layout.lateral is not None and args.up_axis is None and header_up not in ("y", "z"):
+        notes.append("the up axis of the displacement map was assumed to be y; pass --up-axis if it is z")
+    if notes:
+        result = _with_notes(result, notes)
+    frame_numbers = [frame for frame, _ in files]
+    source = (
+        f"{len(files)} files {files[0][1].name} … {files[-1][1].name}, {layout.description}, "
+        f"× {metres_per_unit:g} m per unit" + (f", crop {x0},{y0},{n}" if args.crop is not None else "")
+    )
+    if args.json:
+        data = result.to_dict()
+        data["source"] = {
+            "sequence": args.sequence,
+            "files": len(files),
+            "first_frame": frame_numbers[0],
+            "last_frame": frame_numbers[-1],
+            "channel": layout.height,
+            "layout": layout.description,
+            "metres_per_unit": metres_per_unit,
+            "crop": None if args.crop is None else [x0, y0, n],
+            "against": args.against,
+        }
+        print(json.dumps(_json_ready(data), indent=2))
+    else:
+        print(format_verdict(result, against=args.against, source=source))
+    if args.report is not None:
+        from .analyze_plot import write_report
+
+        try:
+            written = write_report(result, args.report, title=f"{args.sequence}", against=args.against)
+        except OSError as error:  # an unwritable folder or a full disk: the user's to fix
+            raise ValueError(str(error)) from None
+        if not args.json:
+            print(f"report written to {written}")
+    return 0
+
+
+def _with_notes(result: SequenceAnalysis, notes: Sequence[str]) -> SequenceAnalysis:
+    from dataclasses import replace
+
+    return replace(result, notes=tuple(notes) + result.notes)
