@@ -5,7 +5,7 @@ Why they are shaped this way (see the performance model in DEVELOPERS.md):
 * ω depends on |k| alone, so ``rotation_kernel`` evaluates e^{−iωt} once per distinct
   q = nx² + ny² that carries energy (a sum of two squares: about a twentieth as many
   sines and cosines as texels at N = 1024); ``slots[q]`` indexes that compact table.
-* ``spectra_kernel`` makes one pass over half the lattice. For each wave index k it reads
+* ``spectra_kernel`` makes one pass over half the lattice, row by row. For each wave index k it reads
   h0(k), h0(−k) (the mirrored index: no second amplitude array is stored) and the
   rotation of its q, and writes the spectra of eight real fields packed two to a complex
   array (A + iB, both Hermitian) at k and, by conjugate symmetry, at −k. Four in-place
@@ -64,26 +64,35 @@ def spectra_kernel(h0, slots, rotation, dk, lateral, out):  # pragma: no cover -
     n = h0.shape[0]
     half = n // 2
     q_max = slots.shape[0] - 1
-    # Each iteration handles a wave index k and its mirror -k together: every field's
-    # spectrum is Hermitian, so the values at -k are the conjugates of those at k and
-    # h0(k), h0(-k) and the rotation are read once for both.
+    # Each iteration handles a row of wave indices k and the mirrored row of -k: every
+    # field's spectrum is Hermitian, so the values at -k are the conjugates of those at k,
+    # and h0(k), h0(-k) and the rotation are read once for both. ĥ is computed for the
+    # row first, then each plane is written on its own: the four planes lie a power of two
+    # apart, and writing all eight rows at once made them evict each other from the cache
+    # (twice the time at N = 2048).
     for row in numba.prange(half + 1):
-        iy = np.int64(row)  # prange indices may be unsigned; keep index arithmetic signed
-        my = (n - iy) % n
+        iy = np.int64(row)
+        my = n - iy if iy > 0 else 0
         ny = iy if iy < half else iy - n
         ky = dk * ny
         ix_end = half + 1 if (iy == 0 or iy == half) else n
-        for column in range(ix_end):
-            ix = np.int64(column)
-            mx = (n - ix) % n
+        hr_row = np.empty(ix_end)
+        hi_row = np.empty(ix_end)
+        ux_row = np.empty(ix_end)
+        uy_row = np.empty(ix_end)
+        kx_row = np.empty(ix_end)
+        for ix in range(ix_end):
+            mx = n - ix if ix > 0 else 0
             nx = ix if ix < half else ix - n
             q = nx * nx + ny * ny
-            if q > q_max or q == 0:
-                for f in range(4):
-                    out[f, iy, ix] = 0.0
-                    out[f, my, mx] = 0.0
-                continue
             kx = dk * nx
+            kx_row[ix] = kx
+            if q > q_max or q == 0:
+                hr_row[ix] = 0.0
+                hi_row[ix] = 0.0
+                ux_row[ix] = 0.0
+                uy_row[ix] = 0.0
+                continue
             k = math.sqrt(kx * kx + ky * ky)
             a = h0[iy, ix]
             b = h0[my, mx]
@@ -91,30 +100,45 @@ def spectra_kernel(h0, slots, rotation, dk, lateral, out):  # pragma: no cover -
             c = e.real
             s = -e.imag
             # ĥ = h0(k) e^{-iωt} + conj(h0(-k)) e^{+iωt}
-            hr = a.real * c + a.imag * s + b.real * c + b.imag * s
-            hi = a.imag * c - a.real * s - b.imag * c + b.real * s
-            ux = kx / k
-            uy = ky / k
-            # spectra (re, im) of the eight fields at k; i·q·ĥ = (-q·hi) + i(q·hr)
+            hr_row[ix] = a.real * c + a.imag * s + b.real * c + b.imag * s
+            hi_row[ix] = a.imag * c - a.real * s - b.imag * c + b.real * s
+            ux_row[ix] = kx / k
+            uy_row[ix] = ky / k
+        # Packed A + iB at k is (Ar - Bi) + i(Ai + Br); at -k, conj(A) + i conj(B) is
+        # (Ar + Bi) + i(Br - Ai). i·q·ĥ = (-q·hi) + i(q·hr).
+        # plane 0: h + i Dx
+        for ix in range(ix_end):
+            mx = n - ix if ix > 0 else 0
+            hr, hi, ux = hr_row[ix], hi_row[ix], ux_row[ix]
             dxr = -lateral * ux * hi
             dxi = lateral * ux * hr
+            out[0, iy, ix] = complex(hr - dxi, hi + dxr)
+            out[0, my, mx] = complex(hr + dxi, dxr - hi)
+        # plane 1: Dy + i sx
+        for ix in range(ix_end):
+            mx = n - ix if ix > 0 else 0
+            hr, hi, uy, kx = hr_row[ix], hi_row[ix], uy_row[ix], kx_row[ix]
             dyr = -lateral * uy * hi
             dyi = lateral * uy * hr
             sxr = -kx * hi
             sxi = kx * hr
+            out[1, iy, ix] = complex(dyr - sxi, dyi + sxr)
+            out[1, my, mx] = complex(dyr + sxi, sxr - dyi)
+        # plane 2: sy + i Dxx
+        for ix in range(ix_end):
+            mx = n - ix if ix > 0 else 0
+            hr, hi, ux, kx = hr_row[ix], hi_row[ix], ux_row[ix], kx_row[ix]
             syr = -ky * hi
             syi = ky * hr
             fxx = -lateral * kx * ux
-            fyy = -lateral * ky * uy
-            fxy = -lateral * kx * uy
-            # Packed A + iB at k is (Ar - Bi) + i(Ai + Br); at -k, conj(A) + i conj(B) is
-            # (Ar + Bi) + i(Br - Ai).
-            out[0, iy, ix] = complex(hr - dxi, hi + dxr)
-            out[0, my, mx] = complex(hr + dxi, dxr - hi)
-            out[1, iy, ix] = complex(dyr - sxi, dyi + sxr)
-            out[1, my, mx] = complex(dyr + sxi, sxr - dyi)
             out[2, iy, ix] = complex(syr - fxx * hi, syi + fxx * hr)
             out[2, my, mx] = complex(syr + fxx * hi, fxx * hr - syi)
+        # plane 3: Dyy + i Dxy
+        for ix in range(ix_end):
+            mx = n - ix if ix > 0 else 0
+            hr, hi, ux, uy, kx = hr_row[ix], hi_row[ix], ux_row[ix], uy_row[ix], kx_row[ix]
+            fyy = -lateral * ky * uy
+            fxy = -lateral * kx * uy
             out[3, iy, ix] = complex(fyy * hr - fxy * hi, fyy * hi + fxy * hr)
             out[3, my, mx] = complex(fyy * hr + fxy * hi, fxy * hr - fyy * hi)
 
@@ -122,7 +146,14 @@ def spectra_kernel(h0, slots, rotation, dk, lateral, out):  # pragma: no cover -
 @numba.njit(parallel=True, cache=True, fastmath=False)
 def surface_kernel(fields, fold_threshold, foam_ramp):  # pragma: no cover - compiled
     n = fields.shape[1]
+    # Row by row: compute into small row buffers, then write each plane's row on its own
+    # (the planes lie a power of two apart; see spectra_kernel).
     for iy in numba.prange(n):
+        nx_row = np.empty(n, dtype=np.float32)
+        ny_row = np.empty(n, dtype=np.float32)
+        nz_row = np.empty(n, dtype=np.float32)
+        jac_row = np.empty(n, dtype=np.float32)
+        foam_row = np.empty(n, dtype=np.float32)
         for ix in range(n):
             v1 = fields[1, iy, ix]
             v2 = fields[2, iy, ix]
@@ -146,9 +177,17 @@ def surface_kernel(fields, fold_threshold, foam_ramp):  # pragma: no cover - com
                 nz = 1.0
             foam = (fold_threshold - jac) / foam_ramp
             foam = min(max(foam, 0.0), 1.0)
-            fields[1, iy, ix] = complex(v1.real, nx)
-            fields[2, iy, ix] = complex(jac, ny)
-            fields[3, iy, ix] = complex(foam, nz)
+            nx_row[ix] = nx
+            ny_row[ix] = ny
+            nz_row[ix] = nz
+            jac_row[ix] = jac
+            foam_row[ix] = foam
+        for ix in range(n):
+            fields[1, iy, ix] = complex(fields[1, iy, ix].real, nx_row[ix])
+        for ix in range(n):
+            fields[2, iy, ix] = complex(jac_row[ix], ny_row[ix])
+        for ix in range(n):
+            fields[3, iy, ix] = complex(foam_row[ix], nz_row[ix])
 
 
 @numba.njit(parallel=True, cache=True, fastmath=False)
