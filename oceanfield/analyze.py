@@ -1323,6 +1323,13 @@ def _band_lines(result: SequenceAnalysis, against: str | None) -> list[str]:
     return lines
 
 
+def whole_degrees(angle: float | None) -> float | None:
+    """An angle in radians as whole degrees in [0, 360), or None where it is not a number."""
+    if angle is None or not math.isfinite(angle):
+        return None
+    return float(round(math.degrees(angle)) % 360)
+
+
 def _num(value: float | None, spec: str = "#.3g") -> str:
     """A figure for the verdict, or "n/a" where it could not be measured."""
     if value is None or not math.isfinite(value):
@@ -1357,7 +1364,7 @@ def format_verdict(result: SequenceAnalysis, *, against: str | None = None, sour
     lines += [
         f"Heights   Hs {_num(result.hs)} m   Tp {_num(result.tp)} s (time series), {_num(result.tp_from_wavenumber)} s "
         f"(wavenumber peak, {_depth_text(fit.depth)})   Tm01 {_num(result.tm01)} s   Tm02 {_num(result.tm02)} s",
-        f"          travelling towards {_num(math.degrees(result.mean_direction) % 360.0, '.0f')}° "
+        f"          travelling towards {_num(whole_degrees(result.mean_direction), '.0f')}° "
         f"(counter-clockwise from +x, spread {_num(math.degrees(result.directional_spread), '.0f')}°)   "
         f"significant steepness {_num(result.significant_steepness)}{folded}",
     ]
@@ -1600,11 +1607,34 @@ def _header_notes(
     return notes
 
 
+def _size_and_rate(args: argparse.Namespace, attributes: dict[str, Any], metres_per_unit: float) -> tuple[float, float]:
+    """Tile size in metres and frame rate: the command line's, else the files' own headers."""
+    if args.tile_size is not None:
+        size = _check_positive("--tile-size", args.tile_size, "metres")
+    else:
+        header_size = _attribute_number(attributes, "oceanfield.tile_size")
+        if header_size is None:
+            raise ValueError(
+                "--tile-size: not given, and the files do not say how large an area they cover; "
+                "allowed: the side of the area in metres, e.g. --tile-size 256"
+            )
+        size = header_size * metres_per_unit
+    if args.fps is not None:
+        fps = _check_positive("--fps", args.fps, "frames per second")
+    else:
+        header_fps = _attribute_number(attributes, "oceanfield.fps")
+        if header_fps is None:
+            raise ValueError(
+                "--fps: not given, and the files do not say their frame rate; "
+                "allowed: frames per second, e.g. --fps 24"
+            )
+        fps = header_fps
+    return size, fps
+
+
 def run_analyze_command(args: argparse.Namespace) -> int:
     """``oceanfield analyze``: read a sequence, measure it, print the verdict (or JSON),
     write the report picture if asked. User errors raise ValueError (exit status 2)."""
-    size = _check_positive("--tile-size", args.tile_size, "metres")
-    fps = _check_positive("--fps", args.fps, "frames per second")
     if args.report is not None:
         report = Path(args.report)
         if report.suffix.lower() != ".png":
@@ -1622,6 +1652,7 @@ def run_analyze_command(args: argparse.Namespace) -> int:
         metres_per_unit = _check_positive("--metres-per-unit", args.metres_per_unit, "metres per scene unit")
     else:
         metres_per_unit = _attribute_number(attributes, "oceanfield.metres_per_unit") or 1.0
+    size, fps = _size_and_rate(args, attributes, metres_per_unit)
     header_up = attributes.get("oceanfield.up_axis")
     up_axis = args.up_axis or (header_up if header_up in ("y", "z") else "y")
     layout = _choose_layout(channels, attributes, args.channel, up_axis, files[0][1])

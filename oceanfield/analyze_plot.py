@@ -56,7 +56,7 @@ def write_report(
     )
     figure.suptitle(
         f"{title}\nHs {result.hs:#.3g} m   Tp {result.tp:#.3g} s   towards "
-        f"{math.degrees(result.mean_direction) % 360.0:.0f}°   {timing}",
+        f"{_bearing(result.mean_direction)}°   {timing}",
         fontsize=12,
     )
     final = Path(path)
@@ -134,7 +134,7 @@ def _direction_panel(axes, result: SequenceAnalysis) -> None:
         axes.annotate("", xy=(result.mean_direction, float(closed.max())), xytext=(0.0, 0.0),
                       arrowprops=dict(arrowstyle="->", color="#e41a1c", lw=1.5))
     axes.set_title(
-        f"Energy by direction of travel (towards {math.degrees(result.mean_direction) % 360.0:.0f}°, "
+        f"Energy by direction of travel (towards {_bearing(result.mean_direction)}°, "
         f"spread {math.degrees(result.directional_spread):.0f}°)",
         fontsize=10,
     )
@@ -164,3 +164,10 @@ def _label(axes, x: str, y: str, title: str, legend: str) -> None:
     axes.set_title(title)
     axes.grid(True, which="both", alpha=0.2)
     axes.legend(loc=legend, fontsize=8)
+
+
+def _bearing(angle: float | None) -> str:
+    from .analyze import whole_degrees
+
+    value = whole_degrees(angle)
+    return "n/a" if value is None else f"{value:.0f}"

@@ -75,8 +75,9 @@ def build_parser() -> argparse.ArgumentParser:
 
     analyze = commands.add_parser("analyze", help="measure a height sequence's spectrum, statistics and wave timing")
     analyze.add_argument("sequence", help="files: a glob or a pattern with #### for the frame number")
-    analyze.add_argument("--tile-size", type=float, required=True, metavar="METRES", help="side of the area the frames cover")
-    analyze.add_argument("--fps", type=float, required=True, help="frames per second of the sequence")
+    analyze.add_argument("--tile-size", type=float, default=None, metavar="METRES",
+                         help="side of the area the frames cover (default: from oceanfield's EXR header)")
+    analyze.add_argument("--fps", type=float, default=None, help="frames per second (default: from oceanfield's EXR header)")
     analyze.add_argument("--channel", default=None, help="EXR channel holding height (default: from our header, else Y, then G of RGB)")
     analyze.add_argument("--depth", type=float, default=None, metavar="METRES", help="water depth (default: deep)")
     analyze.add_argument("--against", default=None, metavar="PRESET", help="compare with a preset's target spectrum")
