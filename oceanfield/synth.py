@@ -203,8 +203,8 @@ class Ocean:
         available = available_memory()
         if available is not None and need > available:
             raise ValueError(
-                f"tile resolution: {n} needs about {need / 2**30:.1f} GiB for one frame, "
-                f"more than the {available / 2**30:.1f} GiB available; allowed: a smaller resolution"
+                f"tile resolution: {n} needs about {_bytes_text(need)} for one frame, "
+                f"more than the {_bytes_text(available)} available; allowed: a smaller resolution"
             )
 
     def _build(self) -> tuple[NDArray[np.complex64], NDArray[np.float64], float, LoopInfo | None]:
@@ -342,6 +342,11 @@ class Ocean:
         ny, nx = self.tile.wave_indices()
         q = np.minimum(nx * nx + ny * ny, self._omega.size - 1)
         return self._omega[q]
+
+
+def _bytes_text(count: float) -> str:
+    """A byte count for a message: GiB from 1 GiB up, else MiB."""
+    return f"{count / 2**30:.1f} GiB" if count >= 2**30 else f"{count / 2**20:.0f} MiB"
 
 
 def _fields_from_packed(t: float, packed: NDArray[np.complex64], velocity: NDArray | None) -> Fields:
