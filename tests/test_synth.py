@@ -789,11 +789,14 @@ def test_resolution_beyond_memory_is_refused_up_front(monkeypatch, velocity):
     message = str(info.value)
     assert message.startswith(f"tile resolution: {n} ")
     assert "allowed: a smaller resolution" in message
-    found = re.search(r"needs about ([0-9.]+) GiB .* the ([0-9.]+) GiB available", message)
+    found = re.search(r"needs about ([0-9.]+) (GiB|MiB) .* the ([0-9.]+) (GiB|MiB) available", message)
     assert found, message
+    unit = {"GiB": 1.0, "MiB": 1.0 / 1024}
+    needed = float(found.group(1)) * unit[found.group(2)]
+    available = float(found.group(3)) * unit[found.group(4)]
     floor = n * n * (32 + 8 + (16 if velocity else 0)) / 2**30
-    assert floor * 0.95 <= float(found.group(1)) <= 2 * floor
-    assert float(found.group(2)) == pytest.approx(0.25, abs=0.05)
+    assert floor * 0.95 <= needed <= 2 * floor
+    assert available == pytest.approx(0.25, abs=0.05)
     # Unknown available memory (None) refuses nothing; a small tile fits.
     monkeypatch.setattr(synth, "available_memory", lambda: None)
     Ocean(_small_sea(), Tile(50.0, 16), velocity=velocity)
