@@ -41,19 +41,20 @@ WMO (1998). Guide to Wave Analysis and Forecasting, WMO-No. 702 (Hm0 = 4√m0, m
 Froude scaling: model time ∝ √(model length) for gravity waves (Hughes, S. A. (1993),
 Physical Models and Laboratory Techniques in Coastal Engineering, World Scientific; the
 chapter on similitude, from memory). It follows from ω² = gk: at fixed g, ω ∝ k^½.
+
+Reading frame files is `oceanfield.io.sequence`'s work; the text verdict and the
+``oceanfield analyze`` command live in `oceanfield.verdict`. Their public names
+(`expand_sequence`, `format_verdict`, `run_analyze_command`, `whole_degrees`) stay
+importable from here.
 """
 
 from __future__ import annotations
 
-import argparse
-import glob
-import json
+import importlib
 import math
 import os
-import re
 from dataclasses import dataclass, field
-from pathlib import Path
-from typing import Any, Iterable, Sequence
+from typing import Any, Iterable
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
@@ -63,12 +64,15 @@ from .dispersion import angular_frequency, check_depth, group_velocity
 
 __all__ = [
     "MIN_FRAMES",
+    "MIN_RESOLUTION",
+    "TIMING_TOLERANCE",
     "BandVerdict",
     "DispersionFit",
     "SequenceAnalysis",
     "SequenceAccumulator",
     "analyze_heights",
     "band_comparison",
+    "check_positive",
     "directional_moments",
     "fit_dispersion",
     "format_verdict",
@@ -81,12 +85,30 @@ __all__ = [
     "expand_sequence",
 ]
 
+# Public names defined in the modules built around this one, importable from here as
+# before. They load on first use: `oceanfield.verdict` imports this module, and the file
+# readers (OpenEXR) are needed only by a command that reads files.
+_ELSEWHERE = {
+    "expand_sequence": "oceanfield.io.sequence",
+    "format_verdict": "oceanfield.verdict",
+    "run_analyze_command": "oceanfield.verdict",
+    "whole_degrees": "oceanfield.verdict",
+}
+
+
+def __getattr__(name: str) -> Any:
+    module = _ELSEWHERE.get(name)
+    if module is None:
+        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+    return getattr(importlib.import_module(module), name)
+
+
 #: Fewest frames analysed: the positive half of a T-point transform has T/2 − 1
 #: frequencies, and a peak centroid needs two bins either side of it and room below
 #: Nyquist; with fewer than 16 nothing is left to fit. 64 or more resolve a sea well.
 MIN_FRAMES = 16
 #: Smallest square region analysed, in texels (the synthesiser's own minimum tile).
-_MIN_SIZE = 16
+MIN_RESOLUTION = 16
 #: Frames are periodic when the RMS jump across their edges is at most this many times
 #: the RMS step between neighbouring texels. For a field that repeats, the seam is just
 #: another step (ratio ≈ 1, within about 10 % over the seams of a few 128² frames); for
@@ -123,7 +145,7 @@ _ALIAS_MARGIN = 0.8
 #: Timing counts as right when g_eff/g is within ±5 % (±2.5 % in wave speed), below the
 #: speed changes a viewer notices in a wave's period (common practice), or within two
 #: standard errors of the fit when those are wider.
-_TIMING_TOLERANCE = 0.05
+TIMING_TOLERANCE = 0.05
 #: Half-octave band centres around the target's peak, in ωp, from 0.5 to 4.
 _BAND_EXPONENTS = (-2, -1, 0, 1, 2, 3, 4)
 #: A band is within expectation within ±25 % or three standard errors of its sampling
@@ -622,7 +644,7 @@ def measure_dispersion(
     if not math.isfinite(ratio) or ratio <= 0:
         status = "not measurable"
         ratio = error = math.nan
-    elif abs(ratio - 1.0) <= max(_TIMING_TOLERANCE, 2.0 * error if math.isfinite(error) else 0.0):
+    elif abs(ratio - 1.0) <= max(TIMING_TOLERANCE, 2.0 * error if math.isfinite(error) else 0.0):
         status = "ok"
     else:
         status = "too fast" if ratio > 1.0 else "too slow"
@@ -825,10 +847,12 @@ class SequenceAccumulator:
                 f"frames: {frame_count!r} frames is too few; the frequency analysis needs at least "
                 f"{MIN_FRAMES} (64 or more resolve a sea well)"
             )
-        if isinstance(resolution, bool) or not isinstance(resolution, (int, np.integer)) or resolution < _MIN_SIZE:
-            raise ValueError(f"resolution: {resolution!r} is not allowed; allowed: an integer >= {_MIN_SIZE} texels")
-        _check_positive("tile size", size, "metres")
-        _check_positive("fps", fps, "frames per second")
+        if isinstance(resolution, bool) or not isinstance(resolution, (int, np.integer)) or resolution < MIN_RESOLUTION:
+            raise ValueError(
+                f"resolution: {resolution!r} is not allowed; allowed: an integer >= {MIN_RESOLUTION} texels"
+            )
+        check_positive("tile size", size, "metres")
+        check_positive("fps", fps, "frames per second")
         self.frame_count = int(frame_count)
         self.resolution = n = int(resolution)
         self.size = float(size)
@@ -1238,514 +1262,12 @@ def analyze_heights(
     return accumulator.finish(depth=depth, gravity=gravity, target=target)
 
 
-def _check_positive(name: str, value: object, unit: str) -> float:
+def check_positive(name: str, value: object, unit: str) -> float:
+    """``value`` as a float when it is a finite number above 0, else ValueError naming
+    ``name`` (a parameter or command-line option), the value and ``unit``."""
     if isinstance(value, bool) or not isinstance(value, (int, float, np.integer, np.floating)):
         raise ValueError(f"{name}: {value!r} is not a number; allowed: a finite number > 0 {unit}")
     number = float(value)
     if not (math.isfinite(number) and number > 0):
         raise ValueError(f"{name}: {value!r} is not allowed; allowed: a finite number > 0 {unit}")
     return number
-
-
-# -- the verdict -------------------------------------------------------------------------
-
-
-def _depth_text(depth: float) -> str:
-    return "deep water" if not math.isfinite(depth) else f"depth {depth:g} m"
-
-
-def _retime_text(speed: float) -> str:
-    """How to retime footage whose correct playback speed is ``speed`` (× real time)."""
-    if speed < 1.0:
-        return f"slow it down by ×{1.0 / speed:.2f} (play at {speed:.2f}× speed)"
-    return f"speed it up by ×{speed:.2f} (play at {speed:.2f}× speed)"
-
-
-def _timing_lines(result: SequenceAnalysis) -> list[str]:
-    fit = result.dispersion
-    if fit.status == "not measurable":
-        reason = (
-            "no wavenumber bin holds resolved, unaliased waves"
-            if fit.bins_energetic else "the frames hold no moving waves"
-        )
-        return [f"Timing    not measurable: {reason}."]
-    error = f" ± {fit.g_ratio_error:.3f}" if math.isfinite(fit.g_ratio_error) else ""
-    head = (
-        f"Timing    g_eff/g = {fit.g_ratio:.3f}{error} from {fit.bins_used} wavenumber bins "
-        f"({fit.k_low:.3g}–{fit.k_high:.3g} rad/m, {_depth_text(fit.depth)})"
-    )
-    if fit.status == "ok":
-        lines = [head + ": OK", "          The waves move at the right speed for their size."]
-    else:
-        speed = math.sqrt(fit.g_ratio)  # wave speed against the declared relation, ω ∝ √g
-        declared = result.size
-        lines = [
-            head + ": WRONG TIMING",
-            f"          The waves run at ×{speed:.2f} the speed their wavelengths call for: the surface moves like "
-            f"one {fit.scale_factor:.3g}× its declared size",
-            f"          (the {declared:.4g} m area behaves as {declared * fit.scale_factor:.4g} m). "
-            f"To correct it, {_retime_text(fit.playback_speed)}: Froude scaling, time ∝ √length.",
-        ]
-    if (
-        math.isfinite(fit.g_ratio_low) and math.isfinite(fit.g_ratio_high)
-        and abs(fit.g_ratio_low / fit.g_ratio_high - 1.0) > 2.0 * _TIMING_TOLERANCE
-    ):
-        lines.append(
-            f"          g_eff/g changes across the range ({fit.g_ratio_low:.3f} on the longer waves, "
-            f"{fit.g_ratio_high:.3f} on the shorter): the depth is probably not {_depth_text(fit.depth)} "
-            f"(shallow water slows the long waves); try --depth."
-        )
-    return lines
-
-
-def _band_lines(result: SequenceAnalysis, against: str | None) -> list[str]:
-    if result.bands is None:
-        return []
-    name = f"'{against}'" if against else "the target"
-    lines = [
-        f"Spectrum  against {name} (Hs {result.target_hs:.3g} m, Tp {result.target_tp:.3g} s): "
-        f"measured Hs is {_percent(result.hs / result.target_hs - 1.0)} of the target's",
-        "          energy per half-octave band around the target's peak ωp (as the wavenumbers of its dispersion):",
-    ]
-    for band in result.bands:
-        label = f"{band.centre:4.2f} ωp  {band.omega_low:.3g}–{band.omega_high:.3g} rad/s"
-        if band.verdict == "not resolved":
-            lines.append(f"          {label:<28} not resolved by the frames")
-            continue
-        ratio = f"×{band.ratio:.3g}" if math.isfinite(band.ratio) else "—"
-        verdict = band.verdict if band.verdict in ("negligible",) else (
-            f"{band.verdict} (ok within ±{band.tolerance:.0%})"
-        )
-        partial = " [partly beyond the frames' resolution]" if band.partial else ""
-        lines.append(
-            f"          {label:<28} {band.measured:10.4g} / {band.target:10.4g} m²  {ratio:>8}  {verdict}{partial}"
-        )
-    return lines
-
-
-def whole_degrees(angle: float | None) -> float | None:
-    """An angle in radians as whole degrees in [0, 360), or None where it is not a number."""
-    if angle is None or not math.isfinite(angle):
-        return None
-    return float(round(math.degrees(angle)) % 360)
-
-
-def _num(value: float | None, spec: str = "#.3g") -> str:
-    """A figure for the verdict, or "n/a" where it could not be measured."""
-    if value is None or not math.isfinite(value):
-        return "n/a"
-    return format(value, spec)
-
-
-def _percent(value: float) -> str:
-    return f"{value:+.0%}" if math.isfinite(value) else "n/a"
-
-
-def format_verdict(result: SequenceAnalysis, *, against: str | None = None, source: str = "") -> str:
-    """A short text verdict: what the sequence is, what is right, what is off and by how much.
-
-    ``against`` names the preset compared with; ``source`` says where the heights came
-    from (files, channel), for the first line.
-    """
-    fit = result.dispersion
-    texel = result.size / result.resolution
-    seam = (
-        "repeats across its edges (no window)" if result.periodic
-        else "does not repeat across its edges (Hann window)"
-    )
-    lines = []
-    if source:
-        lines.append(f"Source    {source}")
-    lines.append(
-        f"Sequence  {result.frames} frames of {result.resolution}×{result.resolution} texels over {result.size:.4g} m "
-        f"({texel:.3g} m texels) at {result.fps:g} fps ({result.frames / result.fps:.3g} s); {seam}"
-    )
-    folded = "" if result.folded_fraction is None else f"   folded {result.folded_fraction:.1%} of the surface"
-    lines += [
-        f"Heights   Hs {_num(result.hs)} m   Tp {_num(result.tp)} s (time series), {_num(result.tp_from_wavenumber)} s "
-        f"(wavenumber peak, {_depth_text(fit.depth)})   Tm01 {_num(result.tm01)} s   Tm02 {_num(result.tm02)} s",
-        f"          travelling towards {_num(whole_degrees(result.mean_direction), '.0f')}° "
-        f"(counter-clockwise from +x, spread {_num(math.degrees(result.directional_spread), '.0f')}°)   "
-        f"significant steepness {_num(result.significant_steepness)}{folded}",
-    ]
-    lines += _timing_lines(result)
-    lines += _band_lines(result, against)
-
-    problems = []
-    if fit.status in ("too fast", "too slow"):
-        problems.append(
-            f"timing: the waves run at ×{math.sqrt(fit.g_ratio):.2f} their right speed; "
-            f"{_retime_text(fit.playback_speed)}"
-        )
-    for band in result.bands or ():
-        if band.verdict in ("too much", "too little"):
-            problems.append(f"{band.verdict} energy at {band.centre:.2f} ωp (×{band.ratio:.3g} the target)")
-    if problems:
-        lines.append("Verdict   OFF: " + "; ".join(problems) + ".")
-    elif fit.status == "ok":
-        checked = "the timing and every resolved band of the spectrum are" if result.bands else "the timing is"
-        lines.append(f"Verdict   RIGHT: {checked} as declared.")
-    else:
-        lines.append("Verdict   the timing could not be measured; see the notes.")
-    for note in result.notes:
-        lines.append(f"Note      {note}.")
-    return "\n".join(lines)
-
-
-# -- reading sequences -------------------------------------------------------------------
-
-_FRAME_RUN = re.compile(r"#+")
-_DIGITS = re.compile(r"-?\d+")
-_GLOB_CHARS = re.compile(r"[*?\[]")
-_FORMATS = (".exr", ".png")
-_HEIGHT_CHANNELS = ("Y", "height.Y")
-_DISPLACEMENT_LAYERS = ("", "displacement.")
-_NOT_HEIGHT_MAPS = ("normal", "foam", "velocity")
-
-
-def expand_sequence(sequence: str) -> list[tuple[int | None, Path]]:
-    """The files of a sequence, sorted by frame number: (frame number or None, path).
-
-    ``sequence`` is a glob (``renders/x/height.*.exr``) or a pattern whose file name has
-    one run of ``#`` standing for the frame number (``renders/x/height.####.exr``). A
-    glob's frame numbers are the last run of digits in each file's name.
-
-    Raises
-    ------
-    ValueError
-        When nothing matches, the pattern has several runs of ``#``, or two files have
-        the same frame number.
-    """
-    folder, name = os.path.split(os.path.expanduser(sequence))
-    runs = list(_FRAME_RUN.finditer(name))
-    found: list[tuple[int | None, Path]] = []
-    if runs:
-        if len(runs) > 1:
-            raise ValueError(f"sequence: {sequence!r} has {len(runs)} runs of '#'; allowed: one, for the frame number")
-        run = runs[0]
-        prefix, suffix = name[: run.start()], name[run.end():]
-        matcher = re.compile(re.escape(prefix) + r"(-?\d+)" + re.escape(suffix) + r"\Z")
-        candidates = glob.glob(os.path.join(folder, glob.escape(prefix) + "*" + glob.escape(suffix)))
-        for path in candidates:
-            match = matcher.match(os.path.basename(path))
-            if match:
-                found.append((int(match.group(1)), Path(path)))
-    else:
-        for path in glob.glob(os.path.expanduser(sequence)):
-            base = os.path.basename(path)
-            stem = base[: -len(os.path.splitext(base)[1])] if os.path.splitext(base)[1] else base
-            digits = _DIGITS.findall(stem)
-            found.append((int(digits[-1]) if digits else None, Path(path)))
-    found = [(frame, path) for frame, path in found if path.is_file()]
-    if not found:
-        raise ValueError(f"sequence: no files match {sequence!r}")
-    found.sort(key=lambda item: (item[0] is None, item[0] if item[0] is not None else 0, str(item[1])))
-    numbers = [frame for frame, _ in found if frame is not None]
-    if len(set(numbers)) != len(numbers):
-        seen: dict[int, Path] = {}
-        for frame, path in found:
-            if frame is not None and frame in seen:
-                raise ValueError(
-                    f"sequence: frame {frame} matches both '{seen[frame]}' and '{path}'; narrow the pattern"
-                )
-            if frame is not None:
-                seen[frame] = path
-    return found
-
-
-def _select_frames(files: list[tuple[int | None, Path]], frames: str | None) -> list[tuple[int | None, Path]]:
-    """Files within ``--frames A-B``; the frame numbers must then run without gaps."""
-    if frames is not None:
-        match = re.fullmatch(r"\s*(-?\d+)\s*-\s*(-?\d+)\s*", frames)
-        if not match or int(match.group(1)) > int(match.group(2)):
-            raise ValueError(f"--frames: {frames!r} is not allowed; allowed: a range A-B of frame numbers with A <= B")
-        first, last = int(match.group(1)), int(match.group(2))
-        if any(frame is None for frame, _ in files):
-            raise ValueError("--frames: the file names carry no frame numbers to select by")
-        files = [(frame, path) for frame, path in files if first <= frame <= last]  # type: ignore[operator]
-        if not files:
-            raise ValueError(f"--frames: no file of the sequence has a frame number from {first} to {last}")
-    numbers = [frame for frame, _ in files]
-    if all(frame is not None for frame in numbers) and len(numbers) > 1:
-        expected = set(range(numbers[0], numbers[-1] + 1))  # type: ignore[arg-type]
-        missing = sorted(expected - set(numbers))  # type: ignore[arg-type]
-        if missing:
-            shown = ", ".join(str(m) for m in missing[:5]) + (", ..." if len(missing) > 5 else "")
-            raise ValueError(
-                f"sequence: frames {shown} are missing between {numbers[0]} and {numbers[-1]}; the analysis "
-                f"needs evenly spaced frames (use --frames A-B to pick a complete run)"
-            )
-    return files
-
-
-def _read_channels(path: Path) -> tuple[dict[str, NDArray[np.float32]], dict[str, Any]]:
-    """Every channel of one frame file and its header attributes (PNG: none)."""
-    suffix = path.suffix.lower()
-    if suffix not in _FORMATS:
-        raise ValueError(f"sequence: '{path}' is not a supported format; allowed: {', '.join(_FORMATS)}")
-    from .io.errors import CorruptFileError
-
-    try:
-        if suffix == ".exr":
-            from .io.exr import read_exr
-
-            return read_exr(path)
-        from .io.png import read_png16
-
-        values, _ = read_png16(path)
-        if values.ndim == 2:
-            return {"Y": values}, {}
-        return {name: values[..., i] for i, name in enumerate("RGB")}, {}
-    except CorruptFileError as error:
-        raise ValueError(str(error)) from None
-    except OSError as error:
-        reason = error.strerror or str(error)
-        missing = f" ({error.filename})" if error.filename and str(error.filename) != str(path) else ""
-        raise ValueError(f"cannot read '{path}': {reason}{missing}") from None
-
-
-@dataclass(frozen=True)
-class _Layout:
-    """Where a file keeps height and, for displacement maps, the lateral displacement."""
-
-    height: str
-    lateral: tuple[str, float, str, float] | None  # (x channel, sign, y channel, sign)
-    description: str
-
-
-def _displacement_layout(prefix: str, up_axis: str) -> _Layout:
-    """Scene axes of a displacement map (see `oceanfield.maps`): z-up (X, Y, Z) = (x, y, z);
-    y-up (X, Y, Z) = (x, z, −y). Channels R, G, B hold scene X, Y, Z."""
-    r, g, b = (prefix + c for c in "RGB")
-    if up_axis == "z":
-        return _Layout(b, (r, 1.0, g, 1.0), f"{b} of an RGB displacement map (z up)")
-    return _Layout(g, (r, 1.0, b, -1.0), f"{g} of an RGB displacement map (y up)")
-
-
-def _choose_layout(
-    names: Iterable[str], attributes: dict[str, Any], channel: str | None, up_axis: str, path: Path
-) -> _Layout:
-    names = list(names)
-    available = ", ".join(sorted(names))
-    if channel is not None:
-        if channel not in names:
-            raise ValueError(f"--channel: {channel!r} is not in '{path}'; available: {available}")
-        return _Layout(channel, None, f"channel {channel}")
-    kind = attributes.get("oceanfield.map")
-    if isinstance(kind, str) and kind in _NOT_HEIGHT_MAPS:
-        raise ValueError(
-            f"sequence: '{path}' holds a {kind} map, not heights; analyse the height or displacement "
-            f"sequence, or pass --channel to force a channel (available: {available})"
-        )
-    if kind != "displacement":
-        for name in _HEIGHT_CHANNELS:
-            if name in names:
-                return _Layout(name, None, f"channel {name}")
-    for prefix in _DISPLACEMENT_LAYERS:
-        if all(prefix + c in names for c in "RGB"):
-            return _displacement_layout(prefix, up_axis)
-    raise ValueError(
-        f"sequence: no height channel in '{path}' (looked for Y, height.Y and an RGB displacement map); "
-        f"available: {available}; pass --channel NAME"
-    )
-
-
-def _parse_crop(text: str, rows: int, cols: int) -> tuple[int, int, int]:
-    """``X,Y,SIZE`` (or ``X,Y,W,H`` with W = H) in texels, inside a rows × cols frame."""
-    parts = [part.strip() for part in text.split(",")]
-    try:
-        numbers = [int(part) for part in parts]
-    except ValueError:
-        numbers = []
-    if len(numbers) == 4 and numbers[2] != numbers[3]:
-        raise ValueError(
-            f"--crop: {text!r} is {numbers[2]}×{numbers[3]} texels, not square; allowed: X,Y,SIZE "
-            f"(the analysis needs a square region)"
-        )
-    if len(numbers) == 4:
-        numbers = numbers[:3]
-    if len(numbers) != 3:
-        raise ValueError(f"--crop: {text!r} is not allowed; allowed: X,Y,SIZE in whole texels")
-    x, y, size = numbers
-    if size < _MIN_SIZE:
-        raise ValueError(f"--crop: size {size} is not allowed; allowed: at least {_MIN_SIZE} texels")
-    if x < 0 or y < 0 or x + size > cols or y + size > rows:
-        raise ValueError(
-            f"--crop: {text!r} reaches outside the {cols}×{rows} frame; allowed: X >= 0, Y >= 0, "
-            f"X + SIZE <= {cols}, Y + SIZE <= {rows}"
-        )
-    return x, y, size
-
-
-def _attribute_number(attributes: dict[str, Any], name: str, *, positive: bool = True) -> float | None:
-    value = attributes.get(name)
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
-        return None
-    value = float(value)
-    return value if math.isfinite(value) and (value > 0 or not positive) else None
-
-
-def _header_notes(
-    first: dict[str, Any], last: dict[str, Any], count: int, fps: float, size: float, metres_per_unit: float
-) -> list[str]:
-    """Where the files' own headers (their frame rate or time stamps, their tile size)
-    disagree with what the command line says; the command line wins."""
-    notes = []
-    header_fps = _attribute_number(first, "oceanfield.fps")
-    t_first = _attribute_number(first, "oceanfield.time_s", positive=False)
-    t_last = _attribute_number(last, "oceanfield.time_s", positive=False)
-    if header_fps is None and t_first is not None and t_last is not None and count > 1 and t_last > t_first:
-        header_fps = (count - 1) / (t_last - t_first)
-    if header_fps is not None and abs(header_fps / fps - 1.0) > 1e-3:
-        notes.append(f"the files say {header_fps:.4g} fps; using --fps {fps:g}")
-    header_size = _attribute_number(first, "oceanfield.tile_size")
-    if header_size is not None and abs(header_size * metres_per_unit / size - 1.0) > 1e-3:
-        notes.append(
-            f"the files say the tile is {header_size * metres_per_unit:g} m ({header_size:g} scene units); "
-            f"using --tile-size {size:g} m"
-        )
-    return notes
-
-
-def _size_and_rate(args: argparse.Namespace, attributes: dict[str, Any], metres_per_unit: float) -> tuple[float, float]:
-    """Tile size in metres and frame rate: the command line's, else the files' own headers."""
-    if args.tile_size is not None:
-        size = _check_positive("--tile-size", args.tile_size, "metres")
-    else:
-        header_size = _attribute_number(attributes, "oceanfield.tile_size")
-        if header_size is None:
-            raise ValueError(
-                "--tile-size: not given, and the files do not say how large an area they cover; "
-                "allowed: the side of the area in metres, e.g. --tile-size 256"
-            )
-        size = header_size * metres_per_unit
-    if args.fps is not None:
-        fps = _check_positive("--fps", args.fps, "frames per second")
-    else:
-        header_fps = _attribute_number(attributes, "oceanfield.fps")
-        if header_fps is None:
-            raise ValueError(
-                "--fps: not given, and the files do not say their frame rate; "
-                "allowed: frames per second, e.g. --fps 24"
-            )
-        fps = header_fps
-    return size, fps
-
-
-def run_analyze_command(args: argparse.Namespace) -> int:
-    """``oceanfield analyze``: read a sequence, measure it, print the verdict (or JSON),
-    write the report picture if asked. User errors raise ValueError (exit status 2)."""
-    if args.report is not None:
-        report = Path(args.report)
-        if report.suffix.lower() != ".png":
-            raise ValueError(f"--report: {args.report!r} is not allowed; allowed: a file name ending in .png")
-        if not report.parent.is_dir() and str(report.parent) != "":
-            raise ValueError(f"--report: the folder '{report.parent}' does not exist")
-    files = _select_frames(expand_sequence(args.sequence), args.frames)
-    if len(files) < MIN_FRAMES:
-        raise ValueError(
-            f"sequence: {len(files)} frame{'s' if len(files) != 1 else ''} matched {args.sequence!r}; "
-            f"the frequency analysis needs at least {MIN_FRAMES} (64 or more resolve a sea well)"
-        )
-    channels, attributes = _read_channels(files[0][1])
-    if args.metres_per_unit is not None:
-        metres_per_unit = _check_positive("--metres-per-unit", args.metres_per_unit, "metres per scene unit")
-    else:
-        metres_per_unit = _attribute_number(attributes, "oceanfield.metres_per_unit") or 1.0
-    size, fps = _size_and_rate(args, attributes, metres_per_unit)
-    header_up = attributes.get("oceanfield.up_axis")
-    up_axis = args.up_axis or (header_up if header_up in ("y", "z") else "y")
-    layout = _choose_layout(channels, attributes, args.channel, up_axis, files[0][1])
-    rows, cols = channels[layout.height].shape
-    if args.crop is not None:
-        x0, y0, n = _parse_crop(args.crop, rows, cols)
-        periodic: bool | None = False if n < min(rows, cols) or rows != cols else None
-    elif rows != cols:
-        raise ValueError(
-            f"sequence: the frames are {cols}×{rows} texels; the analysis needs a square region: pass --crop X,Y,SIZE"
-        )
-    else:
-        x0, y0, n, periodic = 0, 0, rows, None
-    region = (slice(y0, y0 + n), slice(x0, x0 + n))
-    spacing = size / cols
-    depth = np.inf
-    target = None
-    if args.against is not None:
-        from .preset import load_preset, to_sea_state
-
-        target = to_sea_state(load_preset(args.against))
-        depth = target.depth
-    if args.depth is not None:
-        depth = check_depth(args.depth, "--depth")
-
-    accumulator = SequenceAccumulator(len(files), n, n * spacing, fps, periodic=periodic)
-    first_shape = (rows, cols)
-    needed = [layout.height] + ([layout.lateral[0], layout.lateral[2]] if layout.lateral else [])
-    last_attributes = attributes
-    for index, (_, path) in enumerate(files):
-        if index:
-            channels, last_attributes = _read_channels(path)
-            missing = [name for name in needed if name not in channels]
-            if missing:
-                raise ValueError(
-                    f"sequence: '{path}' has no channel {missing[0]!r}; available: {', '.join(sorted(channels))}"
-                )
-        shape = channels[layout.height].shape
-        if shape != first_shape:
-            raise ValueError(
-                f"sequence: '{path}' is {shape[1]}×{shape[0]} texels but '{files[0][1]}' is "
-                f"{first_shape[1]}×{first_shape[0]}; all frames must share one resolution"
-            )
-        height = channels[layout.height][region] * np.float32(metres_per_unit)
-        lateral = None
-        if layout.lateral is not None:
-            x_name, x_sign, y_name, y_sign = layout.lateral
-            lateral = (
-                channels[x_name][region] * np.float32(x_sign * metres_per_unit),
-                channels[y_name][region] * np.float32(y_sign * metres_per_unit),
-            )
-        accumulator.add(height, lateral)
-        del channels
-    result = accumulator.finish(depth=depth, target=target)
-    notes = _header_notes(attributes, last_attributes, len(files), fps, size, metres_per_unit)
-    if layout.lateral is not None and args.up_axis is None and header_up not in ("y", "z"):
-        notes.append("the up axis of the displacement map was assumed to be y; pass --up-axis if it is z")
-    if notes:
-        result = _with_notes(result, notes)
-    frame_numbers = [frame for frame, _ in files]
-    source = (
-        f"{len(files)} files {files[0][1].name} … {files[-1][1].name}, {layout.description}, "
-        f"× {metres_per_unit:g} m per unit" + (f", crop {x0},{y0},{n}" if args.crop is not None else "")
-    )
-    if args.json:
-        data = result.to_dict()
-        data["source"] = {
-            "sequence": args.sequence,
-            "files": len(files),
-            "first_frame": frame_numbers[0],
-            "last_frame": frame_numbers[-1],
-            "channel": layout.height,
-            "layout": layout.description,
-            "metres_per_unit": metres_per_unit,
-            "crop": None if args.crop is None else [x0, y0, n],
-            "against": args.against,
-        }
-        print(json.dumps(_json_ready(data), indent=2))
-    else:
-        print(format_verdict(result, against=args.against, source=source))
-    if args.report is not None:
-        from .analyze_plot import write_report
-
-        try:
-            written = write_report(result, args.report, title=f"{args.sequence}", against=args.against)
-        except OSError as error:  # an unwritable folder or a full disk: the user's to fix
-            raise ValueError(str(error)) from None
-        if not args.json:
-            print(f"report written to {written}")
-    return 0
-
-
-def _with_notes(result: SequenceAnalysis, notes: Sequence[str]) -> SequenceAnalysis:
-    from dataclasses import replace
-
-    return replace(result, notes=tuple(notes) + result.notes)
