@@ -167,7 +167,7 @@ def _label(axes, x: str, y: str, title: str, legend: str) -> None:
 
 
 def _bearing(angle: float | None) -> str:
-    from .analyze import whole_degrees
+    from .verdict import whole_degrees
 
     value = whole_degrees(angle)
     return "n/a" if value is None else f"{value:.0f}"
