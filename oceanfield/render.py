@@ -786,7 +786,10 @@ def run_render_command(args) -> int:
     from .report import fold_warning
 
     preset = load_preset(args.preset, overrides=tuple(args.overrides), allow_outside_output=False)
-    for message in [*preset_warnings(preset), fold_warning(preset)]:
+    # The folded share costs an Ocean and a few frames: check it once per job, not per
+    # farm chunk (`oceanfield stats` reports it too).
+    folding = fold_warning(preset) if args.chunk is None else None
+    for message in [*preset_warnings(preset), folding]:
         if message:
             print(f"oceanfield: warning: {message}", file=sys.stderr)
     root = Path(args.out) if args.out else Path("renders")
