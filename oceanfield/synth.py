@@ -310,9 +310,12 @@ class Ocean:
 
         Samples the periodic tile at ``t`` with a cubic B-spline (``order=3``, the default)
         or bilinear (``order=1``) interpolation that wraps across the seams, so any world
-        position is valid. Returns an array of shape ``x.shape + (3,)``. The cubic spline
-        reproduces the maps to within about 1 % of the height's standard deviation when the
-        tile's resolution captures the spectrum (tested); bilinear is coarser.
+        position is valid. Returns an array of shape ``x.shape + (3,)``. At texel centres it
+        equals the maps exactly. Between them the error comes from the shortest waves on
+        the lattice (a few texels long): measured against the exact Fourier sum, the cubic
+        spline's rms error is 0.7 % of the height's standard deviation on a 256² tile four
+        peak wavelengths wide and 2.8 % on a 128² tile eight wide; bilinear is about three
+        times coarser (tested).
         """
         from scipy import ndimage
 
