@@ -786,21 +786,21 @@ def run_render_command(args) -> int:
     from .report import fold_warning
 
     preset = load_preset(args.preset, overrides=tuple(args.overrides), allow_outside_output=False)
-    # The folded share costs an Ocean and a few frames: check it once per job, not per
-    # farm chunk (`oceanfield stats` reports it too).
-    folding = fold_warning(preset) if args.chunk is None else None
-    for message in [*preset_warnings(preset), folding]:
-        if message:
-            print(f"oceanfield: warning: {message}", file=sys.stderr)
     root = Path(args.out) if args.out else Path("renders")
     plan = plan_render(preset, root=root, frames=args.frames, chunk=args.chunk)
     if args.workers is not None and args.workers < 1:
         raise ValueError(f"--workers: {args.workers} is not allowed; allowed: an integer >= 1")
+    # The folded share costs an Ocean and a few frames: check it once per job, not per
+    # farm chunk (`oceanfield stats` reports it too).
+    folding = fold_warning(preset) if args.chunk is None and plan.frames else None
+    for message in [*preset_warnings(preset), folding]:
+        if message:
+            print(f"oceanfield: warning: {message}", file=sys.stderr)
     if not plan.frames:
         print(f"nothing to render: chunk {args.chunk} of {len(parse_frames(args.frames, preset.time.frames))} frames is empty")
         return 0
     print(f"rendering {len(plan.frames)} frames of {preset.name} ({', '.join(preset.maps)}) into {plan.folder}")
-    progress = _progress_reporter(len(plan.frames))
+    progress = _Progress(len(plan.frames))
     try:
         summary = render(plan, workers=args.workers, scheduler=args.scheduler, overwrite=args.overwrite,
                          progress=progress.update)
@@ -815,7 +815,7 @@ def run_render_command(args) -> int:
     return 1
 
 
-class _progress_reporter:  # noqa: N801 - used like a function
+class _Progress:
     """A tqdm bar on a terminal; one plain line per frame otherwise (farm logs)."""
 
     def __init__(self, total: int) -> None:

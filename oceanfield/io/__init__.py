@@ -12,6 +12,8 @@ from oceanfield.io.exr import (
     PRECISIONS,
     exr_is_complete,
     read_exr,
+    read_exr_attributes,
+    to_pixels,
     write_exr,
 )
 from oceanfield.io.png import read_png16, sidecar_path, write_png16
@@ -26,9 +28,11 @@ __all__ = [
     "exr_is_complete",
     "is_temporary",
     "read_exr",
+    "read_exr_attributes",
     "read_png16",
     "remove_stale_temporaries",
     "sidecar_path",
+    "to_pixels",
     "write_exr",
     "write_png16",
 ]
