@@ -474,6 +474,21 @@ def _direction_and_spread(direction: float, spreading_name: str, spread: float |
     return direction, float(cos2s_exponent(spread))
 
 
+def _peak_at(shape: Component, peak: float, depth: float, gravity: float) -> Component:
+    """``shape`` with its ωp parameter moved so that the spectrum's actual peak is ``peak``.
+
+    The depth factor of a TMA spectrum rises with ω and pulls the peak above the JONSWAP
+    parameter (a 7 s sea in 5 m of water peaks at 6.9 s); the shift is smooth and small,
+    so a few fixed-point steps ωp ← ωp · peak / found converge to 1e-9.
+    """
+    for _ in range(50):
+        found = SeaState((shape,), depth=depth, gravity=gravity).peak_frequency()
+        if abs(found / peak - 1.0) < 1e-10:
+            break
+        shape = Component(**{**_fields(shape), "peak_frequency": shape.peak_frequency * peak / found})
+    return shape
+
+
 def _fitted_alpha(shape: Component, hs: float, depth: float, gravity: float) -> float:
     """α such that 4√m0 = hs exactly for ``shape`` (whose own α is 1)."""
     probe = SeaState((shape,), depth=depth, gravity=gravity)
@@ -538,12 +553,13 @@ def wind_sea(
     if fetch is None:
         return developed
     fetch = _check_number("fetch", fetch, 0.0, _MAX_FETCH)
-    name = "jonswap" if spectrum == "pierson_moskowitz" else spectrum
+    # A fetch-limited Pierson–Moskowitz sea keeps its shape (γ = 1) with the fetch laws'
+    # peak and level: JONSWAP's form with γ = 1 is exactly PM.
     limited = Component(
-        name,
+        "jonswap" if spectrum == "pierson_moskowitz" else spectrum,
         spectra.jonswap_fetch_peak_frequency(wind_speed, fetch, gravity=gravity),
         spectra.jonswap_fetch_alpha(wind_speed, fetch, gravity=gravity),
-        gamma=gamma,
+        gamma=1.0 if spectrum == "pierson_moskowitz" else gamma,
         **common,
     )
     sea = dict(depth=depth, gravity=gravity)
@@ -601,6 +617,8 @@ def height_period(
         cutoff_length=_check_number("cutoff_length", cutoff_length, 0.0, 1.0e3, low_open=False),
         label=label,
     )
+    if spectrum == "tma" and math.isfinite(depth):
+        shape = _peak_at(shape, 2.0 * math.pi / tp, depth, gravity)
     alpha = _fitted_alpha(shape, hs, depth, gravity)
     if not alpha <= _MAX_ALPHA:  # name the user's arguments, not the derived constant
         where = "" if math.isinf(depth) else f" in {depth:g} m of water"
