@@ -52,6 +52,8 @@ __all__ = [
     "spectra_kernel",
     "surface_kernel",
     "velocity_kernel",
+    "jacobian_spectra_kernel",
+    "lingering_foam_kernel",
     "spectra_reference",
     "surface_reference",
 ]
@@ -239,6 +241,59 @@ def velocity_kernel(h0, slots, omega_table, rotation, dk, lateral, out):  # prag
             vyi = lateral * uy * vr
             out[0, iy, ix] = complex(vxr - vyi, vxi + vyr)
             out[1, iy, ix] = complex(vr, vi)
+
+
+@numba.njit(parallel=True, cache=True, fastmath=False)
+def jacobian_spectra_kernel(h0, slots, rotation, dk, lateral, out):  # pragma: no cover - compiled
+    # The three lateral-displacement derivatives alone, packed as (∂Dx/∂x + i ∂Dy/∂y,
+    # ∂Dx/∂y): what lingering foam needs from a past instant, in two transforms.
+    n = h0.shape[0]
+    half = n // 2
+    q_max = slots.shape[0] - 1
+    for row in numba.prange(n):
+        iy = np.int64(row)
+        my = n - iy if iy > 0 else 0
+        ny = iy if iy < half else iy - n
+        ky = dk * ny
+        for column in range(n):
+            ix = np.int64(column)
+            mx = n - ix if ix > 0 else 0
+            nx = ix if ix < half else ix - n
+            q = nx * nx + ny * ny
+            if q > q_max or q == 0:
+                out[0, iy, ix] = 0.0
+                out[1, iy, ix] = 0.0
+                continue
+            kx = dk * nx
+            k = math.sqrt(kx * kx + ky * ky)
+            a = h0[iy, ix]
+            b = h0[my, mx]
+            e = rotation[slots[q]]
+            c = e.real
+            s = -e.imag
+            hr = a.real * c + a.imag * s + b.real * c + b.imag * s
+            hi = a.imag * c - a.real * s - b.imag * c + b.real * s
+            fxx = -lateral * kx * kx / k
+            fyy = -lateral * ky * ky / k
+            fxy = -lateral * kx * ky / k
+            out[0, iy, ix] = complex(fxx * hr - fyy * hi, fxx * hi + fyy * hr)
+            out[1, iy, ix] = complex(fxy * hr, fxy * hi)
+
+
+@numba.njit(parallel=True, cache=True, fastmath=False)
+def lingering_foam_kernel(derivatives, fields, fold_threshold, foam_ramp, weight):  # pragma: no cover
+    # foam = max(foam, weight · fold(J_past)) in place of the frame's foam (plane 3, real).
+    n = fields.shape[1]
+    for iy in numba.prange(n):
+        for ix in range(n):
+            d0 = derivatives[0, iy, ix]
+            jxy = derivatives[1, iy, ix].real
+            jac = (1.0 + d0.real) * (1.0 + d0.imag) - jxy * jxy
+            past = (fold_threshold - jac) / foam_ramp
+            past = weight * min(max(past, 0.0), 1.0)
+            v = fields[3, iy, ix]
+            if past > v.real:
+                fields[3, iy, ix] = complex(past, v.imag)
 
 
 # -- plain numpy references (tests hold the kernels against these) ----------------------

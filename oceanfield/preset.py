@@ -155,10 +155,12 @@ class TileSettings:
 
 @dataclass(frozen=True)
 class SurfaceSettings:
-    """Lateral displacement scale (0 = height only) and the Jacobian below which foam forms."""
+    """Lateral displacement scale (0 = height only), the Jacobian below which foam forms,
+    and how long foam lingers after the surface stops folding (0 = not at all)."""
 
     lateral_factor: float
     fold_threshold: float
+    foam_memory_s: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -678,7 +680,8 @@ def _read_tile(sec: Section) -> TileSettings:
 def _read_surface(sec: Section) -> SurfaceSettings:
     lateral = sec.number("lateral_factor", 1.0, low=0.0, high=5.0)
     threshold = sec.number("fold_threshold", 0.3, low=-1.0, high=1.0)
-    return SurfaceSettings(lateral, threshold)
+    memory = sec.number("foam_memory_s", 0.0, low=0.0, high=60.0)
+    return SurfaceSettings(lateral, threshold, memory)
 
 
 def _read_maps(top: Section) -> Any:

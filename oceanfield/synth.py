@@ -33,6 +33,7 @@ _PERSISTENT_BYTES = 8 + 4
 _FRAME_BYTES = 4 * 8
 _VELOCITY_BYTES = 2 * 8 + 12
 _BLOCK_ROWS = 128
+_FOAM_WINDOW = 3.0  # lingering foam looks back three e-folding times (5 % of it is left)
 
 # splitmix64 constants (Steele, Lea & Flood 2014, "Fast splittable pseudorandom number
 # generators", OOPSLA): a counter-based hash that keys every wave by (seed, nx, ny) alone.
@@ -119,6 +120,14 @@ class Ocean:
         Jacobian at which foam begins.
     foam_ramp : float
         Jacobian drop below ``fold_threshold`` over which foam rises from 0 to 1.
+    foam_memory : float
+        Seconds foam lingers after the surface stops folding (its e-folding time; 0 = foam
+        only where the surface folds now). Each frame re-derives the Jacobian at
+        ``foam_samples`` past instants over the last three ``foam_memory`` seconds and keeps
+        the largest decayed foam, so frames stay pure functions of time. Each past instant
+        costs about half a frame (two transforms).
+    foam_samples : int
+        Past instants sampled when ``foam_memory`` > 0 (1 to 64).
     velocity : bool
         Also compute the surface velocity (two more transforms a frame).
     fft_workers : int or None
@@ -142,6 +151,8 @@ class Ocean:
         loop_period: float | None = None,
         fold_threshold: float = 0.3,
         foam_ramp: float = 0.3,
+        foam_memory: float = 0.0,
+        foam_samples: int = 8,
         velocity: bool = False,
         fft_workers: int | None = None,
     ) -> None:
@@ -154,6 +165,9 @@ class Ocean:
         _check_finite("lateral_factor", lateral_factor, low=0.0)
         _check_finite("fold_threshold", fold_threshold, low=-1e6)
         _check_finite("foam_ramp", foam_ramp, low=0.0, low_open=True)
+        _check_finite("foam_memory", foam_memory, low=0.0)
+        if isinstance(foam_samples, bool) or not isinstance(foam_samples, (int, np.integer)) or not 1 <= foam_samples <= 64:
+            raise ValueError(f"foam_samples: {foam_samples!r} is not allowed; allowed: an integer from 1 to 64")
         if loop_period is not None:
             _check_finite("loop_period", loop_period, low=0.0, low_open=True)
         if fft_workers is not None and (isinstance(fft_workers, bool) or not isinstance(fft_workers, int) or fft_workers < 1):
@@ -165,6 +179,8 @@ class Ocean:
         self.loop_period = None if loop_period is None else float(loop_period)
         self.fold_threshold = float(fold_threshold)
         self.foam_ramp = float(foam_ramp)
+        self.foam_memory = float(foam_memory)
+        self.foam_samples = int(foam_samples)
         self.velocity = bool(velocity)
         self.fft_workers = fft_workers if fft_workers is not None else (os.cpu_count() or 1)
         self._check_memory()
@@ -192,6 +208,7 @@ class Ocean:
             lateral_factor=preset.surface.lateral_factor,
             loop_period=preset.time.loop_period_s,
             fold_threshold=preset.surface.fold_threshold,
+            foam_memory=preset.surface.foam_memory_s,
             velocity=("velocity" in preset.maps) if velocity is None else velocity,
             fft_workers=fft_workers,
         )
@@ -289,8 +306,28 @@ class Ocean:
         # h(x) = Σ ĥ e^{ik·x}: an unnormalised inverse transform (norm="forward").
         scipy.fft.ifft2(buffer, axes=(-2, -1), norm="forward", overwrite_x=True, workers=self.fft_workers)
         _kernels.surface_kernel(buffer, self.fold_threshold, self.foam_ramp)
+        if self.foam_memory > 0.0 and self.lateral_factor > 0.0:
+            self._linger(float(t), buffer)
         velocity = self._velocity(rotation) if self.velocity else None
         return _fields_from_packed(float(t), buffer, velocity)
+
+    def _linger(self, t: float, buffer: NDArray[np.complex64]) -> None:
+        """Raise the frame's foam to the decayed foam of past instants (see ``foam_memory``)."""
+        import scipy.fft
+
+        from . import _kernels
+
+        n = self.tile.resolution
+        derivatives = np.empty((2, n, n), dtype=np.complex64)
+        rotation = np.empty(self._omega_used.shape, dtype=np.complex128)
+        step = _FOAM_WINDOW * self.foam_memory / self.foam_samples
+        for j in range(1, self.foam_samples + 1):
+            _kernels.rotation_kernel(self._omega_used, t - j * step, rotation)
+            _kernels.jacobian_spectra_kernel(self._h0, self._slots, rotation, self.tile.dk, self.lateral_factor,
+                                             derivatives)
+            scipy.fft.ifft2(derivatives, axes=(-2, -1), norm="forward", overwrite_x=True, workers=self.fft_workers)
+            weight = math.exp(-j * step / self.foam_memory)
+            _kernels.lingering_foam_kernel(derivatives, buffer, self.fold_threshold, self.foam_ramp, weight)
 
     def _velocity(self, rotation: NDArray[np.complex128]) -> NDArray[np.float32]:
         import scipy.fft

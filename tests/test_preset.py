@@ -657,3 +657,15 @@ def test_no_warnings_for_a_sensible_preset():
 def test_each_warning_fires(tmp_path, text, fragment):
     found = _warnings(tmp_path, text)
     assert any(fragment in w for w in found), found
+
+
+def test_foam_memory_key_defaults_checks_and_reaches_the_ocean(tmp_path):
+    """surface.foam_memory_s: default 0, range 0–60 s, and it reaches the synthesiser."""
+    from oceanfield.synth import Ocean
+
+    assert load_preset("moderate_breeze").surface.foam_memory_s == 0.0
+    preset = load_preset("moderate_breeze", overrides=("surface.foam_memory_s=1.5", "tile.resolution=32"))
+    assert preset.surface.foam_memory_s == 1.5
+    assert Ocean.from_preset(preset).foam_memory == 1.5
+    with pytest.raises(PresetError, match=r"foam_memory_s.*-2"):
+        load_preset("moderate_breeze", overrides=("surface.foam_memory_s=-2",))

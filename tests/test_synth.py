@@ -844,3 +844,49 @@ def test_displacement_between_texels_against_the_exact_fourier_sum(resolution, s
         errors[order] = float(np.sqrt(np.mean((got - exact) ** 2))) / scale
     assert errors[3] < cubic_bound
     assert errors[1] > 2.0 * errors[3]
+
+
+def _folding_sea():
+    return SeaState((height_period(3.0, 6.0, spread=math.radians(20)),))
+
+
+def test_lingering_foam_is_the_largest_decayed_past_foam():
+    """With foam_memory M and S samples, foam(t) = max over j = 0…S of
+    e^{−jΔ/M}·clip((threshold − J(t − jΔ))/ramp, 0, 1), Δ = 3M/S: recomputed here from
+    frames of an Ocean without memory at the past instants (float32 tolerance)."""
+    tile = Tile(200.0, 64)
+    plain = Ocean(_folding_sea(), tile, seed=2, lateral_factor=2.5)
+    lingering = Ocean(_folding_sea(), tile, seed=2, lateral_factor=2.5, foam_memory=2.0, foam_samples=6)
+    t = 10.0
+    step = 3.0 * 2.0 / 6
+    expected = plain.frame(t).foam.astype(np.float64)
+    for j in range(1, 7):
+        past = plain.frame(t - j * step).jacobian.astype(np.float64)
+        fold = np.clip((0.3 - past) / 0.3, 0.0, 1.0)
+        expected = np.maximum(expected, math.exp(-j * step / 2.0) * fold)
+    got = lingering.frame(t)
+    np.testing.assert_allclose(got.foam, expected, rtol=0, atol=1e-5)
+    assert got.foam.mean() > 1.5 * plain.frame(t).foam.mean()  # the memory shows
+    np.testing.assert_array_equal(got.height, plain.frame(t).height)  # nothing else changes
+
+
+def test_no_foam_memory_is_instantaneous_foam():
+    tile = Tile(200.0, 64)
+    a = Ocean(_folding_sea(), tile, seed=2, lateral_factor=2.5).frame(4.0)
+    b = Ocean(_folding_sea(), tile, seed=2, lateral_factor=2.5, foam_memory=0.0, foam_samples=3).frame(4.0)
+    np.testing.assert_array_equal(a.foam, b.foam)
+
+
+@pytest.mark.parametrize(
+    ("keyword", "value", "fragment"),
+    [
+        ("foam_memory", -1.0, "foam_memory"),
+        ("foam_memory", float("nan"), "foam_memory"),
+        ("foam_samples", 0, "foam_samples"),
+        ("foam_samples", 65, "foam_samples"),
+        ("foam_samples", True, "foam_samples"),
+    ],
+)
+def test_bad_foam_memory_settings_are_refused(keyword, value, fragment):
+    with pytest.raises(ValueError, match=fragment):
+        Ocean(_folding_sea(), Tile(100.0, 16), **{keyword: value})
