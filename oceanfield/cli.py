@@ -153,7 +153,7 @@ def _cmd_presets(args: argparse.Namespace) -> int:
                 "hs_m": stats.hs,
                 "tp_s": stats.tp,
                 "peak_wavelength_m": stats.peak_wavelength,
-                "towards_deg": math.degrees(stats.mean_direction),
+                "towards_deg": round(math.degrees(stats.mean_direction), 6) % 360.0,
                 "beaufort": stats.beaufort,
             }
         )
@@ -167,7 +167,7 @@ def _cmd_presets(args: argparse.Namespace) -> int:
             continue
         print(
             f"{row['name']:<24} {row['hs_m']:>7.2f} {row['tp_s']:>6.2f} {row['peak_wavelength_m']:>8.1f} "
-            f"{row['towards_deg']:>7.0f}° {row['beaufort']:>4d}  {row['description']}"
+            f"{round(row['towards_deg']) % 360:>7d}° {row['beaufort']:>4d}  {row['description']}"
         )
     return 0
 

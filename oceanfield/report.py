@@ -60,7 +60,7 @@ def _row(stats) -> dict[str, Any]:
         "peak_wavelength_m": stats.peak_wavelength,
         "peak_phase_speed_mps": stats.peak_phase_speed,
         "peak_group_speed_mps": stats.peak_group_speed,
-        "towards_deg": math.degrees(stats.mean_direction),
+        "towards_deg": round(math.degrees(stats.mean_direction), 6) % 360.0,
         "directional_spread_deg": math.degrees(stats.directional_spread),
         "significant_steepness": stats.significant_steepness,
         "beaufort": stats.beaufort,
@@ -114,7 +114,7 @@ def format_sea_report(report: dict[str, Any]) -> str:
         lines.append(
             f"{label[:22]:<22} {row['hs_m']:>7.2f} {row['tp_s']:>6.2f} {row['tm02_s']:>7.2f} "
             f"{row['peak_wavelength_m']:>8.1f} {row['peak_phase_speed_mps']:>7.2f} "
-            f"{row['significant_steepness']:>6.3f} {row['towards_deg']:>7.0f}° "
+            f"{row['significant_steepness']:>6.3f} {round(row['towards_deg']) % 360:>7d}° "
             f"{row['directional_spread_deg']:>6.0f}° {row['beaufort']:>4d}"
         )
     tile = report["tile"]
