@@ -74,7 +74,7 @@ def build_parser() -> argparse.ArgumentParser:
     render.add_argument("--overwrite", action="store_true", help="replace frames and a manifest from another preset")
 
     analyze = commands.add_parser("analyze", help="measure a height sequence's spectrum, statistics and wave timing")
-    analyze.add_argument("sequence", help="files: a glob or a pattern with #### for the frame number")
+    analyze.add_argument("sequence", help="a folder of frames, a glob, or a pattern with #### for the frame number")
     analyze.add_argument("--tile-size", type=float, default=None, metavar="METRES",
                          help="side of the area the frames cover (default: from oceanfield's EXR header)")
     analyze.add_argument("--fps", type=float, default=None, help="frames per second (default: from oceanfield's EXR header)")

@@ -629,3 +629,36 @@ def test_error_normal_map_is_not_height(tmp_path, capsys):
 
 def test_error_report_must_be_png(tmp_path, capsys):
     assert "--report" in _error(capsys, _small_sequence(tmp_path), *BASIC, "--report", str(tmp_path / "r.jpg"))
+
+
+def _numbered_files(folder, names, count=3):
+    folder.mkdir(parents=True, exist_ok=True)
+    for name in names:
+        for frame in range(1001, 1001 + count):
+            (folder / f"{name}.{frame:04d}.exr").write_bytes(b"")
+
+
+@pytest.mark.parametrize(
+    ("names", "chosen"),
+    [
+        (["height", "displacement", "normal", "foam"], "height.####.exr"),
+        (["displacement", "normal", "foam"], "displacement.####.exr"),
+        (["surface_P"], "surface_P.####.exr"),
+    ],
+)
+def test_a_folder_names_its_height_sequence(tmp_path, names, chosen):
+    """A supervisor can point the analyzer at a folder: one sequence is taken as it is;
+    among our maps, height is preferred, then displacement."""
+    from oceanfield.io.sequence import folder_sequence
+
+    _numbered_files(tmp_path / "shot", names)
+    assert folder_sequence(str(tmp_path / "shot")) == str(tmp_path / "shot" / chosen)
+
+
+@pytest.mark.parametrize(("names", "fragment"), [(["normal", "foam"], "several sequences"), ([], "no numbered")])
+def test_a_folder_without_a_clear_height_sequence_is_refused(tmp_path, names, fragment):
+    from oceanfield.io.sequence import expand_sequence
+
+    _numbered_files(tmp_path / "shot", names)
+    with pytest.raises(ValueError, match=fragment):
+        expand_sequence(str(tmp_path / "shot"))

@@ -33,6 +33,7 @@ from oceanfield.io.exr import read_exr
 from oceanfield.io.png import read_png16
 
 __all__ = [
+    "folder_sequence",
     "ChannelLayout",
     "choose_layout",
     "expand_sequence",
@@ -50,12 +51,60 @@ _DISPLACEMENT_LAYERS = ("", "displacement.")
 _NOT_HEIGHT_MAPS = ("normal", "foam", "velocity")
 
 
+#: Height sources preferred, in order, when a folder holds several of our map sequences.
+_PREFERRED_MAPS = ("height", "displacement")
+_FRAME_FILE = re.compile(r"^(?P<prefix>.*?)(?P<digits>\d+)(?P<suffix>\.(?:exr|png))$", re.IGNORECASE)
+
+
+def folder_sequence(folder: str) -> str:
+    """The ``#`` pattern of the height sequence in ``folder``.
+
+    Files named ``<prefix><frame digits>.exr`` (or ``.png``) are grouped by prefix and
+    extension. One group is taken as it is; among several, a ``height`` sequence, then a
+    ``displacement`` one (oceanfield's own maps) is chosen; otherwise the groups are listed
+    so the user can pick one.
+
+    Raises
+    ------
+    ValueError
+        When the folder holds no numbered EXR or PNG files, or several sequences and none
+        of them is a height or displacement map.
+    """
+    groups: dict[tuple[str, str], int] = {}
+    widths: dict[tuple[str, str], int] = {}
+    for entry in sorted(os.listdir(os.path.expanduser(folder))):
+        match = _FRAME_FILE.match(entry)
+        if match is None or entry.startswith("."):
+            continue
+        key = (match.group("prefix"), match.group("suffix"))
+        groups[key] = groups.get(key, 0) + 1
+        widths[key] = len(match.group("digits"))
+    if not groups:
+        raise ValueError(f"sequence: the folder {folder!r} holds no numbered .exr or .png frames")
+    chosen = None
+    if len(groups) == 1:
+        chosen = next(iter(groups))
+    else:
+        for name in _PREFERRED_MAPS:
+            matches = [key for key in groups if key[0].rstrip("._-").lower().endswith(name)]
+            if len(matches) == 1:
+                chosen = matches[0]
+                break
+    if chosen is None:
+        listed = ", ".join(f"{prefix}{'#' * widths[(prefix, suffix)]}{suffix} ({groups[(prefix, suffix)]} files)"
+                           for prefix, suffix in groups)
+        raise ValueError(f"sequence: the folder {folder!r} holds several sequences ({listed}); allowed: name one")
+    prefix, suffix = chosen
+    return os.path.join(os.path.expanduser(folder), prefix + "#" * widths[chosen] + suffix)
+
+
 def expand_sequence(sequence: str) -> list[tuple[int | None, Path]]:
     """The files of a sequence, sorted by frame number: (frame number or None, path).
 
-    ``sequence`` is a glob (``renders/x/height.*.exr``) or a pattern whose file name has
-    one run of ``#`` standing for the frame number (``renders/x/height.####.exr``). A
-    glob's frame numbers are the last run of digits in each file's name.
+    ``sequence`` is a glob (``renders/x/height.*.exr``), a pattern whose file name has
+    one run of ``#`` standing for the frame number (``renders/x/height.####.exr``), or a
+    folder (see :func:`folder_sequence`). A glob's frame numbers are the last run of
+    digits in each file's name.
 
     Parameters
     ----------
@@ -74,6 +123,8 @@ def expand_sequence(sequence: str) -> list[tuple[int | None, Path]]:
         When nothing matches, the pattern has several runs of ``#``, or two files have
         the same frame number.
     """
+    if os.path.isdir(os.path.expanduser(sequence)):
+        sequence = folder_sequence(sequence)
     folder, name = os.path.split(os.path.expanduser(sequence))
     runs = list(_FRAME_RUN.finditer(name))
     found: list[tuple[int | None, Path]] = []
