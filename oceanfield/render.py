@@ -19,6 +19,7 @@ Nothing lost, nothing half-written:
 from __future__ import annotations
 
 import dataclasses
+import errno
 import json
 import math
 import os
@@ -281,12 +282,17 @@ def frame_is_complete(plan: RenderPlan, frame: int) -> bool:
 
 @dataclass(frozen=True)
 class FrameResult:
-    """What happened to one frame: ``written``, ``skipped`` (already complete) or ``failed``."""
+    """What happened to one frame: ``written``, ``skipped`` (already complete) or ``failed``.
+
+    ``fatal`` marks a failure no later frame can escape (the disk is full or read-only):
+    the worker that meets one stops rendering.
+    """
 
     frame: int
     status: str
     seconds: float = 0.0
     error: str = ""
+    fatal: bool = False
 
 
 @dataclass
@@ -347,16 +353,27 @@ def _render_frames(plan: RenderPlan, frames: Iterable[int], *, threads: int, ove
         return
     n = plan.preset.tile.resolution
     scales = _png_scales(plan.preset) if plan.preset.output.format == "png" else None
+    stop: list[FrameResult] = []  # the first fatal failure, if any
+
+    def watch(result: FrameResult) -> None:
+        if result.fatal and not stop:
+            stop.append(result)
+        report(result)
+
     sink = None
     if len(todo) * n * n >= _WRITER_PROCESS_TEXELS:
-        sink = _ProcessSink.start(_arena_bytes(plan), report)
+        sink = _ProcessSink.start(_arena_bytes(plan), watch)
     if sink is None:
-        sink = _ThreadSink(report)
+        sink = _ThreadSink(watch)
     _set_threads(threads)
+    done: set[int] = set()
     try:
         ocean = _cached_ocean(plan, threads)
         buffer = ocean.new_buffer()
         for frame in todo:
+            if stop:  # the disk is full or read-only: no later frame can be written
+                break
+            done.add(frame)
             started = time.perf_counter()
             fields = ocean.frame(plan.preset.time.frame_time(frame), buffer=buffer)
             try:
@@ -367,6 +384,10 @@ def _render_frames(plan: RenderPlan, frames: Iterable[int], *, threads: int, ove
             sink.submit(frame, jobs, started)
     finally:
         sink.close()
+    if stop:
+        for frame in todo:
+            if frame not in done:
+                report(FrameResult(frame, "failed", 0.0, stop[0].error, fatal=True))
 
 
 _OCEANS: dict[tuple[str, int], Any] = {}
@@ -392,11 +413,18 @@ def _arena_bytes(plan: RenderPlan) -> int:
     return channels * 4 * plan.preset.tile.resolution**2
 
 
+#: Write failures that every later frame would meet too: no space, quota, read-only.
+_FATAL_ERRNOS = frozenset(getattr(errno, name) for name in ("ENOSPC", "EDQUOT", "EROFS") if hasattr(errno, name))
+
+
 def _write_result(frame: int, jobs: list[FileJob], started: float) -> FrameResult:
     try:
         write_jobs(jobs)
         return FrameResult(frame, "written", time.perf_counter() - started)
-    except (OSError, ValueError) as error:
+    except OSError as error:
+        fatal = error.errno in _FATAL_ERRNOS
+        return FrameResult(frame, "failed", time.perf_counter() - started, str(error), fatal)
+    except ValueError as error:
         return FrameResult(frame, "failed", time.perf_counter() - started, str(error))
     except Exception as error:  # noqa: BLE001 - a bug must fail the frame, not hang the render
         return FrameResult(frame, "failed", time.perf_counter() - started, f"{type(error).__name__}: {error}")
@@ -807,12 +835,26 @@ def run_render_command(args) -> int:
     finally:
         progress.close()
     print(summary.line())
-    for frame, error in sorted(summary.failed.items()):
-        print(f"oceanfield: error: frame {frame}: {error}", file=sys.stderr)
+    for error, frames in _grouped_failures(summary.failed):
+        which = f"frame {frames[0]}" if len(frames) == 1 else f"{len(frames)} frames ({frames[0]}–{frames[-1]})"
+        print(f"oceanfield: error: {which}: {error}", file=sys.stderr)
     if summary.ok:
         print(f"frames are in {plan.folder}")
         return 0
     return 1
+
+
+def _grouped_failures(failed: dict[int, str]) -> list[tuple[str, list[int]]]:
+    """Failures grouped by message, so a full disk reads as one line, not one per frame.
+
+    Messages that differ only in the file named (``cannot write '...': reason``) group
+    together under their reason.
+    """
+    groups: dict[str, list[int]] = {}
+    for frame, error in sorted(failed.items()):
+        key = re.sub(r"^cannot write '[^']*': ", "cannot write: ", error)
+        groups.setdefault(key, []).append(frame)
+    return list(groups.items())
 
 
 class _Progress:

@@ -270,3 +270,35 @@ def test_sigkill_mid_render_leaves_no_partial_frame_and_resumes(tmp_path, preset
     print(f"killed while writing: {caught_writing}; temporaries left: {leftovers}; "
           f"processes outlived the render by 5 s: {children_outlived}; "
           f"frames redone: {written}, skipped: {skipped}")
+
+
+def test_a_disk_that_fills_mid_render_stops_with_one_clear_line(tmp_path, preset_file, capsys, monkeypatch):
+    """A full disk (ENOSPC) after two frames: the render stops rendering (no point trying
+    the rest), every unwritten frame counts as failed, stderr names the cause once, the
+    exit status is non-zero, and no partial file is left under a frame's name."""
+    import errno
+
+    import oceanfield.render as render_module
+    from oceanfield.io.errors import OutputError
+
+    original = render_module.write_jobs
+    written: list[int] = []
+
+    def filling_disk(jobs):
+        if len(written) >= 2:
+            raise OutputError(jobs[0].path, "No space left on device", errno.ENOSPC)
+        written.append(1)
+        return original(jobs)
+
+    monkeypatch.setattr(render_module, "write_jobs", filling_disk)
+    preset = preset_file(settings={"time": {"last_frame": 1012}})
+    code = main(["render", str(preset), "--out", str(tmp_path / "out"), "--workers", "1"])
+    captured = capsys.readouterr()
+    assert code == 1
+    errors = [line for line in captured.err.splitlines() if line.startswith("oceanfield: error:")]
+    assert len(errors) == 1, captured.err
+    assert "10 frames (1003–1012)" in errors[0] and "No space left on device" in errors[0]
+    assert "2 written, 0 skipped (already complete), 10 failed of 12 frames" in captured.out
+    frames = sorted((tmp_path / "out").rglob("*.exr"))
+    assert len(frames) == 2 * 3  # two frames of three maps, whole
+    assert all(exr_is_complete(path) for path in frames)
