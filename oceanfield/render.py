@@ -848,13 +848,13 @@ def _grouped_failures(failed: dict[int, str]) -> list[tuple[str, list[int]]]:
     """Failures grouped by message, so a full disk reads as one line, not one per frame.
 
     Messages that differ only in the file named (``cannot write '...': reason``) group
-    together under their reason.
+    together; the first frame's message, with its file, stands for the group.
     """
-    groups: dict[str, list[int]] = {}
+    groups: dict[str, tuple[str, list[int]]] = {}
     for frame, error in sorted(failed.items()):
         key = re.sub(r"^cannot write '[^']*': ", "cannot write: ", error)
-        groups.setdefault(key, []).append(frame)
-    return list(groups.items())
+        groups.setdefault(key, (error, []))[1].append(frame)  # the first frame's message stands
+    return list(groups.values())
 
 
 class _Progress:
