@@ -19,9 +19,7 @@ Nothing lost, nothing half-written:
 from __future__ import annotations
 
 import dataclasses
-import errno
 import json
-import math
 import os
 import queue
 import re
@@ -32,7 +30,17 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Callable, Iterable, Sequence
 
-import numpy as np
+# The frame-writing pipeline lives in ``writing``; its public names stay importable from here.
+from .writing import FileJob, FrameResult, encode_frame, render_frame_files, write_jobs
+from .writing import (
+    _ATTRIBUTE_PREFIX,
+    _LAYERS_MAP,
+    _WRITER_PROCESS_TEXELS,
+    _arena_bytes,
+    _png_scales,
+    _ProcessSink,
+    _ThreadSink,
+)
 
 __all__ = [
     "MANIFEST_NAME",
@@ -52,9 +60,6 @@ __all__ = [
 ]
 
 MANIFEST_NAME = "oceanfield-manifest.json"
-_ATTRIBUTE_PREFIX = "oceanfield."
-_LAYERS_MAP = "layers"  # the multi-layer file's {map} in the file pattern
-_PNG_RANGE_HEIGHTS = 2.5  # PNG value range: ± this many Hs (common practice: crests rarely pass 1.3 Hs)
 
 
 # -- what to render --------------------------------------------------------------------------
@@ -144,112 +149,7 @@ def plan_render(preset, *, root: str | os.PathLike[str] = "renders", frames: str
     return RenderPlan(preset, Path(root), tuple(selected), render_hash(preset))
 
 
-# -- one frame's files -------------------------------------------------------------------------
-
-
-def _attributes(plan: RenderPlan, frame: int, map_name: str) -> dict[str, Any]:
-    from . import __version__
-
-    preset = plan.preset
-    p = _ATTRIBUTE_PREFIX
-    return {
-        f"{p}version": __version__,
-        f"{p}map": map_name,
-        f"{p}frame": int(frame),
-        f"{p}time_s": float(preset.time.frame_time(frame)),
-        f"{p}fps": float(preset.time.fps),
-        f"{p}tile_size": float(preset.tile.size_m / preset.scene.metres_per_unit),
-        f"{p}metres_per_unit": float(preset.scene.metres_per_unit),
-        f"{p}up_axis": preset.scene.up_axis,
-        f"{p}seed": int(preset.seed) if preset.seed < 2**31 else str(preset.seed),
-        f"{p}preset_hash": plan.hash,
-        f"{p}preset": preset.name,
-    }
-
-
-def _png_range(plan: RenderPlan, map_name: str, scale: dict[str, float]) -> tuple[float, float]:
-    """A fixed value range for a PNG map over the whole sequence (stored in its sidecar)."""
-    if map_name == "normal":
-        return (-1.0, 1.0)
-    if map_name == "foam":
-        return (0.0, 1.0)
-    reach = scale["velocity" if map_name == "velocity" else "length"]
-    return (-reach, reach)
-
-
-def _png_scales(preset) -> dict[str, float]:
-    from .preset import to_sea_state
-
-    stats = to_sea_state(preset).statistics()
-    lateral = max(1.0, preset.surface.lateral_factor)
-    length = _PNG_RANGE_HEIGHTS * stats.hs * lateral / preset.scene.metres_per_unit
-    return {"length": length, "velocity": length * 2.0 * math.pi / stats.tm02}
-
-
-@dataclass(frozen=True)
-class FileJob:
-    """One file of a frame, encoded and ready to write (no physics left to do).
-
-    For EXR, ``channels`` holds each channel already in its pixel type (float16 or
-    float32); for PNG, one float32 array under the key ``""`` and its ``value_range``.
-    """
-
-    kind: str
-    path: Path
-    channels: dict[str, np.ndarray]
-    compression: str = "zip"
-    attributes: dict[str, Any] | None = None
-    value_range: tuple[float, float] | None = None
-
-
-def encode_frame(plan: RenderPlan, frame: int, fields, png_scales: dict[str, float] | None = None) -> list[FileJob]:
-    """Every file of one frame as :class:`FileJob` s: scene axes, scene units, pixel types."""
-    from .io.exr import to_pixels
-    from .maps import layered_channels, map_channels
-
-    preset = plan.preset
-    output, scene = preset.output, preset.scene
-    jobs = []
-    for name, path in plan.files(frame).items():
-        if output.format == "exr":
-            if name == _LAYERS_MAP:
-                channels = layered_channels(fields, preset.maps, metres_per_unit=scene.metres_per_unit,
-                                            up_axis=scene.up_axis)
-                pixels = {c: to_pixels(c, a, output.precision_for(c.split(".")[0])) for c, a in channels.items()}
-            else:
-                channels = map_channels(fields, name, metres_per_unit=scene.metres_per_unit, up_axis=scene.up_axis)
-                pixels = {c: to_pixels(c, a, output.precision_for(name)) for c, a in channels.items()}
-            jobs.append(FileJob("exr", path, pixels, output.compression, _attributes(plan, frame, name)))
-        else:
-            channels = map_channels(fields, name, metres_per_unit=scene.metres_per_unit, up_axis=scene.up_axis)
-            arrays = list(channels.values())
-            array = np.stack(arrays, axis=-1) if len(arrays) > 1 else arrays[0]
-            scales = png_scales if png_scales is not None else _png_scales(preset)
-            jobs.append(FileJob("png", path, {"": array}, value_range=_png_range(plan, name, scales)))
-    return jobs
-
-
-def write_jobs(jobs: Iterable[FileJob]) -> list[Path]:
-    """Write encoded files, each atomically; returns the paths written."""
-    from .io.exr import write_exr
-    from .io.png import write_png16
-
-    written = []
-    for job in jobs:
-        job.path.parent.mkdir(parents=True, exist_ok=True)
-        if job.kind == "exr":
-            precision = {c: ("half" if a.dtype == np.float16 else "float") for c, a in job.channels.items()}
-            write_exr(job.path, job.channels, precision=precision, compression=job.compression,
-                      attributes=job.attributes)
-        else:
-            write_png16(job.path, job.channels[""], value_range=job.value_range)
-        written.append(job.path)
-    return written
-
-
-def render_frame_files(plan: RenderPlan, frame: int, fields, png_scales: dict[str, float] | None = None) -> list[Path]:
-    """Write every file of one frame from its fields; returns the paths written."""
-    return write_jobs(encode_frame(plan, frame, fields, png_scales))
+# -- what is already done ----------------------------------------------------------------------
 
 
 def frame_is_complete(plan: RenderPlan, frame: int) -> bool:
@@ -278,21 +178,6 @@ def frame_is_complete(plan: RenderPlan, frame: int) -> bool:
 
 
 # -- running ---------------------------------------------------------------------------------
-
-
-@dataclass(frozen=True)
-class FrameResult:
-    """What happened to one frame: ``written``, ``skipped`` (already complete) or ``failed``.
-
-    ``fatal`` marks a failure no later frame can escape (the disk is full or read-only):
-    the worker that meets one stops rendering.
-    """
-
-    frame: int
-    status: str
-    seconds: float = 0.0
-    error: str = ""
-    fatal: bool = False
 
 
 @dataclass
@@ -324,12 +209,6 @@ def _set_threads(threads: int) -> None:
     import numba
 
     numba.set_num_threads(max(1, min(threads, numba.config.NUMBA_NUM_THREADS)))
-
-
-# A writer process pays for its start (about a second: a fresh interpreter importing numpy
-# and OpenEXR) only on jobs of at least this many texels; smaller jobs use a writer thread.
-_WRITER_PROCESS_TEXELS = 8 * 1024 * 1024
-_BUFFERS = 2  # frames in flight per worker: one being computed, one being written
 
 
 def _render_frames(plan: RenderPlan, frames: Iterable[int], *, threads: int, overwrite: bool,
@@ -364,7 +243,7 @@ def _render_frames(plan: RenderPlan, frames: Iterable[int], *, threads: int, ove
     if len(todo) * n * n >= _WRITER_PROCESS_TEXELS:
         sink = _ProcessSink.start(_arena_bytes(plan), watch)
     if sink is None:
-        sink = _ThreadSink(watch)
+        sink = _ThreadSink(watch, write_jobs)  # looked up here: replacing render.write_jobs reaches it
     _set_threads(threads)
     done: set[int] = set()
     try:
@@ -402,164 +281,6 @@ def _cached_ocean(plan: RenderPlan, threads: int):
         _OCEANS.clear()  # one at a time: an Ocean holds 12 bytes a texel
         _OCEANS[key] = Ocean.from_preset(plan.preset, fft_workers=threads)
     return _OCEANS[key]
-
-
-def _arena_bytes(plan: RenderPlan) -> int:
-    """Upper bound of one frame's encoded channels in bytes (4 bytes a channel texel)."""
-    per_map = {"displacement": 3, "normal": 3, "velocity": 3, "foam": 1, "height": 1}
-    channels = sum(per_map[m] for m in plan.preset.maps)
-    if plan.preset.output.multilayer and plan.preset.output.format == "exr":
-        channels *= 2
-    return channels * 4 * plan.preset.tile.resolution**2
-
-
-#: Write failures that every later frame would meet too: no space, quota, read-only.
-_FATAL_ERRNOS = frozenset(getattr(errno, name) for name in ("ENOSPC", "EDQUOT", "EROFS") if hasattr(errno, name))
-
-
-def _write_result(frame: int, jobs: list[FileJob], started: float) -> FrameResult:
-    try:
-        write_jobs(jobs)
-        return FrameResult(frame, "written", time.perf_counter() - started)
-    except OSError as error:
-        fatal = error.errno in _FATAL_ERRNOS
-        return FrameResult(frame, "failed", time.perf_counter() - started, str(error), fatal)
-    except ValueError as error:
-        return FrameResult(frame, "failed", time.perf_counter() - started, str(error))
-    except Exception as error:  # noqa: BLE001 - a bug must fail the frame, not hang the render
-        return FrameResult(frame, "failed", time.perf_counter() - started, f"{type(error).__name__}: {error}")
-
-
-class _ThreadSink:
-    """Writes encoded frames on a thread of this process (one frame queued at a time)."""
-
-    def __init__(self, report) -> None:
-        self.report = report
-        self.pending: queue.Queue = queue.Queue(maxsize=1)
-        self.thread = threading.Thread(target=self._run, name="oceanfield-writer", daemon=True)
-        self.thread.start()
-
-    def submit(self, frame: int, jobs: list[FileJob], started: float) -> None:
-        self.pending.put((frame, jobs, started))
-
-    def _run(self) -> None:
-        while True:
-            item = self.pending.get()
-            if item is None:
-                return
-            self.report(_write_result(*item))
-
-    def close(self) -> None:
-        self.pending.put(None)
-        self.thread.join()
-
-
-class _ProcessSink:
-    """Writes encoded frames in a child process, passing channels through shared memory."""
-
-    @classmethod
-    def start(cls, arena_bytes: int, report) -> "_ProcessSink | None":
-        import multiprocessing
-        from multiprocessing import shared_memory
-
-        memories = []
-        try:
-            memories = [shared_memory.SharedMemory(create=True, size=arena_bytes) for _ in range(_BUFFERS)]
-            context = multiprocessing.get_context("spawn")
-            tasks, results = context.Queue(), context.Queue()
-            process = context.Process(target=_writer_main, args=([m.name for m in memories], tasks, results),
-                                      name="oceanfield-writer", daemon=True)
-            process.start()
-        except (OSError, AssertionError, ValueError):
-            # No shared memory, or a daemonic parent (a Dask worker) that may not start
-            # children: the caller falls back to the writer thread.
-            for memory in memories:
-                memory.close()
-                memory.unlink()
-            return None
-        return cls(memories, tasks, results, process, report)
-
-    def __init__(self, memories, tasks, results, process, report) -> None:
-        self.memories, self.tasks, self.results, self.process, self.report = memories, tasks, results, process, report
-        self.free = list(range(len(memories)))
-        self.in_flight = 0
-
-    def submit(self, frame: int, jobs: list[FileJob], started: float) -> None:
-        while not self.free:
-            self._collect()
-        slot = self.free.pop()
-        arena = self.memories[slot].buf
-        offset = 0
-        described = []
-        for job in jobs:
-            layout = []
-            for name, array in job.channels.items():
-                view = np.ndarray(array.shape, dtype=array.dtype, buffer=arena, offset=offset)
-                view[...] = array
-                layout.append((name, array.dtype.str, array.shape, offset))
-                offset += array.nbytes
-                del view
-            described.append((dataclasses.replace(job, channels={}), layout))
-        self.tasks.put((frame, described, slot, started))
-        self.in_flight += 1
-
-    def _collect(self) -> None:
-        while True:
-            try:
-                result, slot = self.results.get(timeout=1.0)
-                break
-            except queue.Empty:
-                if not self.process.is_alive():
-                    raise RuntimeError("the writer process died") from None
-        self.in_flight -= 1
-        self.free.append(slot)
-        self.report(result)
-
-    def close(self) -> None:
-        try:
-            while self.in_flight and self.process.is_alive():
-                self._collect()
-            self.tasks.put(None)
-            self.process.join(timeout=30)
-        finally:
-            if self.process.is_alive():
-                self.process.terminate()
-            for memory in self.memories:
-                memory.close()
-                memory.unlink()
-
-
-def _writer_main(names: list[str], tasks, results) -> None:
-    """The writer process: map the shared arenas, write each frame it is sent."""
-    from multiprocessing import shared_memory
-
-    memories = [shared_memory.SharedMemory(name=name) for name in names]
-    parent = os.getppid()
-    try:
-        while True:
-            try:
-                item = tasks.get(timeout=1.0)
-            except queue.Empty:
-                if os.getppid() != parent:  # the renderer was killed: stop too
-                    return
-                continue
-            if item is None:
-                return
-            frame, described, slot, started = item
-            arena = memories[slot].buf
-            jobs = [
-                dataclasses.replace(job, channels={
-                    name: np.ndarray(shape, dtype=np.dtype(dtype), buffer=arena, offset=offset)
-                    for name, dtype, shape, offset in layout
-                })
-                for job, layout in described
-            ]
-            result = _write_result(frame, jobs, started)
-            del jobs
-            results.put((result, slot))
-    finally:
-        for memory in memories:
-            memory.close()
 
 
 def _process_worker(plan: RenderPlan, frames: list[int], threads: int, overwrite: bool, events) -> None:
