@@ -1,0 +1,27 @@
+"""The benchmark script runs end to end at toy sizes and prints every figure it promises.
+
+Speed is never asserted here (timed tests are unreliable on shared machines); the ratios
+themselves are checked only for being finite and positive.
+"""
+
+from __future__ import annotations
+
+import re
+
+from oceanfield import bench
+
+
+def test_benchmark_prints_frame_render_and_analyzer_figures(capsys):
+    code = bench.main([
+        "--sizes", "32,64", "--repeat", "1", "--workers", "1",
+        "--render-frames", "2", "--render-size", "32",
+        "--analyze-frames", "16", "--analyze-size", "32",
+    ])
+    assert code == 0
+    out = capsys.readouterr().out
+    rows = re.findall(r"^\s+(32|64)\s+([0-9.]+)\s+([0-9.]+)\s+([0-9.]+)\s+([0-9.]+)\s+([0-9.]+)$", out, re.M)
+    assert [row[0] for row in rows] == ["32", "64"]
+    for row in rows:
+        assert all(float(value) > 0 for value in row[1:])
+    assert re.search(r"1 worker [0-9.]+ s: ratio to floors [0-9.]+", out)
+    assert re.search(r"[0-9.]+ ms per frame streamed", out)
