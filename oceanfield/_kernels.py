@@ -59,6 +59,21 @@ __all__ = [
 ]
 
 
+@numba.njit(inline="always", cache=True)
+def _mirror(i, n):  # pragma: no cover - compiled
+    """The FFT-layout index of −i: 0 stays 0, i becomes n − i."""
+    return n - i if i > 0 else 0
+
+
+@numba.njit(inline="always", cache=True)
+def _evolved(a, b, e):  # pragma: no cover - compiled
+    """(re, im) of ĥ = a e^{−iωt} + conj(b) e^{+iωt} with a = h0(k), b = h0(−k), e = e^{−iωt}."""
+    c = e.real
+    s = -e.imag
+    return (a.real * c + a.imag * s + b.real * c + b.imag * s,
+            a.imag * c - a.real * s - b.imag * c + b.real * s)
+
+
 @numba.njit(parallel=True, cache=True, fastmath=False)
 def rotation_kernel(omega_table, t, out):  # pragma: no cover - compiled
     # e^{-iωt} once per distinct |k|² (ω depends on |k| alone): far fewer sines and cosines
@@ -81,7 +96,7 @@ def spectra_kernel(h0, slots, rotation, dk, lateral, out):  # pragma: no cover -
     # (twice the time at N = 2048).
     for row in numba.prange(half + 1):
         iy = np.int64(row)
-        my = n - iy if iy > 0 else 0
+        my = _mirror(iy, n)
         ny = iy if iy < half else iy - n
         ky = dk * ny
         ix_end = half + 1 if (iy == 0 or iy == half) else n
@@ -91,7 +106,7 @@ def spectra_kernel(h0, slots, rotation, dk, lateral, out):  # pragma: no cover -
         uy_row = np.empty(ix_end)
         kx_row = np.empty(ix_end)
         for ix in range(ix_end):
-            mx = n - ix if ix > 0 else 0
+            mx = _mirror(ix, n)
             nx = ix if ix < half else ix - n
             q = nx * nx + ny * ny
             kx = dk * nx
@@ -105,19 +120,14 @@ def spectra_kernel(h0, slots, rotation, dk, lateral, out):  # pragma: no cover -
             k = math.sqrt(kx * kx + ky * ky)
             a = h0[iy, ix]
             b = h0[my, mx]
-            e = rotation[slots[q]]
-            c = e.real
-            s = -e.imag
-            # ĥ = h0(k) e^{-iωt} + conj(h0(-k)) e^{+iωt}
-            hr_row[ix] = a.real * c + a.imag * s + b.real * c + b.imag * s
-            hi_row[ix] = a.imag * c - a.real * s - b.imag * c + b.real * s
+            hr_row[ix], hi_row[ix] = _evolved(a, b, rotation[slots[q]])
             ux_row[ix] = kx / k
             uy_row[ix] = ky / k
         # Packed A + iB at k is (Ar - Bi) + i(Ai + Br); at -k, conj(A) + i conj(B) is
         # (Ar + Bi) + i(Br - Ai). i·q·ĥ = (-q·hi) + i(q·hr).
         # plane 0: h + i Dx
         for ix in range(ix_end):
-            mx = n - ix if ix > 0 else 0
+            mx = _mirror(ix, n)
             hr, hi, ux = hr_row[ix], hi_row[ix], ux_row[ix]
             dxr = -lateral * ux * hi
             dxi = lateral * ux * hr
@@ -125,7 +135,7 @@ def spectra_kernel(h0, slots, rotation, dk, lateral, out):  # pragma: no cover -
             out[0, my, mx] = complex(hr + dxi, dxr - hi)
         # plane 1: Dy + i sx
         for ix in range(ix_end):
-            mx = n - ix if ix > 0 else 0
+            mx = _mirror(ix, n)
             hr, hi, uy, kx = hr_row[ix], hi_row[ix], uy_row[ix], kx_row[ix]
             dyr = -lateral * uy * hi
             dyi = lateral * uy * hr
@@ -135,7 +145,7 @@ def spectra_kernel(h0, slots, rotation, dk, lateral, out):  # pragma: no cover -
             out[1, my, mx] = complex(dyr + sxi, sxr - dyi)
         # plane 2: sy + i Dxx
         for ix in range(ix_end):
-            mx = n - ix if ix > 0 else 0
+            mx = _mirror(ix, n)
             hr, hi, ux, kx = hr_row[ix], hi_row[ix], ux_row[ix], kx_row[ix]
             syr = -ky * hi
             syi = ky * hr
@@ -144,7 +154,7 @@ def spectra_kernel(h0, slots, rotation, dk, lateral, out):  # pragma: no cover -
             out[2, my, mx] = complex(syr + fxx * hi, fxx * hr - syi)
         # plane 3: Dyy + i Dxy
         for ix in range(ix_end):
-            mx = n - ix if ix > 0 else 0
+            mx = _mirror(ix, n)
             hr, hi, ux, uy, kx = hr_row[ix], hi_row[ix], ux_row[ix], uy_row[ix], kx_row[ix]
             fyy = -lateral * ky * uy
             fxy = -lateral * kx * uy
@@ -207,12 +217,12 @@ def velocity_kernel(h0, slots, omega_table, rotation, dk, lateral, out):  # prag
     for row in numba.prange(n):
         iy = np.int64(row)
         ny = iy if iy < half else iy - n
-        my = (n - iy) % n
+        my = _mirror(iy, n)
         ky = dk * ny
         for column in range(n):
             ix = np.int64(column)
             nx = ix if ix < half else ix - n
-            mx = (n - ix) % n
+            mx = _mirror(ix, n)
             q = nx * nx + ny * ny
             if q > q_max or q == 0:
                 out[0, iy, ix] = 0.0
@@ -252,12 +262,12 @@ def jacobian_spectra_kernel(h0, slots, rotation, dk, lateral, out):  # pragma: n
     q_max = slots.shape[0] - 1
     for row in numba.prange(n):
         iy = np.int64(row)
-        my = n - iy if iy > 0 else 0
+        my = _mirror(iy, n)
         ny = iy if iy < half else iy - n
         ky = dk * ny
         for column in range(n):
             ix = np.int64(column)
-            mx = n - ix if ix > 0 else 0
+            mx = _mirror(ix, n)
             nx = ix if ix < half else ix - n
             q = nx * nx + ny * ny
             if q > q_max or q == 0:
@@ -268,11 +278,7 @@ def jacobian_spectra_kernel(h0, slots, rotation, dk, lateral, out):  # pragma: n
             k = math.sqrt(kx * kx + ky * ky)
             a = h0[iy, ix]
             b = h0[my, mx]
-            e = rotation[slots[q]]
-            c = e.real
-            s = -e.imag
-            hr = a.real * c + a.imag * s + b.real * c + b.imag * s
-            hi = a.imag * c - a.real * s - b.imag * c + b.real * s
+            hr, hi = _evolved(a, b, rotation[slots[q]])
             fxx = -lateral * kx * kx / k
             fyy = -lateral * ky * ky / k
             fxy = -lateral * kx * ky / k
