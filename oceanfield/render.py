@@ -347,6 +347,7 @@ def render(plan: RenderPlan, *, workers: int | None = None, scheduler: str | Any
     finally:
         if own_client:
             client.close()
+    _OCEANS.clear()  # the render is over: do not keep its Ocean (12 bytes a texel)
     summary.written.sort()
     summary.skipped.sort()
     _update_manifest(plan, summary.written + summary.skipped)
@@ -382,21 +383,26 @@ def _run(plan: RenderPlan, summary: RenderSummary, client, count: int, cores: in
 
 def _render_on_processes(plan: RenderPlan, count: int, threads: int, overwrite: bool,
                          record: Callable[[FrameResult], None]) -> None:
-    """One long-lived process per worker, each with a contiguous share of the frames."""
+    """``count`` workers, each with a contiguous share of the frames: this process renders
+    the first share itself (it has already paid for its imports and compiled kernels) and
+    spawns a long-lived process for each other share; their results arrive through a
+    queue that a thread of this process reads while it renders.
+    """
     import multiprocessing
 
     context = multiprocessing.get_context("spawn")
     events = context.Queue()
-    groups = _groups(plan.frames, count)
+    own, *shares = _groups(plan.frames, count)
     workers = [
-        context.Process(target=_process_worker, args=(plan, group, threads, overwrite, events),
-                        name=f"oceanfield-worker-{i}")
-        for i, group in enumerate(groups)
+        context.Process(target=_process_worker, args=(plan, share, threads, overwrite, events),
+                        name=f"oceanfield-worker-{i + 1}")
+        for i, share in enumerate(shares)
     ]
     for worker in workers:
         worker.start()
-    pending = set(plan.frames)
-    try:
+    pending = {frame for share in shares for frame in share}
+
+    def collect() -> None:
         while pending:
             try:
                 result = events.get(timeout=1.0)
@@ -406,14 +412,25 @@ def _render_on_processes(plan: RenderPlan, count: int, threads: int, overwrite: 
                 try:  # every worker is gone: take what is left in the queue, then stop
                     result = events.get(timeout=1.0)
                 except queue.Empty:
-                    break
+                    return
             pending.discard(result.frame)
             record(result)
+
+    collector = threading.Thread(target=collect, name="oceanfield-results", daemon=True)
+    collector.start()
+    try:
+        _render_frames(plan, own, threads=threads, overwrite=overwrite, report=record)
+        collector.join()
+    except BaseException:  # interrupted or failed here: stop the others too
+        for worker in workers:
+            worker.terminate()
+        raise
     finally:
         for worker in workers:
             worker.join(timeout=60)
             if worker.is_alive():
                 worker.terminate()
+        collector.join(timeout=5)
     for frame in sorted(pending):
         record(FrameResult(frame, "failed", 0.0, "its worker process ended without rendering it"))
 
