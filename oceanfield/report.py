@@ -41,7 +41,7 @@ def fold_warning(preset, ocean=None) -> str | None:
     if ocean is None:
         from .synth import Ocean
 
-        ocean = Ocean.from_preset(preset, velocity=False)
+        ocean = Ocean.from_preset(preset, velocity=False, foam_memory=0.0)
     share = fold_fraction(ocean)
     if share <= MAX_FOLDED_SHARE:
         return None
@@ -77,7 +77,7 @@ def sea_report(preset) -> dict[str, Any]:
     components = []
     for settings, stats in zip(preset.sea.components, sea.component_statistics()):
         components.append({"label": settings.label, "spectrum": settings.spectrum, **_row(stats)})
-    ocean = Ocean.from_preset(preset, velocity=False)
+    ocean = Ocean.from_preset(preset, velocity=False, foam_memory=0.0)
     tile = ocean.tile
     return {
         "preset": preset.name,

@@ -184,20 +184,28 @@ class Ocean:
         self.velocity = bool(velocity)
         self.fft_workers = fft_workers if fft_workers is not None else (os.cpu_count() or 1)
         self._check_memory()
-        self._h0, self._omega, self.lattice_variance, self.loop_info = self._build()
+        self._h0, self._omega, self.lattice_variance, self.loop_info, used = self._build()
         # Rotations are needed only for the q = nx² + ny² that carry energy: slot 0 stands
         # for all others (their amplitudes are zero), slots 1… for the used ones.
-        used = np.flatnonzero(self._used)
+        used = np.flatnonzero(used)
         self._slots = np.zeros(self._omega.size, dtype=np.int32)
         self._slots[used] = np.arange(1, used.size + 1, dtype=np.int32)
         self._omega_used = np.concatenate([[0.0], self._omega[used]])
-        del self._used
 
     @classmethod
-    def from_preset(cls, preset, *, velocity: bool | None = None, fft_workers: int | None = None) -> "Ocean":
+    def from_preset(
+        cls,
+        preset,
+        *,
+        velocity: bool | None = None,
+        foam_memory: float | None = None,
+        fft_workers: int | None = None,
+    ) -> "Ocean":
         """The ocean a resolved :class:`~oceanfield.preset.Preset` describes.
 
-        ``velocity`` defaults to whether the preset asks for a velocity map.
+        ``velocity`` defaults to whether the preset asks for a velocity map, ``foam_memory``
+        to the preset's (pass 0 where only the surface's shape matters: lingering foam costs
+        two transforms per past instant).
         """
         from .preset import to_sea_state
 
@@ -208,7 +216,7 @@ class Ocean:
             lateral_factor=preset.surface.lateral_factor,
             loop_period=preset.time.loop_period_s,
             fold_threshold=preset.surface.fold_threshold,
-            foam_memory=preset.surface.foam_memory_s,
+            foam_memory=preset.surface.foam_memory_s if foam_memory is None else foam_memory,
             velocity=("velocity" in preset.maps) if velocity is None else velocity,
             fft_workers=fft_workers,
         )
@@ -224,8 +232,11 @@ class Ocean:
                 f"more than the {_bytes_text(available)} available; allowed: a smaller resolution"
             )
 
-    def _build(self) -> tuple[NDArray[np.complex64], NDArray[np.float64], float, LoopInfo | None]:
-        """Amplitudes h0 on the lattice (a block of rows at a time) and ω per |k|² index."""
+    def _build(
+        self,
+    ) -> tuple[NDArray[np.complex64], NDArray[np.float64], float, LoopInfo | None, NDArray[np.bool_]]:
+        """Amplitudes h0 on the lattice (a block of rows at a time), ω per |k|² index, the
+        lattice's variance, the loop's frequency shifts, and which |k|² carry energy."""
         tile, sea = self.tile, self.sea_state
         n = tile.resolution
         half = n // 2
@@ -258,8 +269,7 @@ class Ocean:
                 float(relative.max()) if relative.size else 0.0,
             )
             omega = quantised
-        self._used = used
-        return h0, omega, variance, info
+        return h0, omega, variance, info, used
 
     # -- frames ------------------------------------------------------------------------
     def new_buffer(self) -> NDArray[np.complex64]:
