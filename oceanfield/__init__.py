@@ -1,5 +1,9 @@
 """oceanfield: tileable animated ocean surfaces for visual effects, checked against physics.
 
+The public names are re-exported here from the rooms of the data flow (``physics`` →
+``surface`` → ``preset`` → ``render`` / ``analysis``, with ``io`` beside); this module knows
+nothing of any of them until a name is first used.
+
 The public names are re-exported here. Modules with heavy imports (numba kernels, OpenEXR,
 matplotlib, Dask) load on first use, so importing the package stays fast and never
 compiles anything.
@@ -14,34 +18,34 @@ __version__ = "0.1.0"
 
 # public name -> module that defines it
 _EXPORTS = {
-    "GRAVITY": "constants",
-    "SEAWATER_DENSITY": "constants",
-    "WATER_DENSITY": "constants",
-    "SURFACE_TENSION": "constants",
-    "SPECTRA": "spectra",
-    "jonswap": "spectra",
-    "pierson_moskowitz": "spectra",
-    "tma": "spectra",
-    "phillips": "spectra",
-    "SPREADING": "spreading",
-    "angular_frequency": "dispersion",
-    "group_velocity": "dispersion",
-    "phase_velocity": "dispersion",
-    "wavenumber": "dispersion",
-    "Component": "seastate",
-    "SeaState": "seastate",
-    "SeaStatistics": "seastate",
-    "wind_sea": "seastate",
-    "height_period": "seastate",
-    "beaufort_sea": "seastate",
-    "Tile": "tile",
-    "Ocean": "synth",
-    "Fields": "fields",
-    "MAPS": "maps",
-    "map_channels": "maps",
-    "Preset": "preset",
-    "PresetError": "preset",
-    "load_preset": "preset",
+    "GRAVITY": "physics.constants",
+    "SEAWATER_DENSITY": "physics.constants",
+    "WATER_DENSITY": "physics.constants",
+    "SURFACE_TENSION": "physics.constants",
+    "SPECTRA": "physics.spectra",
+    "jonswap": "physics.spectra",
+    "pierson_moskowitz": "physics.spectra",
+    "tma": "physics.spectra",
+    "phillips": "physics.spectra",
+    "SPREADING": "physics.spreading",
+    "angular_frequency": "physics.dispersion",
+    "group_velocity": "physics.dispersion",
+    "phase_velocity": "physics.dispersion",
+    "wavenumber": "physics.dispersion",
+    "Component": "physics.seastate",
+    "SeaState": "physics.seastate",
+    "SeaStatistics": "physics.seastate",
+    "wind_sea": "physics.seastate",
+    "height_period": "physics.seastate",
+    "beaufort_sea": "physics.seastate",
+    "Tile": "surface.tile",
+    "Ocean": "surface.synth",
+    "Fields": "surface.fields",
+    "MAPS": "surface.maps",
+    "map_channels": "surface.maps",
+    "Preset": "preset.schema",
+    "PresetError": "preset.schema",
+    "load_preset": "preset.schema",
 }
 
 __all__ = ["__version__", *_EXPORTS]

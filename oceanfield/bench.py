@@ -1,5 +1,7 @@
 """Benchmark: oceanfield against the bare work it cannot avoid, timed side by side.
 
+Knows nothing of formulas: it times the package's public entry points.
+
 Run ``python -m oceanfield.bench`` (``--help`` for options). Every figure is a ratio
 measured in the same run on the same machine, because absolute times on shared machines
 drift: a full frame against the bare inverse FFTs it must do (same library, sizes,
@@ -36,9 +38,9 @@ def time_call(function: Callable[[], object], *, repeat: int, warmup: int = 1) -
 
 
 def _demo_ocean(resolution: int, workers: int):
-    from .seastate import SeaState, wind_sea
-    from .synth import Ocean
-    from .tile import Tile
+    from .physics.seastate import SeaState, wind_sea
+    from .surface.synth import Ocean
+    from .surface.tile import Tile
 
     sea = SeaState((wind_sea(12.0, fetch=80e3, direction=math.radians(30)),))
     return Ocean(sea, Tile(400.0, resolution), seed=1, lateral_factor=1.0, fft_workers=workers)
@@ -109,10 +111,10 @@ def render_benchmark(resolution: int, frames: int, cores: int) -> dict[str, floa
     import OpenEXR
     import scipy.fft
 
-    from .maps import map_channels
-    from .preset import load_preset
-    from .render import plan_render, render
-    from .synth import Ocean
+    from .surface.maps import map_channels
+    from .preset.schema import load_preset
+    from .render.job import plan_render, render
+    from .surface.synth import Ocean
 
     last = 1000 + frames
     preset = load_preset(
@@ -170,7 +172,7 @@ def analyzer_benchmark(resolution: int, frames: int, workers: int) -> dict[str, 
     Frames are synthesised in memory first (not timed), so the figure is the analyzer's
     own cost per frame plus its final measurement, without file reading.
     """
-    from .analyze import SequenceAccumulator
+    from .analysis.measure import SequenceAccumulator
 
     ocean = _demo_ocean(resolution, workers)
     fps = 24.0

@@ -1,5 +1,7 @@
 """The ``oceanfield`` command line: parse, call, report.
 
+Knows nothing of formulas, files or frames: each command calls the room that does the work.
+
 Every user error passes through :func:`_fail`, which prints one clear block to stderr and
 returns exit status 2. Heavy imports (numba kernels, OpenEXR, matplotlib, Dask) happen
 inside the commands that need them, so ``oceanfield --help`` is instant.
@@ -115,14 +117,14 @@ def main(argv: Sequence[str] | None = None) -> int:
 
 
 def _load(args: argparse.Namespace, *, allow_outside_output: bool = False):
-    from .preset import load_preset
+    from .preset.schema import load_preset
 
     return load_preset(args.preset, overrides=tuple(args.overrides), allow_outside_output=allow_outside_output)
 
 
 def _warn(preset, *, folding: bool = True) -> None:
-    from .preset import preset_warnings
-    from .report import fold_warning
+    from .preset.warnings import preset_warnings
+    from .preset.stats import fold_warning
 
     messages = list(preset_warnings(preset))
     if folding:
@@ -134,7 +136,7 @@ def _warn(preset, *, folding: bool = True) -> None:
 
 
 def _cmd_presets(args: argparse.Namespace) -> int:
-    from .preset import PresetError, list_presets, load_preset, to_sea_state
+    from .preset.schema import PresetError, list_presets, load_preset, to_sea_state
 
     rows = []
     for name, _path, description in list_presets():
@@ -173,7 +175,7 @@ def _cmd_presets(args: argparse.Namespace) -> int:
 
 
 def _cmd_stats(args: argparse.Namespace) -> int:
-    from .report import sea_report
+    from .preset.stats import sea_report
 
     preset = _load(args)
     _warn(preset, folding=False)  # the report states the folded share itself
@@ -181,21 +183,21 @@ def _cmd_stats(args: argparse.Namespace) -> int:
     if args.json:
         print(json.dumps(report, indent=2))
     else:
-        from .report import format_sea_report
+        from .preset.stats import format_sea_report
 
         print(format_sea_report(report))
     return 0
 
 
 def _cmd_resolve(args: argparse.Namespace) -> int:
-    from .preset import dump_preset
+    from .preset.schema import dump_preset
 
     print(dump_preset(_load(args)), end="")
     return 0
 
 
 def _cmd_preview(args: argparse.Namespace) -> int:
-    from .preview import write_preview
+    from .preset.preview import write_preview
 
     preset = _load(args, allow_outside_output=True)
     _warn(preset)
@@ -205,13 +207,13 @@ def _cmd_preview(args: argparse.Namespace) -> int:
 
 
 def _cmd_render(args: argparse.Namespace) -> int:
-    from .render import run_render_command
+    from .render.job import run_render_command
 
     return run_render_command(args)
 
 
 def _cmd_analyze(args: argparse.Namespace) -> int:
-    from .analyze import run_analyze_command
+    from .analysis.verdict import run_analyze_command
 
     return run_analyze_command(args)
 

@@ -1,6 +1,6 @@
-"""Tests for oceanfield.analyze: the spectral analyzer on sequences whose answers are known.
+"""Tests for oceanfield.analysis: the spectral analyzer on sequences whose answers are known.
 
-Seas come from our own synthesiser (`oceanfield.synth.Ocean`) or are built on the lattice
+Seas come from our own synthesiser (`oceanfield.surface.synth.Ocean`) or are built on the lattice
 in numpy here; the expected figures come from the sea state that made them (its spectral
 moments, WMO-No. 702) or from the construction itself, never from the analyzer.
 
@@ -20,11 +20,10 @@ import imageio.v3 as iio
 import numpy as np
 import pytest
 
-from oceanfield.analyze import (
+from oceanfield.analysis import (
     SequenceAccumulator,
     analyze_heights,
     directional_moments,
-    expand_sequence,
     fit_dispersion,
     format_verdict,
     frequency_spectrum,
@@ -33,13 +32,14 @@ from oceanfield.analyze import (
     seam_ratio,
 )
 from oceanfield.cli import main
-from oceanfield.constants import GRAVITY
+from oceanfield.io.sequence import expand_sequence
+from oceanfield.physics.constants import GRAVITY
 from oceanfield.io.exr import write_exr
 from oceanfield.io.png import write_png16
 from oceanfield.preset import load_preset, to_sea_state
-from oceanfield.seastate import SeaState, height_period
-from oceanfield.synth import Ocean
-from oceanfield.tile import Tile
+from oceanfield.physics.seastate import SeaState, height_period
+from oceanfield.surface.synth import Ocean
+from oceanfield.surface.tile import Tile
 
 # -- tolerances (the issue's acceptance figures, with the reason for each) ----------------
 
@@ -514,7 +514,7 @@ def test_files_exr_and_png_through_the_command_line(tmp_path, capsys, deep):
 
 @pytest.mark.parametrize("up_axis", ["y", "z"])
 def test_displacement_maps_give_height_and_folding(tmp_path, capsys, up_axis):
-    """RGB displacement maps in scene axes (`oceanfield.maps`): y-up (R, G, B) = (x, z, −y),
+    """RGB displacement maps in scene axes (`oceanfield.surface.maps`): y-up (R, G, B) = (x, z, −y),
     z-up (x, y, z). The analyzer takes the up channel as height and measures folding from
     the lateral channels; it must match the synthesiser's own Jacobian."""
     tp, fps, size = 3.0, 4.0, 8.0 * GRAVITY * 3.0**2 / (2.0 * math.pi)

@@ -11,7 +11,7 @@ import pytest
 
 from oceanfield.cli import main
 from oceanfield.preset import dump_preset, list_presets, load_preset, to_sea_state
-from oceanfield.synth import Ocean
+from oceanfield.surface.synth import Ocean
 
 SMALL = ("--set", "tile.resolution=64")
 

@@ -201,7 +201,7 @@ _KILLED_JOBS = {"writer-thread": 48, "writer-process": 128}
 @pytest.mark.parametrize("writer", list(_KILLED_JOBS))
 def test_sigkill_mid_render_leaves_no_partial_frame_and_resumes(tmp_path, preset_file, capsys, writer):
     """A real SIGKILL mid-run: every file under a frame's name is whole; a re-run completes."""
-    from oceanfield.render import _WRITER_PROCESS_TEXELS
+    from oceanfield.render.writing import _WRITER_PROCESS_TEXELS
 
     frames = _KILLED_JOBS[writer]
     assert (frames * 256**2 >= _WRITER_PROCESS_TEXELS) == (writer == "writer-process")
@@ -278,7 +278,7 @@ def test_a_disk_that_fills_mid_render_stops_with_one_clear_line(tmp_path, preset
     exit status is non-zero, and no partial file is left under a frame's name."""
     import errno
 
-    import oceanfield.render as render_module
+    import oceanfield.render.job as render_module
     from oceanfield.io.errors import OutputError
 
     original = render_module.write_jobs

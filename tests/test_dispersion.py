@@ -1,4 +1,4 @@
-"""Tests for oceanfield.dispersion: ω(k, h) with gravity, depth and surface tension."""
+"""Tests for oceanfield.physics.dispersion: ω(k, h) with gravity, depth and surface tension."""
 
 from __future__ import annotations
 
@@ -10,8 +10,8 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy import optimize
 
-from oceanfield.constants import GRAVITY
-from oceanfield.dispersion import (
+from oceanfield.physics.constants import GRAVITY
+from oceanfield.physics.dispersion import (
     angular_frequency,
     check_depth,
     group_velocity,

@@ -7,7 +7,7 @@ import dataclasses
 import numpy as np
 import pytest
 
-from oceanfield.fields import Fields
+from oceanfield.surface.fields import Fields
 
 
 def _arrays(n: int = 8, velocity: bool = True) -> dict:

@@ -21,7 +21,7 @@ import numpy as np
 import OpenEXR
 import pytest
 
-from oceanfield.fields import Fields
+from oceanfield.surface.fields import Fields
 from oceanfield.io import exr
 from oceanfield.io.atomic import is_temporary
 from oceanfield.io.errors import CorruptFileError, OutputError
@@ -32,7 +32,7 @@ from oceanfield.io.exr import (
     read_exr,
     write_exr,
 )
-from oceanfield.maps import layered_channels
+from oceanfield.surface.maps import layered_channels
 
 #: Unit roundoff of IEEE 754 binary16 (11-bit significand): round-to-nearest keeps a
 #: normal number within a relative 2**-11 (IEEE 754-2008, 3.6).

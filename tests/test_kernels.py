@@ -1,4 +1,4 @@
-"""Tests for oceanfield._kernels: each numba kernel against a plain-numpy reference.
+"""Tests for oceanfield.surface._kernels: each numba kernel against a plain-numpy reference.
 
 The kernels compute in float64 and store complex64 (float32 parts); the references
 compute the same quantities in numpy. Tolerances are float32's: a float32 holds a value
@@ -14,8 +14,8 @@ import math
 import numpy as np
 import pytest
 
-from oceanfield import _kernels
-from oceanfield.tile import Tile
+from oceanfield.surface import _kernels
+from oceanfield.surface.tile import Tile
 
 #: Relative to an array's largest magnitude: ~16 float32 ulps (see the module docstring).
 FLOAT32 = 1e-6
@@ -187,9 +187,9 @@ def test_kernels_accept_a_lattice_with_only_low_waves():
 def test_compact_slots_give_the_same_spectra_as_every_slot():
     """The Ocean keeps rotations only for the q that carry energy; the packed spectra
     must not change (q without energy have zero amplitudes)."""
-    from oceanfield.seastate import SeaState, height_period
-    from oceanfield.synth import Ocean
-    from oceanfield.tile import Tile
+    from oceanfield.physics.seastate import SeaState, height_period
+    from oceanfield.surface.synth import Ocean
+    from oceanfield.surface.tile import Tile
 
     ocean = Ocean(SeaState((height_period(1.0, 6.0),)), Tile(120.0, 48), seed=5)
     t = 2.75

@@ -1,4 +1,4 @@
-"""Tests for oceanfield.maps: scene axes (Y-up, Z-up), scene units, channel naming."""
+"""Tests for oceanfield.surface.maps: scene axes (Y-up, Z-up), scene units, channel naming."""
 
 from __future__ import annotations
 
@@ -7,8 +7,8 @@ import math
 import numpy as np
 import pytest
 
-from oceanfield.fields import Fields
-from oceanfield.maps import MAPS, layered_channels, map_channels
+from oceanfield.surface.fields import Fields
+from oceanfield.surface.maps import MAPS, layered_channels, map_channels
 
 #: float32 division by metres_per_unit is correctly rounded: relative error ≤ 2**-24, with
 #: room for the reciprocal's own rounding.

@@ -16,7 +16,7 @@ import yaml
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from oceanfield.maps import MAPS
+from oceanfield.surface.maps import MAPS
 from oceanfield.preset import (
     Preset,
     PresetError,
@@ -27,7 +27,7 @@ from oceanfield.preset import (
     preset_warnings,
     to_sea_state,
 )
-from oceanfield.seastate import wind_sea
+from oceanfield.physics.seastate import wind_sea
 
 REPOSITORY = Path(__file__).resolve().parent.parent
 
@@ -661,7 +661,7 @@ def test_each_warning_fires(tmp_path, text, fragment):
 
 def test_foam_memory_key_defaults_checks_and_reaches_the_ocean(tmp_path):
     """surface.foam_memory_s: default 0, range 0–60 s, and it reaches the synthesiser."""
-    from oceanfield.synth import Ocean
+    from oceanfield.surface.synth import Ocean
 
     assert load_preset("moderate_breeze").surface.foam_memory_s == 0.0
     preset = load_preset("moderate_breeze", overrides=("surface.foam_memory_s=1.5", "tile.resolution=32"))

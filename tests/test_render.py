@@ -1,4 +1,4 @@
-"""Tests for oceanfield.render: files read back, chunks, processes, Dask, resume, manifest.
+"""Tests for oceanfield.render (plan, job, writing): files read back, chunks, processes, Dask, resume, manifest.
 
 Every written map is compared with the in-memory fields of the same frame,
 ``Ocean.from_preset(preset).frame(preset.time.frame_time(frame))`` passed through
@@ -24,13 +24,13 @@ import OpenEXR
 import pytest
 
 import oceanfield
-from oceanfield import render as render_module
+from oceanfield.render import job as render_module
 from oceanfield.io.exr import exr_is_complete, read_exr, read_exr_attributes
 from oceanfield.io.png import LEVELS, read_png16, sidecar_path
-from oceanfield.maps import map_channels
+from oceanfield.surface.maps import map_channels
 from oceanfield.preset import load_preset
 from oceanfield.render import MANIFEST_NAME, plan_render, render, render_hash
-from oceanfield.synth import Ocean
+from oceanfield.surface.synth import Ocean
 
 #: Unit roundoff of IEEE 754 binary16 (11-bit significand): round-to-nearest keeps a
 #: normal number within a relative 2**-11 (IEEE 754-2008, 3.6).

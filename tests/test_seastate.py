@@ -11,10 +11,10 @@ from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 from scipy import integrate
 
-from oceanfield import spectra
-from oceanfield.constants import GRAVITY, WIND_RATIO_19_5_TO_10
-from oceanfield.dispersion import wavenumber
-from oceanfield.seastate import (
+from oceanfield.physics import spectra
+from oceanfield.physics.constants import GRAVITY, WIND_RATIO_19_5_TO_10
+from oceanfield.physics.dispersion import wavenumber
+from oceanfield.physics.seastate import (
     BEAUFORT,
     Component,
     SeaState,

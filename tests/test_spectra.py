@@ -1,4 +1,4 @@
-"""Tests for oceanfield.spectra: frequency spectra S(ω) and the TMA depth factor.
+"""Tests for oceanfield.physics.spectra: frequency spectra S(ω) and the TMA depth factor.
 
 The shapes are checked against ``wavespectra`` (a general-purpose ocean-wave-spectra
 library, test-only oracle) in Hz: E(f) = 2π S(ω = 2πf). The oracle tests are skipped where
@@ -17,9 +17,9 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy import integrate
 
-from oceanfield import spectra
-from oceanfield.constants import GRAVITY, WIND_RATIO_19_5_TO_10
-from oceanfield.dispersion import wavenumber
+from oceanfield.physics import spectra
+from oceanfield.physics.constants import GRAVITY, WIND_RATIO_19_5_TO_10
+from oceanfield.physics.dispersion import wavenumber
 from tolerances import (
     CHEN_THOMSON_WAVENUMBER,
     DEPTH_FACTOR_TABLE,

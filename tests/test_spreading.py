@@ -1,4 +1,4 @@
-"""Tests for oceanfield.spreading: directional distributions D(θ; ω/ωp)."""
+"""Tests for oceanfield.physics.spreading: directional distributions D(θ; ω/ωp)."""
 
 from __future__ import annotations
 
@@ -22,7 +22,7 @@ from tolerances import (
 
 # The package re-exports the function `spreading`, which shadows the module of that name as
 # an attribute of `oceanfield`; take the module itself from the import system.
-sp = importlib.import_module("oceanfield.spreading")
+sp = importlib.import_module("oceanfield.physics.spreading")
 
 MODELS = tuple(sp.SPREADING)
 RATIOS = np.geomspace(0.1, 10.0, 9)

@@ -1,4 +1,4 @@
-"""Tests for oceanfield.synth: the synthesised surface, checked on its output.
+"""Tests for oceanfield.surface.synth: the synthesised surface, checked on its output.
 
 Every check here renders frames and measures them — variance, height distribution, wave
 speed, seams, loops, normals, velocity, bits — against linear wave theory and the
@@ -16,10 +16,10 @@ import numpy as np
 import pytest
 from scipy import stats
 
-import oceanfield.synth as synth
-from oceanfield import _kernels
+import oceanfield.surface.synth as synth
+from oceanfield.surface import _kernels
 from oceanfield import Ocean, SeaState, Tile, height_period, wind_sea
-from oceanfield.dispersion import angular_frequency, phase_velocity, wavenumber
+from oceanfield.physics.dispersion import angular_frequency, phase_velocity, wavenumber
 
 # -- shared tolerances of this file, each with its reason ---------------------------------
 

@@ -1,4 +1,4 @@
-"""Tests for oceanfield.tile: the periodic wavenumber lattice of one square tile.
+"""Tests for oceanfield.surface.tile: the periodic wavenumber lattice of one square tile.
 
 The lattice is checked on what it hands out (indices, wavenumbers, the carried set,
 texel positions) against the periodicity argument it rests on: a wave repeats across a
@@ -14,7 +14,7 @@ import math
 import numpy as np
 import pytest
 
-from oceanfield.tile import MIN_RESOLUTION, Tile
+from oceanfield.surface.tile import MIN_RESOLUTION, Tile
 
 from tolerances import ROUNDOFF
 

@@ -1,7 +1,8 @@
 """Writers and readers: OpenEXR and 16-bit PNG maps, written atomically.
 
-Nothing here knows of physics: the writers take named channel arrays (see
-`oceanfield.maps`) and put them in files.
+Used from above (``preset``, ``render``, ``analysis``, the command line). It knows
+nothing of physics, synthesis or presets and imports none of them: the writers take named channel
+arrays (see ``oceanfield.surface.maps``) and put them in files.
 """
 
 from oceanfield.io.atomic import atomic_output, is_temporary, remove_stale_temporaries

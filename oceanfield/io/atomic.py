@@ -1,5 +1,7 @@
 """Atomic file output: a file appears under its final name complete, or not at all.
 
+Knows nothing of physics, maps or formats.
+
 A writer writes to a hidden temporary beside the final file; when it finishes cleanly the
 temporary is flushed to disk and renamed onto the final name in one step (`os.replace`,
 atomic within a folder on POSIX and Windows). Readers, resumed renders and other workers

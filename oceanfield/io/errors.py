@@ -1,5 +1,7 @@
 """Errors the readers and writers raise: one line each, naming the file.
 
+Knows nothing of physics or of formats.
+
 Both are `OSError` subclasses, so code that already handles file errors handles these; both
 survive pickling, so a worker process can hand them back to the process that started it.
 """

@@ -1,5 +1,7 @@
 """OpenEXR writer and reader for map channels (the `OpenEXR` package's 3.x API).
 
+Knows nothing of physics: it writes and reads named channels.
+
 Files are single-part scan-line images. Channels are named by the OpenEXR convention
 (``R``, ``G``, ``B``, ``Y``, or ``layer.R`` in a multi-layer file) and stored as 16-bit
 half floats or 32-bit floats, chosen per channel or per layer.

@@ -1,5 +1,7 @@
 """16-bit PNG writer and reader for one map, its value range kept in a JSON sidecar.
 
+Knows nothing of physics: it writes and reads one array and its value range.
+
 A map of real numbers is stored as 16-bit unsigned samples, mapped linearly from a value
 range [lo, hi] to 0 … 65535::
 
@@ -11,7 +13,7 @@ lives beside the image in ``<image>.json`` (``frame.0001.png.json``)::
     {"value_range": [lo, hi], "channels": ["Y"], "encoding": "..."}
 
 with channels ``["Y"]`` for a grey image and ``["R", "G", "B"]`` for a three-channel one, as
-in `oceanfield.maps`. Both files are written atomically: both are complete before either
+in `oceanfield.surface.maps`. Both files are written atomically: both are complete before either
 is renamed into place, the sidecar first, so an image on disk always has its sidecar.
 
 The images are plain PNG (ISO/IEC 15948:2003; W3C "Portable Network Graphics (PNG)

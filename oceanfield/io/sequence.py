@@ -1,12 +1,14 @@
 """Reading a frame sequence from disk: files, frame numbers, channels and header numbers.
 
+Knows nothing of physics or synthesis: it finds files and hands back arrays and header numbers.
+
 A sequence is named by a glob (``renders/x/height.*.exr``) or by a pattern whose file
 name holds one run of ``#`` for the frame number (``renders/x/height.####.exr``).
 `expand_sequence` finds its files in frame order, `select_frames` keeps a run of them
 without gaps, `read_channels` reads one frame's channels (OpenEXR, or 16-bit PNG with
 its sidecar) and header attributes, and `choose_layout` finds where a file keeps its
 height and, in a displacement map, its lateral displacement: from the channel names and
-the ``oceanfield.map`` attribute our renders write (see `oceanfield.maps` for the scene
+the ``oceanfield.map`` attribute our renders write (see `oceanfield.surface.maps` for the scene
 axes of a displacement map). `parse_crop` reads a square region in texels and
 `header_number` a number from a header.
 
@@ -268,7 +270,7 @@ class ChannelLayout:
 
 
 def _displacement_layout(prefix: str, up_axis: str) -> ChannelLayout:
-    """Scene axes of a displacement map (see `oceanfield.maps`): z-up (X, Y, Z) = (x, y, z);
+    """Scene axes of a displacement map (see `oceanfield.surface.maps`): z-up (X, Y, Z) = (x, y, z);
     y-up (X, Y, Z) = (x, z, −y). Channels R, G, B hold scene X, Y, Z."""
     r, g, b = (prefix + c for c in "RGB")
     if up_axis == "z":

@@ -1,6 +1,9 @@
 """The render job: a preset's map sequence on disk, locally or on a farm, resumable.
 
-Orchestration only: which frames, which files, who computes them, what is already done.
+Orchestration only: who computes which frames (this process, local worker processes or
+Dask tasks), the manifest, resume, progress and the ``render`` command. Which frames and
+files make up a job is ``plan``'s; encoding and writing one frame is ``writing``'s. It
+knows nothing of formulas.
 Frames are pure functions of time (see ``synth``), so any chunk of frames can be rendered
 on any machine in any order and give the same files.
 
@@ -18,7 +21,6 @@ Nothing lost, nothing half-written:
 
 from __future__ import annotations
 
-import dataclasses
 import json
 import os
 import queue
@@ -30,151 +32,19 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Callable, Iterable, Sequence
 
-# The frame-writing pipeline lives in ``writing``; its public names stay importable from here.
-from .writing import FileJob, FrameResult, encode_frame, render_frame_files, write_jobs
+from .plan import MANIFEST_NAME, RenderPlan, frame_is_complete, parse_frames, plan_render
 from .writing import (
-    _ATTRIBUTE_PREFIX,
-    _LAYERS_MAP,
     _WRITER_PROCESS_TEXELS,
+    FrameResult,
     _arena_bytes,
     _png_scales,
     _ProcessSink,
     _ThreadSink,
+    encode_frame,
+    write_jobs,
 )
 
-__all__ = [
-    "MANIFEST_NAME",
-    "RenderPlan",
-    "FrameResult",
-    "RenderSummary",
-    "parse_frames",
-    "select_chunk",
-    "render_hash",
-    "plan_render",
-    "render",
-    "FileJob",
-    "encode_frame",
-    "write_jobs",
-    "render_frame_files",
-    "run_render_command",
-]
-
-MANIFEST_NAME = "oceanfield-manifest.json"
-
-
-# -- what to render --------------------------------------------------------------------------
-
-
-def parse_frames(text: str | None, default: range) -> list[int]:
-    """Frame numbers from ``A-B`` (inclusive), ``A,B,C`` or a mix (``1001-1010,1020``).
-
-    ``None`` gives ``default``. Raises ValueError naming ``--frames`` on anything else.
-    """
-    if text is None:
-        return list(default)
-    frames: list[int] = []
-    allowed = "allowed: A-B with A <= B, a comma-separated list of frames, or a mix (1001-1010,1020)"
-    for part in text.split(","):
-        part = part.strip()
-        match = re.fullmatch(r"(-?\d+)\s*-\s*(-?\d+)", part) or re.fullmatch(r"(-?\d+)", part)
-        if not match:
-            raise ValueError(f"--frames: {text!r} is not a frame range; {allowed}")
-        first = int(match.group(1))
-        last = int(match.group(2)) if match.lastindex == 2 else first
-        if last < first:
-            raise ValueError(f"--frames: {text!r} runs backwards ({first} to {last}); {allowed}")
-        if last - first > 10_000_000:
-            raise ValueError(f"--frames: {text!r} is over ten million frames; {allowed}")
-        frames.extend(range(first, last + 1))
-    return sorted(set(frames))
-
-
-def select_chunk(frames: Sequence[int], text: str | None) -> list[int]:
-    """Chunk ``I/N`` (1-based) of ``frames``: N near-equal contiguous runs, the I-th of them.
-
-    Any farm manager can split a job this way and the chunks together cover every frame
-    exactly once. ``None`` gives every frame.
-    """
-    if text is None:
-        return list(frames)
-    match = re.fullmatch(r"\s*(\d+)\s*/\s*(\d+)\s*", text)
-    index, count = (int(match.group(1)), int(match.group(2))) if match else (0, 0)
-    if not match or count < 1 or not 1 <= index <= count:
-        raise ValueError(f"--chunk: {text!r} is not allowed; allowed: I/N with 1 <= I <= N, e.g. 3/8")
-    start = (index - 1) * len(frames) // count
-    stop = index * len(frames) // count
-    return list(frames[start:stop])
-
-
-def render_hash(preset) -> str:
-    """Hash of everything in ``preset`` that changes a frame's files.
-
-    The preset's hash with ``last_frame`` left out: extending a sequence keeps the frames
-    already rendered valid, while any change to the sea, tile, time mapping, maps or
-    encoding changes the hash.
-    """
-    from .preset import preset_hash
-
-    timing = dataclasses.replace(preset.time, last_frame=preset.time.first_frame)
-    return preset_hash(dataclasses.replace(preset, time=timing))
-
-
-@dataclass(frozen=True)
-class RenderPlan:
-    """What one render run will do: the preset, the output root and the frames."""
-
-    preset: Any
-    root: Path
-    frames: tuple[int, ...]
-    hash: str
-
-    @property
-    def folder(self) -> Path:
-        """The preset's output folder (where the manifest lives)."""
-        return self.root / self.preset.output.folder.format(preset=self.preset.name, map="", ext="")
-
-    def files(self, frame: int) -> dict[str, Path]:
-        """Map name (or ``layers``) → file of one frame."""
-        output = self.preset.output
-        names = list(self.preset.maps)
-        if output.multilayer and output.format == "exr":
-            names.append(_LAYERS_MAP)
-        return {name: self.root / output.relative_path(self.preset.name, name, frame) for name in names}
-
-
-def plan_render(preset, *, root: str | os.PathLike[str] = "renders", frames: str | None = None,
-                chunk: str | None = None) -> RenderPlan:
-    """Choose the frames (``--frames``, then ``--chunk``) of a resolved preset under ``root``."""
-    selected = select_chunk(parse_frames(frames, preset.time.frames), chunk)
-    return RenderPlan(preset, Path(root), tuple(selected), render_hash(preset))
-
-
-# -- what is already done ----------------------------------------------------------------------
-
-
-def frame_is_complete(plan: RenderPlan, frame: int) -> bool:
-    """Whether every file of ``frame`` exists, is whole, and was rendered from this preset."""
-    for name, path in plan.files(frame).items():
-        if not path.is_file():
-            return False
-        if plan.preset.output.format == "exr":
-            from .io.exr import exr_is_complete, read_exr_attributes
-
-            if not exr_is_complete(path, decode=False):
-                return False
-            attributes = read_exr_attributes(path)
-            if attributes.get(f"{_ATTRIBUTE_PREFIX}preset_hash") != plan.hash:
-                return False
-        else:
-            from .io.png import read_png16, sidecar_path
-
-            if not sidecar_path(path).is_file():
-                return False
-            try:
-                read_png16(path)
-            except (OSError, ValueError):
-                return False
-    return True
+__all__ = ["RenderSummary", "render", "run_render_command"]
 
 
 # -- running ---------------------------------------------------------------------------------
@@ -274,7 +144,7 @@ _OCEANS: dict[tuple[str, int], Any] = {}
 
 def _cached_ocean(plan: RenderPlan, threads: int):
     """The plan's Ocean, kept for the next group of frames this process renders (Dask tasks)."""
-    from .synth import Ocean
+    from ..surface.synth import Ocean
 
     key = (plan.hash, threads)
     if key not in _OCEANS:
@@ -488,7 +358,7 @@ def _read_manifest(path: Path) -> dict[str, Any] | None:
 
 def _prepare_folder(plan: RenderPlan, overwrite: bool) -> None:
     """Create the output folder, prove it writable, refuse another preset's folder."""
-    from .io.atomic import OutputError, atomic_output, remove_stale_temporaries
+    from ..io.atomic import OutputError, atomic_output, remove_stale_temporaries
 
     folder = plan.folder
     try:
@@ -512,8 +382,8 @@ def _prepare_folder(plan: RenderPlan, overwrite: bool) -> None:
 
 def _update_manifest(plan: RenderPlan, frames_done: list[int]) -> None:
     """Record the frames done, merged with other chunks' records under a lock."""
-    from . import __version__
-    from .preset import dump_preset
+    from .. import __version__
+    from ..preset.schema import dump_preset
 
     path = _manifest_path(plan)
     lock_path = path.with_name("." + path.name + ".lock")
@@ -537,7 +407,7 @@ def _update_manifest(plan: RenderPlan, frames_done: list[int]) -> None:
             "files": {name: str(p.relative_to(plan.root)) for name, p in plan.files(plan.preset.time.first_frame).items()},
             "preset": dump_preset(plan.preset),
         }
-        from .io.atomic import atomic_output
+        from ..io.atomic import atomic_output
 
         with atomic_output(path) as temporary:
             temporary.write_text(json.dumps(record, indent=2) + "\n", encoding="utf-8")
@@ -548,8 +418,9 @@ def _update_manifest(plan: RenderPlan, frames_done: list[int]) -> None:
 
 def run_render_command(args) -> int:
     """``oceanfield render``: plan, render with progress, summarise; exit 0 only if all done."""
-    from .preset import load_preset, preset_warnings
-    from .report import fold_warning
+    from ..preset.schema import load_preset
+    from ..preset.warnings import preset_warnings
+    from ..preset.stats import fold_warning
 
     preset = load_preset(args.preset, overrides=tuple(args.overrides), allow_outside_output=False)
     root = Path(args.out) if args.out else Path("renders")

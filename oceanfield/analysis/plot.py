@@ -1,5 +1,7 @@
 """The analyzer's report picture: spectrum against target, ω–k diagram, directions.
 
+Knows nothing of synthesis or of files other than its own PNG.
+
 One PNG with four panels: the omnidirectional wavenumber spectrum on log axes (with the
 target's, and the compared bands shaded by verdict); the frequency–wavenumber diagram in
 log power with the declared and the fitted dispersion curves and the Nyquist frequency
@@ -16,9 +18,9 @@ from pathlib import Path
 
 import numpy as np
 
-from .analyze import SequenceAnalysis
-from .dispersion import angular_frequency
-from .io.atomic import atomic_output
+from .measure import SequenceAnalysis, whole_degrees
+from ..physics.dispersion import angular_frequency
+from ..io.atomic import atomic_output
 
 __all__ = ["write_report"]
 
@@ -167,7 +169,5 @@ def _label(axes, x: str, y: str, title: str, legend: str) -> None:
 
 
 def _bearing(angle: float | None) -> str:
-    from .verdict import whole_degrees
-
     value = whole_degrees(angle)
     return "n/a" if value is None else f"{value:.0f}"

@@ -1,5 +1,7 @@
 """The periodic wavenumber lattice of one square ocean tile.
 
+Knows nothing of physics or files.
+
 A tile of side L metres sampled N×N repeats seamlessly because every wave on it has a
 whole number of wavelengths across it: k = 2π(nx, ny)/L with integer wave indices
 −N/2 ≤ nx, ny < N/2. Arrays follow the FFT layout (index 0 holds n = 0, the upper half

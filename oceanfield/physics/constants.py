@@ -1,5 +1,7 @@
 """Physical constants, each with its source.
 
+Knows nothing of lattices, tiles or files.
+
 Functions take these as keyword defaults so a caller can override them (a tank of another
 fluid, or on another planet, is still a tank).
 """

@@ -1,5 +1,7 @@
 """Frequency spectra S(ω) of wind seas and swell, in m²·s/rad over angular frequency ω.
 
+Knows nothing of lattices, tiles or files.
+
 Every spectrum is vectorised over ``omega`` (rad/s), pure, and 0 at ω ≤ 0. Convert to
 Hz with S(f) = 2π·S(ω = 2πf).
 

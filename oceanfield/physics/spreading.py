@@ -1,5 +1,7 @@
 """Directional distributions D(θ; ω) of wave energy, each integrating to 1 over (−π, π].
 
+Knows nothing of lattices, tiles or files.
+
 θ is measured from the mean direction (radians, any range: it is wrapped); ``ratio`` is
 ω/ωp (dimensionless). Every function is vectorised, pure and normalised exactly.
 

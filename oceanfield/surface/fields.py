@@ -1,8 +1,10 @@
 """The fields of one ocean frame: the contract between the synthesiser and its consumers.
 
+Knows nothing of physics or files.
+
 `Fields` holds what one frame of the synthesised surface is made of, in internal axes and
 SI units (x = array columns, y = array rows, z up; metres, seconds). The map layout
-(`oceanfield.maps`) turns it into scene axes and units; the writers (`oceanfield.io`) put
+(`oceanfield.surface.maps`) turns it into scene axes and units; the writers (`oceanfield.io`) put
 those maps in files. Nothing here knows of physics or files.
 """
 

@@ -1,5 +1,7 @@
 """Wave timing: the dispersion relation a height sequence obeys, against the one declared.
 
+Knows nothing of files, frames or synthesis: it fits numbers it is given.
+
 A sea whose waves move at the right speed for their size obeys ω² = g·k·tanh(kh). A
 render made at the wrong scale, or played back at the wrong rate, obeys the same law with
 another gravity g_eff: at fixed g, ω ∝ k^½ in deep water, so a surface moving like one
@@ -8,7 +10,7 @@ puts it right (Froude scaling: time ∝ √length).
 
 The method
 ----------
-The analyzer (`oceanfield.analyze`) reduces the sequence's frequency–wavenumber spectrum,
+The analyzer (`oceanfield.analysis.measure`) reduces the sequence's frequency–wavenumber spectrum,
 Hann-windowed in time, to the power of each |k| annulus at each positive frequency of
 travel. :func:`measure_dispersion` takes it from there:
 
@@ -51,8 +53,8 @@ from dataclasses import dataclass, field
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-from .constants import GRAVITY
-from .dispersion import angular_frequency, check_depth
+from ..physics.constants import GRAVITY
+from ..physics.dispersion import angular_frequency, check_depth
 
 __all__ = [
     "MOVING_FLOOR",

@@ -1,5 +1,7 @@
 """Ocean fields of one frame by inverse-FFT spectral synthesis (Tessendorf 2001).
 
+Knows nothing of presets or files: a ``SeaState`` and a ``Tile`` go in, ``Fields`` come out.
+
 ``Ocean(sea_state, tile, seed=...).frame(t)`` returns the height, lateral displacement,
 Jacobian, displaced-surface normal and foam of the tile at time t, as a pure function of
 t: a farm can render any frame alone, in any order, on any machine, and get the same bits.
@@ -20,7 +22,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from .fields import Fields
-from .seastate import SeaState
+from ..physics.seastate import SeaState
 from .tile import Tile
 
 __all__ = ["Ocean", "LoopInfo", "amplitude_noise", "frame_bytes_per_texel", "available_memory"]
@@ -203,14 +205,15 @@ class Ocean:
     ) -> "Ocean":
         """The ocean a resolved :class:`~oceanfield.preset.Preset` describes.
 
+        The preset makes its own sea state (``preset.sea_state()``), so this module needs
+        to know nothing of presets.
+
         ``velocity`` defaults to whether the preset asks for a velocity map, ``foam_memory``
         to the preset's (pass 0 where only the surface's shape matters: lingering foam costs
         two transforms per past instant).
         """
-        from .preset import to_sea_state
-
         return cls(
-            to_sea_state(preset),
+            preset.sea_state(),
             Tile(preset.tile.size_m, preset.tile.resolution),
             seed=preset.seed,
             lateral_factor=preset.surface.lateral_factor,

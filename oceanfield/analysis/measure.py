@@ -13,7 +13,7 @@ What is measured
   the window's energy loss divided out (by mean(w²));
 - the frequency–wavenumber spectrum from the 3-D transform over (t, y, x), Hann-windowed
   in time, reduced to the power of each |k| annulus per frequency; from it
-  `oceanfield.timing` measures the dispersion the waves actually obey (g_eff/g: the scale
+  `oceanfield.analysis.timing` measures the dispersion the waves actually obey (g_eff/g: the scale
   the motion implies);
 - Hs = 4√m0, Tp (time series and wavenumber peak), Tm01, Tm02, the mean direction of
   travel and the directional spread (Kuik et al. 1988), the significant steepness and,
@@ -40,15 +40,13 @@ direction, directional spread σ = √(2(1 − r))).
 WMO (1998). Guide to Wave Analysis and Forecasting, WMO-No. 702 (Hm0 = 4√m0, moments).
 
 Reading frame files is `oceanfield.io.sequence`'s work; the wave-timing fit is
-`oceanfield.timing`'s; the text verdict and the ``oceanfield analyze`` command live in
-`oceanfield.verdict`. Their public names (`expand_sequence`, `DispersionFit`,
-`fit_dispersion`, `measure_dispersion`, `TIMING_TOLERANCE`, `format_verdict`,
-`run_analyze_command`, `whole_degrees`) stay importable from here.
+``timing``'s (its public names stay importable from here); the text verdict and the
+``oceanfield analyze`` command live in ``verdict``, the report picture in ``plot``. This
+module knows nothing of files or of synthesis.
 """
 
 from __future__ import annotations
 
-import importlib
 import math
 import os
 from dataclasses import dataclass, field
@@ -57,8 +55,8 @@ from typing import Any, Iterable
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
-from .constants import GRAVITY
-from .dispersion import angular_frequency, check_depth, group_velocity
+from ..physics.constants import GRAVITY
+from ..physics.dispersion import angular_frequency, check_depth, group_velocity
 from .timing import (  # DispersionFit, fit_dispersion, measure_dispersion, TIMING_TOLERANCE: re-exported
     MOVING_FLOOR,
     TIMING_TOLERANCE,
@@ -81,32 +79,19 @@ __all__ = [
     "check_positive",
     "directional_moments",
     "fit_dispersion",
-    "format_verdict",
     "frequency_spectrum",
     "hann_window",
     "lateral_jacobian",
     "measure_dispersion",
-    "run_analyze_command",
     "seam_ratio",
-    "expand_sequence",
+    "whole_degrees",
 ]
 
-# Public names defined in the modules built around this one, importable from here as
-# before. They load on first use: `oceanfield.verdict` imports this module, and the file
-# readers (OpenEXR) are needed only by a command that reads files.
-_ELSEWHERE = {
-    "expand_sequence": "oceanfield.io.sequence",
-    "format_verdict": "oceanfield.verdict",
-    "run_analyze_command": "oceanfield.verdict",
-    "whole_degrees": "oceanfield.verdict",
-}
-
-
-def __getattr__(name: str) -> Any:
-    module = _ELSEWHERE.get(name)
-    if module is None:
-        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
-    return getattr(importlib.import_module(module), name)
+def whole_degrees(angle: float | None) -> float | None:
+    """An angle in radians as whole degrees in [0, 360), or None where it is not a number."""
+    if angle is None or not math.isfinite(angle):
+        return None
+    return float(round(math.degrees(angle)) % 360)
 
 
 #: Fewest frames analysed: the positive half of a T-point transform has T/2 − 1

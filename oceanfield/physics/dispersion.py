@@ -1,5 +1,7 @@
 """Linear dispersion of surface waves: ω(k, h) with gravity, depth and surface tension.
 
+Knows nothing of lattices, tiles or files.
+
 All functions are vectorised over numpy arrays of any shape and pure. Deep water is
 ``depth=np.inf`` and is handled exactly (tanh(kh) = 1), not by a large number.
 

@@ -6,7 +6,8 @@ After ``synth`` computes a frame, :func:`encode_frame` turns its ``Fields`` into
 frame as a :class:`FrameResult`. The sink is a thread, or, on jobs large enough to repay
 its start, a spawned process fed through shared memory: the OpenEXR binding holds Python's
 lock while it compresses, so a thread overlaps poorly. Which frames to render, where and
-by whom is the render job's business (``render``).
+by whom is the render job's business (``job``); which files a frame has is the plan's
+(``plan``). It knows nothing of formulas.
 """
 
 from __future__ import annotations
@@ -20,12 +21,11 @@ import threading
 import time
 from dataclasses import dataclass
 from pathlib import Path
-from typing import TYPE_CHECKING, Any, Callable, Iterable
+from typing import Any, Callable, Iterable
 
 import numpy as np
 
-if TYPE_CHECKING:
-    from .render import RenderPlan
+from .plan import ATTRIBUTE_PREFIX, LAYERS_MAP, RenderPlan
 
 __all__ = [
     "FrameResult",
@@ -35,8 +35,6 @@ __all__ = [
     "render_frame_files",
 ]
 
-_ATTRIBUTE_PREFIX = "oceanfield."
-_LAYERS_MAP = "layers"  # the multi-layer file's {map} in the file pattern
 _PNG_RANGE_HEIGHTS = 2.5  # PNG value range: ± this many Hs (common practice: crests rarely pass 1.3 Hs)
 
 # A writer process pays for its start (about a second: a fresh interpreter importing numpy
@@ -64,10 +62,10 @@ class FrameResult:
 
 
 def _attributes(plan: RenderPlan, frame: int, map_name: str) -> dict[str, Any]:
-    from . import __version__
+    from .. import __version__
 
     preset = plan.preset
-    p = _ATTRIBUTE_PREFIX
+    p = ATTRIBUTE_PREFIX
     return {
         f"{p}version": __version__,
         f"{p}map": map_name,
@@ -94,7 +92,7 @@ def _png_range(plan: RenderPlan, map_name: str, scale: dict[str, float]) -> tupl
 
 
 def _png_scales(preset) -> dict[str, float]:
-    from .preset import to_sea_state
+    from ..preset.schema import to_sea_state
 
     stats = to_sea_state(preset).statistics()
     lateral = max(1.0, preset.surface.lateral_factor)
@@ -120,15 +118,15 @@ class FileJob:
 
 def encode_frame(plan: RenderPlan, frame: int, fields, png_scales: dict[str, float] | None = None) -> list[FileJob]:
     """Every file of one frame as :class:`FileJob` s: scene axes, scene units, pixel types."""
-    from .io.exr import to_pixels
-    from .maps import layered_channels, map_channels
+    from ..io.exr import to_pixels
+    from ..surface.maps import layered_channels, map_channels
 
     preset = plan.preset
     output, scene = preset.output, preset.scene
     jobs = []
     for name, path in plan.files(frame).items():
         if output.format == "exr":
-            if name == _LAYERS_MAP:
+            if name == LAYERS_MAP:
                 channels = layered_channels(fields, preset.maps, metres_per_unit=scene.metres_per_unit,
                                             up_axis=scene.up_axis)
                 pixels = {c: to_pixels(c, a, output.precision_for(c.split(".")[0])) for c, a in channels.items()}
@@ -147,8 +145,8 @@ def encode_frame(plan: RenderPlan, frame: int, fields, png_scales: dict[str, flo
 
 def write_jobs(jobs: Iterable[FileJob]) -> list[Path]:
     """Write encoded files, each atomically; returns the paths written."""
-    from .io.exr import write_exr
-    from .io.png import write_png16
+    from ..io.exr import write_exr
+    from ..io.png import write_png16
 
     written = []
     for job in jobs:

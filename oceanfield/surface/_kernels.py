@@ -1,5 +1,7 @@
 """The fast path: two numba kernels per frame, each with a plain-numpy reference.
 
+Knows nothing of sea states, presets or files: it works on packed arrays.
+
 Why they are shaped this way (see the performance model in DEVELOPERS.md):
 
 * ω depends on |k| alone, so ``rotation_kernel`` evaluates e^{−iωt} once per distinct

@@ -1,5 +1,7 @@
 """A sea state: a sum of wave components sharing depth, gravity and surface tension.
 
+Knows nothing of lattices, tiles or files: the surface samples a sea state on its lattice.
+
 Each :class:`Component` is one frequency spectrum with its own direction and spreading (a
 wind sea, a swell). Build one from wind speed and fetch (:func:`wind_sea`), from
 significant wave height and peak period (:func:`height_period`) or from a Beaufort force
@@ -148,7 +150,7 @@ class Component:
     direction : float
         Direction the waves travel towards, radians counter-clockwise from +x.
     spreading : str
-        One of :data:`oceanfield.spreading.SPREADING`.
+        One of :data:`oceanfield.physics.spreading.SPREADING`.
     spread_s : float
         Exponent s of the fixed cos-2s model.
     suppress_opposing : bool

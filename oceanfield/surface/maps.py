@@ -1,5 +1,7 @@
 """Named maps of one frame, in the 3D package's axes and scene units.
 
+Knows nothing of physics or files: it rearranges arrays into a package's axes and units.
+
 A map is a set of float32 channel arrays named by the OpenEXR convention: a vector map has
 channels ``"R"``, ``"G"``, ``"B"`` holding its scene X, Y, Z components; a one-channel map
 has the single channel ``"Y"``. `layered_channels` puts several maps in one multi-layer
@@ -34,7 +36,7 @@ from collections.abc import Iterable
 import numpy as np
 from numpy.typing import NDArray
 
-from oceanfield.fields import Fields
+from oceanfield.surface.fields import Fields
 
 __all__ = ["MAPS", "UP_AXES", "map_channels", "layered_channels"]
 

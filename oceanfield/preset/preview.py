@@ -1,5 +1,7 @@
 """One picture of a preset to look at before rendering: ``oceanfield preview``.
 
+Knows nothing of render jobs or map files.
+
 Four panels: the surface of one frame shaded from its normals under a sky and a sun; the
 height map; the frequency spectrum S(ω) of each component and the total, with the band the
 tile carries marked; and the directional distribution of the energy.
@@ -58,9 +60,9 @@ def write_preview(preset, *, frame: int | None = None, out: str | Path | None = 
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
 
-    from .io.atomic import atomic_output
-    from .preset import to_sea_state
-    from .synth import Ocean
+    from ..io.atomic import atomic_output
+    from .schema import to_sea_state
+    from ..surface.synth import Ocean
 
     frame = preset.time.first_frame if frame is None else frame
     if isinstance(frame, bool) or not isinstance(frame, int):

@@ -1,5 +1,7 @@
 """What a preset's sea looks like in numbers: the report behind ``oceanfield stats``.
 
+Knows nothing of rendering or files.
+
 Per component and in total: significant wave height, peak and mean periods, peak
 wavelength and phase speed, significant steepness, the equivalent Beaufort force; then
 what the tile captures (the share of the sea's variance the lattice carries) and how much
@@ -39,7 +41,7 @@ def fold_warning(preset, ocean=None) -> str | None:
     if preset.surface.lateral_factor == 0:
         return None
     if ocean is None:
-        from .synth import Ocean
+        from ..surface.synth import Ocean
 
         ocean = Ocean.from_preset(preset, velocity=False, foam_memory=0.0)
     share = fold_fraction(ocean)
@@ -69,8 +71,8 @@ def _row(stats) -> dict[str, Any]:
 
 def sea_report(preset) -> dict[str, Any]:
     """Every figure of ``oceanfield stats`` for a resolved preset, as a JSON-ready dict."""
-    from .preset import to_sea_state
-    from .synth import Ocean
+    from .schema import to_sea_state
+    from ..surface.synth import Ocean
 
     sea = to_sea_state(preset)
     total = sea.statistics()

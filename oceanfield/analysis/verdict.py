@@ -1,16 +1,16 @@
 """The analyzer's verdict: what a measured sequence is, what is right, what is off.
 
-`format_verdict` turns a `oceanfield.analyze.SequenceAnalysis` into a short text: the
+Knows nothing of synthesis or formulas: it reads, measures (``measure``) and words the result.
+
+`format_verdict` turns a `oceanfield.analysis.measure.SequenceAnalysis` into a short text: the
 sequence, its heights, periods and direction, the timing (g_eff/g, and for wrong timing
 the scale the motion implies and the playback speed that corrects it: Froude scaling,
 time ∝ √length), the spectrum band by band against a preset, then one line of verdict
 and the notes. `run_analyze_command` is ``oceanfield analyze``: it reads a sequence
 (`oceanfield.io.sequence`), settles its size, frame rate, units and up axis from the
-command line or else the files' own headers, measures it (`oceanfield.analyze`) and
+command line or else the files' own headers, measures it (`oceanfield.analysis.measure`) and
 prints the verdict or JSON, and writes the report picture if asked
-(`oceanfield.analyze_plot`).
-
-Both stay importable from `oceanfield.analyze`.
+(`oceanfield.analysis.plot`).
 """
 
 from __future__ import annotations
@@ -24,18 +24,19 @@ from typing import Any, Sequence
 
 import numpy as np
 
-from .analyze import (
+from .measure import (
     MIN_FRAMES,
     MIN_RESOLUTION,
     TIMING_TOLERANCE,
     SequenceAccumulator,
     SequenceAnalysis,
     check_positive,
+    whole_degrees,
 )
-from .dispersion import check_depth
-from .io.sequence import choose_layout, expand_sequence, header_number, parse_crop, read_channels, select_frames
+from ..physics.dispersion import check_depth
+from ..io.sequence import choose_layout, expand_sequence, header_number, parse_crop, read_channels, select_frames
 
-__all__ = ["format_verdict", "run_analyze_command", "whole_degrees"]
+__all__ = ["format_verdict", "run_analyze_command"]
 
 
 # -- the verdict -------------------------------------------------------------------------
@@ -112,13 +113,6 @@ def _band_lines(result: SequenceAnalysis, against: str | None) -> list[str]:
             f"          {label:<28} {band.measured:10.4g} / {band.target:10.4g} m²  {ratio:>8}  {verdict}{partial}"
         )
     return lines
-
-
-def whole_degrees(angle: float | None) -> float | None:
-    """An angle in radians as whole degrees in [0, 360), or None where it is not a number."""
-    if angle is None or not math.isfinite(angle):
-        return None
-    return float(round(math.degrees(angle)) % 360)
 
 
 def _num(value: float | None, spec: str = "#.3g") -> str:
@@ -276,7 +270,7 @@ def run_analyze_command(args: argparse.Namespace) -> int:
     depth = np.inf
     target = None
     if args.against is not None:
-        from .preset import load_preset, to_sea_state
+        from ..preset.schema import load_preset, to_sea_state
 
         target = to_sea_state(load_preset(args.against))
         depth = target.depth
@@ -339,7 +333,7 @@ def run_analyze_command(args: argparse.Namespace) -> int:
     else:
         print(format_verdict(result, against=args.against, source=source))
     if args.report is not None:
-        from .analyze_plot import write_report
+        from .plot import write_report
 
         try:
             written = write_report(result, args.report, title=f"{args.sequence}", against=args.against)

@@ -1,5 +1,7 @@
 """Presets: a sea, a tile and a render described in YAML, read into validated settings.
 
+Knows nothing of rendering or of the analyzer.
+
 A preset file is a mapping of keys documented one by one in ``presets/reference.yaml``.
 :func:`load_preset` reads one (a shipped preset by name, or a path), follows its
 ``extends`` chain, applies ``--set key=value`` overrides, fills every default and checks
@@ -8,7 +10,7 @@ all, each naming the file and line (or the override) it came from, the value, an
 allowed, with a suggestion for a misspelt key.
 
 YAML is read with PyYAML's safe loader only, into the located tree of
-:mod:`oceanfield._yamltree` (which also merges ``extends`` and applies overrides), so
+:mod:`oceanfield.preset._yamltree` (which also merges ``extends`` and applies overrides), so
 that every value remembers where it was written. This module is the schema: the settings,
 their defaults and checks, and what a preset becomes (a sea state, YAML, a hash).
 
@@ -45,11 +47,11 @@ from ._yamltree import (
     read_tree,
     valid,
 )
-from .constants import GRAVITY, SEAWATER_DENSITY, SURFACE_TENSION
-from .maps import MAPS, UP_AXES
-from .seastate import Component, SeaState, beaufort_sea, height_period, wind_sea
-from .spectra import JONSWAP_GAMMA, SPECTRA
-from .spreading import SPREADING
+from ..physics.constants import GRAVITY, SEAWATER_DENSITY
+from ..surface.maps import MAPS, UP_AXES
+from ..physics.seastate import Component, SeaState, beaufort_sea, height_period, wind_sea
+from ..physics.spectra import JONSWAP_GAMMA, SPECTRA
+from ..physics.spreading import SPREADING
 
 __all__ = [
     "PresetError",
@@ -66,25 +68,17 @@ __all__ = [
     "dump_preset",
     "preset_hash",
     "to_sea_state",
-    "preset_warnings",
 ]
 
 _FORMATS = ("exr", "png")
 _PRECISIONS = ("half", "float")
 _COMPRESSIONS = ("zip", "piz", "dwaa", "none")
 _PATTERN_FIELDS = ("preset", "map", "ext")
-_DATA_MAPS = ("displacement", "height", "velocity")  # values, not pictures: keep them lossless
 
 _DEFAULT_COMPONENT_WIND = 10.0  # m/s: the default sea is a fully developed Beaufort 5 sea
 _DEFAULT_SPREAD_DEG = 25.0  # cos-2s spread; s = 2/σ² − 1 ≈ 9.5 (Kuik et al. 1988)
 _MAX_SEED = 2**63 - 1
 
-# Warning thresholds (all "common practice", none from a standard).
-_MIN_TILE_PER_PEAK_WAVELENGTH = 2.0
-_MAX_UNRESOLVED_VARIANCE = 0.05
-_MAX_HEIGHT_TO_DEPTH = 0.4
-_MAX_CAPILLARY_SPEED_ERROR = 0.05
-_MIN_PEAK_VARIANCE_KEPT = 0.9
 _MIN_PEAK_VARIANCE_KEPT_AT_ALL = 0.01  # below this the cut-off is an error, not a warning
 
 _FRAME_RUN = re.compile(r"#+")
@@ -238,6 +232,10 @@ class Preset:
     name: str = field(default="", compare=False)
     source: Path | None = field(default=None, compare=False)
 
+    def sea_state(self) -> SeaState:
+        """The preset's sea in SI units: :func:`to_sea_state` of this preset."""
+        return to_sea_state(self)
+
 
 # -- public functions --------------------------------------------------------------------
 
@@ -327,7 +325,7 @@ def preset_hash(preset: Preset) -> str:
 
 
 def to_sea_state(preset: Preset) -> SeaState:
-    """The preset's sea as a :class:`~oceanfield.seastate.SeaState` (SI units, radians).
+    """The preset's sea as a :class:`~oceanfield.physics.seastate.SeaState` (SI units, radians).
 
     Degrees become radians, kilometres metres, ``deep`` infinity.
 
@@ -342,94 +340,6 @@ def to_sea_state(preset: Preset) -> SeaState:
         return SeaState(tuple(_component(sea, item) for item in sea.components), **_fluid(sea))
     except ValueError as error:
         raise PresetError([f"sea: {error}"]) from None
-
-
-def preset_warnings(preset: Preset, *, sea_state: SeaState | None = None) -> list[str]:
-    """Physically doubtful choices in a valid preset, one sentence each (not errors).
-
-    Checks that a fetch is not past full development, that the tile holds at least two
-    peak wavelengths of every component, that the lattice resolves and holds at least
-    95 % of the variance, that Hs/depth stays below 0.4 (beyond it linear theory is a
-    stretch), that ripples the tile resolves are not ones surface tension would speed up
-    by more than 5 % while it is off, that the small-wave cut-off spares the peak, and
-    that data maps are not written lossy. All thresholds are common practice.
-
-    Parameters
-    ----------
-    preset : Preset
-    sea_state : SeaState, optional
-        ``to_sea_state(preset)``, if already built.
-    """
-    sea_state = to_sea_state(preset) if sea_state is None else sea_state
-    sea, tile = preset.sea, preset.tile
-    warnings = []
-    total_variance = sea_state.band_variance(0.0, math.inf)
-
-    for item, component, stats in zip(sea.components, sea_state.components, sea_state.component_statistics()):
-        if item.fetch_km is not None:
-            developed = _component(sea, replace(item, fetch_km=None, peak_enhancement=None))
-            if component == developed:
-                warnings.append(
-                    f"fetch_km {item.fetch_km:g} km is more than the wind of `{item.label}` needs: the sea is "
-                    f"fully developed (Pierson–Moskowitz), so the fetch and peak_enhancement change nothing"
-                )
-        needed = _MIN_TILE_PER_PEAK_WAVELENGTH * stats.peak_wavelength
-        if tile.size_m < needed:
-            warnings.append(
-                f"tile.size_m {tile.size_m:g} m is under twice the peak wavelength of `{item.label}` "
-                f"({stats.peak_wavelength:.3g} m): its longest waves do not fit and the repeat shows; "
-                f"use at least {needed:.3g} m"
-            )
-        kept = math.exp(-((2.0 * math.pi / stats.peak_wavelength * item.small_wave_cutoff_m) ** 2))
-        if kept < _MIN_PEAK_VARIANCE_KEPT:
-            warnings.append(
-                f"small_wave_cutoff_m {item.small_wave_cutoff_m:g} m of `{item.label}` removes "
-                f"{1 - kept:.0%} of the variance at its peak wavelength ({stats.peak_wavelength:.3g} m)"
-            )
-
-    nyquist = math.pi * tile.resolution / tile.size_m
-    fundamental = 2.0 * math.pi / tile.size_m
-    too_short = sea_state.band_variance(nyquist, math.inf) / total_variance
-    too_long = sea_state.band_variance(0.0, fundamental) / total_variance
-    if too_short > _MAX_UNRESOLVED_VARIANCE:
-        warnings.append(
-            f"{too_short:.0%} of the variance is in waves shorter than two texels "
-            f"({2 * tile.size_m / tile.resolution:.3g} m), which the tile cannot show: raise "
-            f"tile.resolution or set small_wave_cutoff_m"
-        )
-    if too_long > _MAX_UNRESOLVED_VARIANCE:
-        warnings.append(
-            f"{too_long:.0%} of the variance is in waves longer than the tile ({tile.size_m:g} m), "
-            f"which it cannot hold: raise tile.size_m"
-        )
-
-    hs = sea_state.statistics().hs
-    if math.isfinite(sea.depth_m) and hs / sea.depth_m > _MAX_HEIGHT_TO_DEPTH:
-        warnings.append(
-            f"significant height {hs:.3g} m is {hs / sea.depth_m:.2f} of the depth {sea.depth_m:g} m "
-            f"(over {_MAX_HEIGHT_TO_DEPTH}): waves this high for the depth steepen and break, "
-            f"and linear theory is a stretch"
-        )
-
-    if sea.surface_tension_npm == 0.0:
-        # Deep water c² = g/k + Tk/ρ: capillarity adds the fraction Tk²/(ρg) to c², so it
-        # changes the speed by more than 5 % once k > √(((1.05)² − 1) ρg/T).
-        ratio = (1.0 + _MAX_CAPILLARY_SPEED_ERROR) ** 2 - 1.0
-        k_capillary = math.sqrt(ratio * sea.density_kgpm3 * sea.gravity_mps2 / SURFACE_TENSION)
-        if nyquist > k_capillary:
-            warnings.append(
-                f"the tile resolves waves down to {200 * tile.size_m / tile.resolution:.3g} cm, where "
-                f"surface tension changes wave speed by more than 5 %; set sea.surface_tension_npm "
-                f"(clean water: {SURFACE_TENSION:g})"
-            )
-
-    lossy = [name for name in preset.maps if name in _DATA_MAPS]
-    if preset.output.format == "exr" and preset.output.compression == "dwaa" and lossy:
-        warnings.append(
-            f"output.compression dwaa is lossy and would blur the values of {', '.join(lossy)}; "
-            f"use zip or piz for data maps"
-        )
-    return warnings
 
 
 def _component(sea: SeaSettings, item: ComponentSettings) -> Component:
@@ -475,7 +385,7 @@ def _shipped_folder() -> Path:
     for location in locations or []:
         if Path(location).is_dir():
             return Path(location)
-    return Path(__file__).resolve().parent.parent / "presets"
+    return Path(__file__).resolve().parents[2] / "presets"
 
 
 def _shipped_path(name: str) -> tuple[Path | None, str]:

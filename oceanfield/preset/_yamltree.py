@@ -1,5 +1,7 @@
 """Reading YAML into a tree of nodes that remember where each value was written.
 
+Knows nothing of the preset schema (``schema``), of physics or of rendering.
+
 The preset reader (:mod:`oceanfield.preset`) works on this tree, not on plain data, so
 that every mistake it reports can name the file and line (or the ``--set`` override) the
 value came from. This module holds everything that knows about those locations:

@@ -1,0 +1,23 @@
+"""The analyzer: any height sequence read back and measured against physics.
+
+Frames (ours, another tool's, a simulation's) read by ``io.sequence`` become spectra,
+statistics and directions (``measure``) and a wave-timing fit ω² = g_eff·k·tanh(kh)
+(``timing``), judged against a preset (``verdict``) and drawn (``plot``). It knows
+nothing of synthesis: it never imports ``surface``.
+
+============  ====================================================================
+``measure``   spectra, statistics, directions and band comparisons of a sequence
+``timing``    the dispersion fit, its status and notes
+``verdict``   the text verdict and the ``oceanfield analyze`` command
+``plot``      the report picture (matplotlib, loaded on first use)
+============  ====================================================================
+"""
+
+from __future__ import annotations
+
+from . import measure as _measure, timing as _timing, verdict as _verdict
+from .measure import *  # noqa: F401,F403  (the names in measure.__all__)
+from .timing import *  # noqa: F401,F403  (the names in timing.__all__)
+from .verdict import *  # noqa: F401,F403  (the names in verdict.__all__)
+
+__all__ = [*_measure.__all__, *_timing.__all__, *_verdict.__all__]

@@ -1,0 +1,24 @@
+"""Presets: a sea state, a tile and an output described in YAML, read safely and checked.
+
+A preset file becomes a resolved ``Preset`` (every default filled, every value checked),
+which makes its ``SeaState`` and ``Ocean``; this package also reports a preset in numbers
+(``stats``) and pictures (``preview``). It knows nothing of render jobs or the analyzer.
+
+==============  ==================================================================
+``_yamltree``   located YAML: safe parse with file:line, ``extends``, ``--set`` overrides
+``schema``      the settings, defaults, validation, dump and hash; ``load_preset``
+``warnings``    physically doubtful choices in a valid preset, one sentence each
+``stats``       the numbers behind ``oceanfield stats``; the folded share
+``preview``     the preview picture (matplotlib)
+==============  ==================================================================
+"""
+
+from __future__ import annotations
+
+from . import schema as _schema, warnings as _warnings, stats as _stats, preview as _preview
+from .schema import *  # noqa: F401,F403  (the names in schema.__all__)
+from .warnings import *  # noqa: F401,F403  (the names in warnings.__all__)
+from .stats import *  # noqa: F401,F403  (the names in stats.__all__)
+from .preview import *  # noqa: F401,F403  (the names in preview.__all__)
+
+__all__ = [*_schema.__all__, *_warnings.__all__, *_stats.__all__, *_preview.__all__]

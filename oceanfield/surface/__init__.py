@@ -1,0 +1,26 @@
+"""One frame of one periodic tile: the FFT synthesis of a sea state.
+
+A ``SeaState`` (from ``physics``) on a ``Tile``'s wavenumber lattice becomes amplitudes,
+then per-frame spectra and packed inverse FFTs (``synth``, with the numba kernels in
+``_kernels``), giving ``Fields`` (height, lateral displacement, Jacobian, normals, foam),
+which ``maps`` turns into named maps in a 3D package's axes and units. The surface knows
+nothing of presets, files or render jobs.
+
+=============  ====================================================================
+``tile``       ``Tile``: the periodic wavenumber lattice of one square patch
+``synth``      ``Ocean``: amplitudes, time evolution, packed FFTs, ``Ocean.frame(t)``
+``_kernels``   the numba kernels of a frame (loaded on first synthesis)
+``fields``     ``Fields``: one frame's arrays, the synthesiser's output contract
+``maps``       ``Fields`` → named maps (displacement, normal, foam, ...) in scene axes
+=============  ====================================================================
+"""
+
+from __future__ import annotations
+
+from . import tile as _tile, fields as _fields, maps as _maps, synth as _synth
+from .tile import *  # noqa: F401,F403  (the names in tile.__all__)
+from .fields import *  # noqa: F401,F403  (the names in fields.__all__)
+from .maps import *  # noqa: F401,F403  (the names in maps.__all__)
+from .synth import *  # noqa: F401,F403  (the names in synth.__all__)
+
+__all__ = [*_tile.__all__, *_fields.__all__, *_maps.__all__, *_synth.__all__]
