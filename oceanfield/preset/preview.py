@@ -70,6 +70,8 @@ def write_preview(preset, *, frame: int | None = None, out: str | Path | None = 
     path = Path(out) if out is not None else Path("renders") / f"{preset.name or 'preset'}_preview.png"
     if path.suffix.lower() != ".png":
         raise ValueError(f"--out: {str(path)!r} is not allowed; allowed: a file name ending in .png")
+    if out is None:  # the default folder is ours to make, as render makes its own
+        path.parent.mkdir(parents=True, exist_ok=True)
     if not path.parent.is_dir():
         raise ValueError(f"--out: folder {str(path.parent)!r} does not exist; allowed: a PNG path in an existing folder")
 

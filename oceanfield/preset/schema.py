@@ -279,6 +279,7 @@ def load_preset(
     if tree is not None:
         for text in overrides:
             apply_override(tree, text, errors)
+            _resize_by_override(tree, text)
         preset = _build_preset(tree, errors, path, allow_outside_output)
     if errors or preset is None:
         raise PresetError(in_reading_order(errors) or [f"{path}: the preset could not be read"])
@@ -305,10 +306,94 @@ def dump_preset(preset: Preset) -> str:
 
     Loading the text back gives a preset equal to ``preset``.
     """
-    header = f"# oceanfield preset `{preset.name}`, fully resolved: every key written out.\n"
-    return header + yaml.safe_dump(
-        _as_tree(preset), sort_keys=False, allow_unicode=True, default_flow_style=False, width=100
+    header = (
+        f"# oceanfield preset `{preset.name}`, fully resolved: every key written out.\n"
+        "# A null key is derived from the others (its value in the comment) and stays derived\n"
+        "# when you edit them; --set on one sizing key replaces the component's sizing.\n"
     )
+    tree = _as_tree(preset)
+    derived = [_derive_defaults(tree["sea"]["components"][i], item) for i, item in enumerate(preset.sea.components)]
+    text = yaml.safe_dump(tree, sort_keys=False, allow_unicode=True, default_flow_style=False, width=100)
+    return header + _comment_derived(text, derived)
+
+
+# -- editable resolved presets -----------------------------------------------------------
+#
+# A resolved preset is a starting point to edit: a key whose value the schema derived from
+# the others (the default γ, the spreading that suits the sizing, ...) is written null, so
+# it follows an edit of the others instead of contradicting it; a comment gives its value.
+
+_SIZING_KEYS = ("wind_speed_mps", "beaufort", "significant_height_m", "peak_period_s")
+_REPLACED_BY = {
+    "wind_speed_mps": ("beaufort", "significant_height_m", "peak_period_s"),
+    "beaufort": ("wind_speed_mps", "significant_height_m", "peak_period_s"),
+    "significant_height_m": ("wind_speed_mps", "beaufort", "fetch_km"),
+    "peak_period_s": ("wind_speed_mps", "beaufort", "fetch_km"),
+}
+
+
+def _resize_by_override(tree: Node, text: str) -> None:
+    """``--set sea.components.N.<sizing>=V`` replaces the component's sizing from the files.
+
+    Sizing keys written by an earlier override stay (two overrides that size twice are the
+    user's own contradiction and are reported as such).
+    """
+    key, _, _ = text.partition("=")
+    parts = key.strip().split(".")
+    if len(parts) != 4 or parts[:2] != ["sea", "components"] or parts[3] not in _REPLACED_BY:
+        return
+    node: Any = tree
+    for part in ("sea", "components", parts[2]):
+        value = node.value if node is not None else None
+        if isinstance(value, dict):
+            node = value.get(part)
+        elif isinstance(value, list) and part.isdigit() and int(part) < len(value):
+            node = value[int(part)]
+        else:
+            return
+    if node is None or not isinstance(node.value, dict):
+        return
+    written = node.value.get(parts[3])
+    if written is None or written.value is None:
+        return
+    for other in _REPLACED_BY[parts[3]]:
+        old = node.value.get(other)
+        if old is not None and not old.where.startswith("--set"):
+            del node.value[other]
+
+
+def _derive_defaults(written: dict[str, Any], item: ComponentSettings) -> dict[str, Any]:
+    """Null the keys of one dumped component that equal what the schema derives; {key: value}."""
+    wind_driven = item.significant_height_m is None
+    defaults = {
+        "label": "wind sea" if wind_driven else "wave system",
+        "peak_enhancement": JONSWAP_GAMMA,
+        "spreading": "mitsuyasu" if wind_driven else "cos2s",
+        "spread_deg": _DEFAULT_SPREAD_DEG if item.spreading == "cos2s" else None,
+    }
+    derived = {}
+    for key, default in defaults.items():
+        if default is not None and written.get(key) == default:
+            derived[key] = written[key]
+            written[key] = None
+    return derived
+
+
+def _comment_derived(text: str, derived: list[dict[str, Any]]) -> str:
+    """Append ``# derived: value`` to the null lines of each component's derived keys."""
+    lines, index, inside = [], -1, False
+    for line in text.splitlines():
+        if line.startswith("  components:"):
+            inside = True
+        elif inside and not line.startswith("  "):
+            inside = False
+        elif inside and line.startswith("  - "):
+            index += 1
+        key = line.strip().lstrip("- ").partition(":")[0]
+        if inside and 0 <= index < len(derived) and key in derived[index] and line.endswith(": null"):
+            line += f"  # derived: {derived[index][key]}"
+        lines.append(line)
+    return "\n".join(lines) + "\n"
 
 
 def preset_hash(preset: Preset) -> str:
