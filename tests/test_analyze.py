@@ -509,7 +509,9 @@ def test_files_exr_and_png_through_the_command_line(tmp_path, capsys, deep):
     preset = _target_preset(tmp_path)
     assert main(["analyze", exr, *args, "--against", preset]) == 0
     out = capsys.readouterr().out
-    assert "Spectrum  against" in out and "1.00 ωp" in out
+    # The peak's half-octave band in metres and seconds: periods 4·2^±¼ s, deep-water
+    # wavelengths gT²/2π (Stewart 2008, eq. 16.10): 4.76–3.36 s, 35.3–17.7 m.
+    assert "Spectrum  against" in out and "35.3–17.7 m, 4.76–3.36 s" in out and "ωp" not in out
 
 
 @pytest.mark.parametrize("up_axis", ["y", "z"])

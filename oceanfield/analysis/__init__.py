@@ -5,19 +5,21 @@ statistics and directions (``measure``) and a wave-timing fit ω² = g_eff·k·t
 (``timing``), judged against a preset (``verdict``) and drawn (``plot``). It knows
 nothing of synthesis: it never imports ``surface``.
 
-============  ====================================================================
-``measure``   spectra, statistics, directions and band comparisons of a sequence
-``timing``    the dispersion fit, its status and notes
-``verdict``   the text verdict and the ``oceanfield analyze`` command
-``plot``      the report picture (matplotlib, loaded on first use)
-============  ====================================================================
+===============  ====================================================================
+``measure``      spectra, statistics, directions and band comparisons of a sequence
+``timing``       the dispersion fit, its status and notes
+``reliability``  which figures a clip's length or tile cannot support, and the clip that would
+``verdict``      the text verdict and the ``oceanfield analyze`` command
+``plot``         the report picture (matplotlib, loaded on first use)
+===============  ====================================================================
 """
 
 from __future__ import annotations
 
-from . import measure as _measure, timing as _timing, verdict as _verdict
+from . import measure as _measure, reliability as _reliability, timing as _timing, verdict as _verdict
 from .measure import *  # noqa: F401,F403  (the names in measure.__all__)
+from .reliability import *  # noqa: F401,F403  (the names in reliability.__all__)
 from .timing import *  # noqa: F401,F403  (the names in timing.__all__)
 from .verdict import *  # noqa: F401,F403  (the names in verdict.__all__)
 
-__all__ = [*_measure.__all__, *_timing.__all__, *_verdict.__all__]
+__all__ = [*_measure.__all__, *_reliability.__all__, *_timing.__all__, *_verdict.__all__]

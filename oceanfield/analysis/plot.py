@@ -2,12 +2,15 @@
 
 Knows nothing of synthesis or of files other than its own PNG.
 
-One PNG with four panels: the omnidirectional wavenumber spectrum on log axes (with the
-target's, and the compared bands shaded by verdict); the frequency–wavenumber diagram in
-log power with the declared and the fitted dispersion curves and the Nyquist frequency
-drawn over it; a polar plot of the energy by direction of travel; the frequency spectrum
-of the time series with its peak. matplotlib (Agg) is imported here only, when a report
-is asked for, and the file is written atomically.
+One PNG with four panels and the verdict: the omnidirectional wavenumber spectrum on log
+axes (with the target's, and the compared bands shaded by verdict, each labelled with its
+wavelengths and periods); the frequency–wavenumber diagram in log power with the declared
+and the fitted dispersion curves and the Nyquist frequency (drawn, or marked as above the
+plot); a polar plot of the energy by direction of travel; the frequency spectrum of the
+time series with its peak and the periods the clip is too short to resolve shaded. Every
+wavenumber axis also reads in wavelength (m), every frequency axis in period (s). Under
+the panels: the text verdict with its notes. matplotlib (Agg) is imported here only, when
+a report is asked for, and the file is written atomically.
 """
 
 from __future__ import annotations
@@ -19,10 +22,11 @@ from pathlib import Path
 import numpy as np
 
 from .measure import SequenceAnalysis, whole_degrees
+from .reliability import MIN_CYCLES, assess, band_scales
 from ..physics.dispersion import angular_frequency
 from ..io.atomic import atomic_output
 
-__all__ = ["write_report"]
+__all__ = ["report_figure", "write_report"]
 
 _VERDICT_COLOURS = {"ok": "#4daf4a", "too much": "#e41a1c", "too little": "#377eb8", "negligible": "#bbbbbb"}
 _DPI = 100
@@ -34,20 +38,39 @@ def write_report(
     *,
     title: str = "",
     against: str | None = None,
+    verdict: str = "",
 ) -> Path:
     """Write the report picture of an analysis as a PNG, atomically; returns its path.
+
+    ``verdict`` (the text of `oceanfield.analysis.verdict.format_verdict`) is printed under
+    the panels.
 
     Raises
     ------
     OutputError
         When the file cannot be written (no partial file is left).
     """
+    figure = report_figure(result, title=title, against=against, verdict=verdict)
+    final = Path(path)
+    with atomic_output(final) as temporary:
+        figure.savefig(temporary, format="png", dpi=_DPI)
+    return final
+
+
+def report_figure(result: SequenceAnalysis, *, title: str = "", against: str | None = None, verdict: str = ""):
+    """The report as a matplotlib Figure (Agg canvas), for `write_report` and for tests."""
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
 
-    figure = Figure(figsize=(13.0, 10.0), dpi=_DPI)
+    lines = _wrapped(verdict)
+    text_height = 0.16 * len(lines) + 0.3 if lines else 0.0
+    figure = Figure(figsize=(13.0, 10.5 + text_height), dpi=_DPI)
     FigureCanvasAgg(figure)
-    grid = figure.add_gridspec(2, 2, hspace=0.3, wspace=0.25)
+    bottom = (text_height + 0.2) / (10.5 + text_height)
+    grid = figure.add_gridspec(2, 2, hspace=0.42, wspace=0.25, bottom=bottom + 0.04, top=0.88)
+    if lines:
+        figure.text(0.03, bottom, "\n".join(lines), family="monospace", fontsize=8, va="top", ha="left",
+                    transform=figure.transFigure)
     _spectrum_panel(figure.add_subplot(grid[0, 0]), result, against)
     _omega_k_panel(figure.add_subplot(grid[0, 1]), result)
     _direction_panel(figure.add_subplot(grid[1, 0], projection="polar"), result)
@@ -56,15 +79,14 @@ def write_report(
     timing = (
         f"g_eff/g = {fit.g_ratio:.3f} ({fit.status})" if math.isfinite(fit.g_ratio) else "timing not measurable"
     )
+    verdict_line = next((line[len("Verdict"):].strip() for line in lines if line.startswith("Verdict")), "")
+    tp = f"{result.tp:#.3g} s" + (" (unreliable)" if "tp_s" in assess(result).unreliable else "")
     figure.suptitle(
-        f"{title}\nHs {result.hs:#.3g} m   Tp {result.tp:#.3g} s   towards "
-        f"{_bearing(result.mean_direction)}°   {timing}",
+        f"{title}\nHs {result.hs:#.3g} m   Tp {tp}   towards "
+        f"{_bearing(result.mean_direction)}°   {timing}" + (f"\n{verdict_line.split('. ')[0]}" if verdict_line else ""),
         fontsize=12,
     )
-    final = Path(path)
-    with atomic_output(final) as temporary:
-        figure.savefig(temporary, format="png", dpi=_DPI)
-    return final
+    return figure
 
 
 def _spectrum_panel(axes, result: SequenceAnalysis, against: str | None) -> None:
@@ -76,18 +98,22 @@ def _spectrum_panel(axes, result: SequenceAnalysis, against: str | None) -> None
         positive = target > 0
         axes.loglog(k[positive], target[positive], color="#ff7f00", lw=1.5, ls="--",
                     label=f"target {against}" if against else "target")
+    named = set()
     for band in result.bands or ():
         colour = _VERDICT_COLOURS.get(band.verdict)
         if colour is None:
             continue
-        axes.axvspan(band.k_low, band.k_high, color=colour, alpha=0.15, lw=0)
-        if band.verdict in ("too much", "too little"):
-            axes.text(math.sqrt(band.k_low * band.k_high), 0.97, f"{band.centre:.2g}ωp\n{band.verdict}",
-                      transform=axes.get_xaxis_transform(), ha="center", va="top", fontsize=7, color=colour)
+        label = None if band.verdict in named else f"band {band.verdict}"
+        named.add(band.verdict)
+        axes.axvspan(band.k_low, band.k_high, color=colour, alpha=0.15, lw=0, label=label)
+        long_l, _, long_t, _ = band_scales(band.omega_low, band.omega_high, band.k_low, band.k_high)
+        axes.text(math.sqrt(band.k_low * band.k_high), 0.97, f"{long_l:.3g} m\n{long_t:.3g} s\n{band.verdict}",
+                  transform=axes.get_xaxis_transform(), ha="center", va="top", fontsize=6, color=colour)
     if shown.any():
         top = float(e[shown].max())
         axes.set_ylim(top * 1e-7, top * 3.0)
     _label(axes, "wavenumber |k| (rad/m)", "E(k) (m³/rad)", "Omnidirectional wavenumber spectrum", "lower left")
+    _reciprocal_axis(axes, "wavelength (m)")
 
 
 def _omega_k_panel(axes, result: SequenceAnalysis) -> None:
@@ -112,15 +138,24 @@ def _omega_k_panel(axes, result: SequenceAnalysis) -> None:
         axes.plot(k, fitted, color="#00e5ff", lw=1.2, label=f"fitted, g_eff/g = {fit.g_ratio:.3f}")
         used = fit.used
         axes.plot(fit.wavenumbers[used], fit.frequencies[used], "o", ms=3, color="#00e5ff", mfc="none")
-    axes.axhline(result.nyquist_frequency, color="#cccccc", lw=0.8, ls=":", label="Nyquist fps·π")
     # Show up to 1.6× the fastest expected frequency (declared or fitted), and Nyquist if near.
     fastest = float(declared[-1]) * max(1.0, math.sqrt(fit.g_ratio) if math.isfinite(fit.g_ratio) else 1.0)
-    axes.set_xlim(0.0, k_edges[-1])
-    axes.set_ylim(0.0, min(w_edges[-1], max(1.6 * fastest, 4.0 * d_omega)))
+    top = max(1.6 * fastest, 4.0 * d_omega)
+    nyquist = result.nyquist_frequency
+    if nyquist <= 1.5 * top:  # near enough to draw: show it
+        top = 1.08 * nyquist
+        axes.axhline(nyquist, color="#ffffff", lw=1.4, ls=":", label=f"Nyquist fps·π = {nyquist:.3g} rad/s")
+    else:
+        axes.text(0.99, 0.02, f"Nyquist fps·π = {nyquist:.3g} rad/s, above the plot ↑", transform=axes.transAxes,
+                  ha="right", va="bottom", fontsize=8, color="black",
+                  bbox=dict(facecolor="white", alpha=0.8, lw=0))
+    axes.set_xlim(0.5 * dk, k_edges[-1])  # from half a step: the wavelength axis above stays finite
+    axes.set_ylim(0.0, top)
     axes.set_xlabel("wavenumber |k| (rad/m)")
     axes.set_ylabel("angular frequency ω (rad/s)")
     axes.set_title("Frequency–wavenumber spectrum")
     axes.legend(loc="upper left", fontsize=8)
+    _reciprocal_axis(axes, "wavelength (m)")
 
 
 def _direction_panel(axes, result: SequenceAnalysis) -> None:
@@ -152,12 +187,17 @@ def _frequency_panel(axes, result: SequenceAnalysis) -> None:
     if math.isfinite(result.tp_from_wavenumber) and result.tp_from_wavenumber > 0:
         axes.axvline(2.0 * math.pi / result.tp_from_wavenumber, color="#ff7f00", lw=1.0, ls=":",
                      label=f"Tp from wavenumber peak {result.tp_from_wavenumber:.3g} s")
+    # Periods longer than a third of the clip sit in its first bins: the clip cannot resolve them.
+    unresolved = MIN_CYCLES * 2.0 * math.pi * result.fps / result.frames
+    axes.axvspan(omega[0] * 0.5 if omega.size else 0.0, unresolved, color="#999999", alpha=0.25, lw=0,
+                 label=f"periods over {result.frames / result.fps / MIN_CYCLES:.3g} s: too long for the clip")
     if shown.any():
         top = float(s[shown].max())
         axes.set_ylim(top * 1e-6, top * 3.0)
         visible = omega[s > top * 1e-6]
-        axes.set_xlim(0.0, min(float(omega[-1]), 1.3 * float(visible.max())))
+        axes.set_xlim(omega[0] * 0.5, min(float(omega[-1]), 1.3 * float(visible.max())))
     _label(axes, "angular frequency ω (rad/s)", "S(ω) (m²·s/rad)", "Frequency spectrum of the time series", "best")
+    _reciprocal_axis(axes, "period (s)")
 
 
 def _label(axes, x: str, y: str, title: str, legend: str) -> None:
@@ -166,6 +206,52 @@ def _label(axes, x: str, y: str, title: str, legend: str) -> None:
     axes.set_title(title)
     axes.grid(True, which="both", alpha=0.2)
     axes.legend(loc=legend, fontsize=8)
+
+
+def _reciprocal_axis(axes, label: str) -> None:
+    """A top axis reading 2π/x: wavelength (m) over wavenumber, period (s) over frequency."""
+
+    def reciprocal(x):
+        x = np.asarray(x, dtype=float)
+        return 2.0 * math.pi / np.maximum(x, 1e-12)
+
+    top = axes.secondary_xaxis("top", functions=(reciprocal, reciprocal))
+    top.set_xlabel(label, fontsize=8)
+    top.tick_params(labelsize=7)
+    # Round values (1, 2, 5 × 10ⁿ) spaced at least 7 % of the width apart: a reciprocal of a
+    # linear axis crowds its automatic ticks at one end.
+    import matplotlib.ticker
+
+    low, high = sorted(axes.get_xlim())
+    log = axes.get_xscale() == "log"
+    place = (lambda x: math.log(x)) if log else (lambda x: x)
+    if low <= 0 or high <= low:
+        return
+    span = place(high) - place(low)
+    values = sorted(
+        (m * 10.0**e for e in range(-4, 7) for m in (1, 2, 5) if low <= 2 * math.pi / (m * 10.0**e) <= high),
+        key=lambda v: -v,
+    )
+    ticks, last = [], None
+    for value in values:
+        at = place(2 * math.pi / value)
+        if last is None or (at - last) / span >= 0.07:
+            ticks.append(value)
+            last = at
+    top.xaxis.set_major_locator(matplotlib.ticker.FixedLocator(ticks))
+    top.xaxis.set_minor_locator(matplotlib.ticker.NullLocator())
+    top.xaxis.set_major_formatter(matplotlib.ticker.FuncFormatter(lambda v, _: f"{v:g}"))
+
+
+def _wrapped(text: str, width: int = 170) -> list[str]:
+    """The verdict's lines, long ones wrapped under their own indent."""
+    import textwrap
+
+    lines = []
+    for line in text.splitlines():
+        indent = " " * 10 if len(line) > 10 and line[:10].strip() else ""
+        lines += textwrap.wrap(line, width=width, subsequent_indent=indent) or [""]
+    return lines
 
 
 def _bearing(angle: float | None) -> str:

@@ -33,10 +33,11 @@ from .measure import (
     check_positive,
     whole_degrees,
 )
+from .reliability import Reliability, assess, band_scales
 from ..physics.dispersion import check_depth
 from ..io.sequence import choose_layout, expand_sequence, header_number, parse_crop, read_channels, select_frames
 
-__all__ = ["format_verdict", "run_analyze_command"]
+__all__ = ["format_verdict", "reliability_notes", "run_analyze_command"]
 
 
 # -- the verdict -------------------------------------------------------------------------
@@ -97,12 +98,14 @@ def _band_lines(result: SequenceAnalysis, against: str | None) -> list[str]:
     lines = [
         f"Spectrum  against {name} (Hs {result.target_hs:.3g} m, Tp {result.target_tp:.3g} s): "
         f"measured Hs is {_percent(result.hs / result.target_hs - 1.0)} of the target's",
-        "          energy per half-octave band around the target's peak ωp (as the wavenumbers of its dispersion):",
+        "          energy per half-octave band around the target's peak, by wavelength and period "
+        "(measured as the wavenumbers of its dispersion):",
     ]
     for band in result.bands:
-        label = f"{band.centre:4.2f} ωp  {band.omega_low:.3g}–{band.omega_high:.3g} rad/s"
+        long_l, short_l, long_t, short_t = band_scales(band.omega_low, band.omega_high, band.k_low, band.k_high)
+        label = f"{long_l:.3g}–{short_l:.3g} m, {long_t:.3g}–{short_t:.3g} s"
         if band.verdict == "not resolved":
-            lines.append(f"          {label:<28} not resolved by the frames")
+            lines.append(f"          {label:<30} not resolved by the frames")
             continue
         ratio = f"×{band.ratio:.3g}" if math.isfinite(band.ratio) else "—"
         verdict = band.verdict if band.verdict in ("negligible",) else (
@@ -110,7 +113,7 @@ def _band_lines(result: SequenceAnalysis, against: str | None) -> list[str]:
         )
         partial = " [partly beyond the frames' resolution]" if band.partial else ""
         lines.append(
-            f"          {label:<28} {band.measured:10.4g} / {band.target:10.4g} m²  {ratio:>8}  {verdict}{partial}"
+            f"          {label:<30} {band.measured:10.4g} / {band.target:10.4g} m²  {ratio:>8}  {verdict}{partial}"
         )
     return lines
 
@@ -146,12 +149,25 @@ def format_verdict(result: SequenceAnalysis, *, against: str | None = None, sour
         f"({texel:.3g} m texels) at {result.fps:g} fps ({result.frames / result.fps:.3g} s); {seam}"
     )
     folded = "" if result.folded_fraction is None else f"   folded {result.folded_fraction:.1%} of the surface"
+    trust = assess(result)
+
+    def figure(key: str, value: float | None, unit: str = "") -> str:
+        mark = " [unreliable]" if key in trust.unreliable else ""
+        return f"{_num(value)}{unit}{mark}"
+
+    steep_k = trust.steepness_from_wavenumber
+    steep_k_text = f" ({_num(steep_k)} from the wavenumber peak)" if "significant_steepness" in trust.unreliable else ""
     lines += [
-        f"Heights   Hs {_num(result.hs)} m   Tp {_num(result.tp)} s (time series), {_num(result.tp_from_wavenumber)} s "
-        f"(wavenumber peak, {_depth_text(fit.depth)})   Tm01 {_num(result.tm01)} s   Tm02 {_num(result.tm02)} s",
-        f"          travelling towards {_num(whole_degrees(result.mean_direction), '.0f')}° "
-        f"(counter-clockwise from +x, spread {_num(math.degrees(result.directional_spread), '.0f')}°)   "
-        f"significant steepness {_num(result.significant_steepness)}{folded}",
+        f"Heights   Hs {_num(result.hs)} m   Tp {figure('tp_s', result.tp, ' s')} (time series), "
+        f"{figure('tp_from_wavenumber_s', result.tp_from_wavenumber, ' s')} "
+        f"(wavenumber peak, {_depth_text(fit.depth)})   Tm01 {figure('tm01_s', result.tm01, ' s')}   "
+        f"Tm02 {figure('tm02_s', result.tm02, ' s')}",
+        f"          travelling towards {_num(whole_degrees(result.mean_direction), '.0f')}°"
+        f"{' [unreliable]' if 'towards_deg' in trust.unreliable else ''} "
+        f"(counter-clockwise from +x, spread {_num(math.degrees(result.directional_spread), '.0f')}°"
+        f"{' [unreliable]' if 'directional_spread_deg' in trust.unreliable else ''})   "
+        f"significant steepness {figure('significant_steepness', result.significant_steepness)}{steep_k_text}"
+        f"{folded}",
     ]
     lines += _timing_lines(result)
     lines += _band_lines(result, against)
@@ -164,17 +180,34 @@ def format_verdict(result: SequenceAnalysis, *, against: str | None = None, sour
         )
     for band in result.bands or ():
         if band.verdict in ("too much", "too little"):
-            problems.append(f"{band.verdict} energy at {band.centre:.2f} ωp (×{band.ratio:.3g} the target)")
+            long_l, short_l, long_t, short_t = band_scales(band.omega_low, band.omega_high, band.k_low, band.k_high)
+            problems.append(
+                f"{band.verdict} energy in the {long_l:.3g}–{short_l:.3g} m waves ({long_t:.3g}–{short_t:.3g} s; "
+                f"×{band.ratio:.3g} the target)"
+            )
+    caveat = ""
+    if trust.unreliable:
+        caveat = f" The clip cannot support {len(trust.unreliable)} figure(s) marked [unreliable]; see the notes."
     if problems:
-        lines.append("Verdict   OFF: " + "; ".join(problems) + ".")
+        lines.append("Verdict   OFF: " + "; ".join(problems) + "." + caveat)
     elif fit.status == "ok":
         checked = "the timing and every resolved band of the spectrum are" if result.bands else "the timing is"
-        lines.append(f"Verdict   RIGHT: {checked} as declared.")
+        lines.append(f"Verdict   RIGHT: {checked} as declared." + caveat)
     else:
-        lines.append("Verdict   the timing could not be measured; see the notes.")
-    for note in result.notes:
+        lines.append("Verdict   the timing could not be measured; see the notes." + caveat)
+    for note in (*result.notes, *reliability_notes(trust, result.fps, timing=fit.status)):
         lines.append(f"Note      {note}.")
     return "\n".join(lines)
+
+
+def reliability_notes(trust: Reliability, fps: float, *, timing: str = "ok") -> list[str]:
+    """One note per figure the clip cannot support, and the clip that would."""
+    notes = [f"unreliable: {why}" for why in trust.unreliable.values()]
+    need = trust.need_text(fps)
+    if need and (trust.unreliable or timing == "not measurable"):
+        what = "the peak period and the figures built on it" if trust.unreliable else "the peak for timing"
+        notes.append(f"{need} would resolve {what}: three peak periods ({trust.duration:.3g} s now)")
+    return notes
 
 
 
@@ -329,6 +362,13 @@ def run_analyze_command(args: argparse.Namespace) -> int:
             "crop": None if args.crop is None else [x0, y0, n],
             "against": args.against,
         }
+        trust = assess(result)
+        data.update(trust.to_dict(result.fps))
+        for band, record in zip(result.bands or (), data["bands"] or ()):
+            long_l, short_l, long_t, short_t = band_scales(band.omega_low, band.omega_high, band.k_low, band.k_high)
+            record.update(wavelength_long_m=long_l, wavelength_short_m=short_l, period_long_s=long_t,
+                          period_short_s=short_t)
+        data["notes"] = data["notes"] + reliability_notes(trust, result.fps, timing=result.dispersion.status)
         print(json.dumps(data, indent=2))
     else:
         print(format_verdict(result, against=args.against, source=source))
@@ -336,7 +376,9 @@ def run_analyze_command(args: argparse.Namespace) -> int:
         from .plot import write_report
 
         try:
-            written = write_report(result, args.report, title=f"{args.sequence}", against=args.against)
+            verdict = format_verdict(result, against=args.against)
+            written = write_report(result, args.report, title=f"{args.sequence}", against=args.against,
+                                   verdict=verdict)
         except OSError as error:  # an unwritable folder or a full disk: the user's to fix
             raise ValueError(str(error)) from None
         if not args.json:
