@@ -61,10 +61,16 @@ def build_parser() -> argparse.ArgumentParser:
     resolve = commands.add_parser("resolve", help="print the preset with every default filled in (YAML)")
     _add_preset_arguments(resolve)
 
-    preview = commands.add_parser("preview", help="write one picture of a preset: shaded surface, height, spectrum")
+    preview = commands.add_parser(
+        "preview", help="write one picture of a preset (top view, height, foam, spectrum), or a flipbook"
+    )
     _add_preset_arguments(preview)
-    preview.add_argument("--frame", type=int, default=None, help="frame number (default: the first)")
-    preview.add_argument("--out", default=None, help="PNG file to write (default: renders/<preset>_preview.png)")
+    shown = preview.add_mutually_exclusive_group()
+    shown.add_argument("--frame", type=int, default=None, help="frame number (default: the first)")
+    shown.add_argument("--frames", default=None, metavar="A-B",
+                       help="write a flipbook of these frames' top view instead (GIF, or MP4 with the video extra)")
+    preview.add_argument("--out", default=None,
+                         help="file to write (default: renders/<preset>_preview.png, or .gif with --frames)")
 
     render = commands.add_parser("render", help="render a preset's map sequence")
     _add_preset_arguments(render)
@@ -201,6 +207,14 @@ def _cmd_preview(args: argparse.Namespace) -> int:
 
     preset = _load(args, allow_outside_output=True)
     _warn(preset)
+    if args.frames is not None:
+        from .preset.preview import write_flipbook
+        from .render.plan import parse_frames
+
+        frames = parse_frames(args.frames, preset.time.frames)
+        path = write_flipbook(preset, frames, out=args.out)
+        print(f"flipbook of {len(frames)} frames written to {path}")
+        return 0
     path = write_preview(preset, frame=args.frame, out=args.out)
     print(f"preview written to {path}")
     return 0

@@ -78,7 +78,7 @@ def test_preview_writes_a_picture_that_is_not_blank(tmp_path, capsys):
     import imageio.v3 as iio
 
     picture = iio.imread(out)
-    assert picture.shape[:2] == (1000, 1300)  # 13 × 10 inches at 100 dpi
+    assert picture.shape[:2] == (1000, 1600)  # 16 × 10 inches at 100 dpi
     grey = picture[..., :3].astype(float).mean(axis=-1)
     assert grey.std() > 20.0  # panels, curves and a shaded sea, not a flat page
 

@@ -1,10 +1,17 @@
-"""One picture of a preset to look at before rendering: ``oceanfield preview``.
+"""Pictures of a preset to look at before rendering: ``oceanfield preview``.
 
 Knows nothing of render jobs or map files.
 
-Four panels: the surface of one frame shaded from its normals under a sky and a sun; the
-height map; the frequency spectrum S(ω) of each component and the total, with the band the
-tile carries marked; and the directional distribution of the energy.
+One picture of one frame, six panels: a top view of the surface shaded from its normals
+(of a window a few peak wavelengths wide, so that a large tile still reads as waves, not
+as noise); the height map; the foam map; the frequency spectrum of each component and the
+total against period (s) with wavelength (m) above, the band the tile carries marked; the
+directional distribution of the energy; and the sea's figures. Lengths are written in the
+unit that suits the sea (mm, cm or m). ``preview --frames A-B`` writes the top view as a
+flipbook instead, a GIF or an MP4 through imageio, to judge the look in motion.
+
+Image orientation (as in the maps): row 0 of a map is y = 0. The pictures here are drawn
+with y up (``origin="lower"``), as a plan of the tile seen from above with x to the right.
 """
 
 from __future__ import annotations
@@ -15,7 +22,7 @@ from pathlib import Path
 import numpy as np
 from numpy.typing import NDArray
 
-__all__ = ["shade", "write_preview"]
+__all__ = ["shade", "shade_top", "length_text", "preview_figure", "write_preview", "write_flipbook"]
 
 # Shading colours (linear RGB, demo look, not measured): deep water, sky, sun.
 _WATER = np.array([0.02, 0.08, 0.12])
@@ -24,6 +31,11 @@ _FOAM = np.array([0.90, 0.92, 0.93])
 _SUN_DIRECTION = np.array([0.0, 0.94, 0.34])  # low sun ahead of the viewer: glitter path
 _VIEW_DIRECTION = np.array([0.0, -0.87, 0.50])  # a camera 30° above the horizon looking toward +y
 _WATER_REFLECTANCE = 0.02  # Fresnel reflectance of water at normal incidence, (n−1)²/(n+1)², n = 1.33
+_SUN_ELEVATION_DEG = 25.0  # the top view's low sun (demo look): slopes facing it light up
+_WINDOW_PEAK_WAVELENGTHS = 2.5  # the top view shows at most this many peak wavelengths across
+_CONTRAST_PERCENTILES = (1.0, 99.0)  # the top view's shading stretched between these
+_FLIPBOOK_MIN_PIXELS = 384  # a flipbook's frames are enlarged (whole texels) to at least this
+_VIDEO_SUFFIXES = (".gif", ".mp4")
 
 
 def shade(normal: NDArray[np.float32], foam: NDArray[np.float32] | None = None) -> NDArray[np.float64]:
@@ -31,7 +43,8 @@ def shade(normal: NDArray[np.float32], foam: NDArray[np.float32] | None = None) 
 
     Schlick's approximation of the Fresnel reflectance (Schlick 1994, "An inexpensive BRDF
     model for physically-based rendering") mixes the water colour with the sky; a narrow
-    Phong lobe adds the sun's glitter. Good enough to judge the look of a sea, not a render.
+    Phong lobe adds the sun's glitter. Seen by a camera 30° above the horizon looking
+    toward +y. Good enough to judge the look of a sea, not a render.
     """
     n = np.asarray(normal, dtype=np.float64)
     view = _VIEW_DIRECTION / np.linalg.norm(_VIEW_DIRECTION)
@@ -48,96 +61,301 @@ def shade(normal: NDArray[np.float32], foam: NDArray[np.float32] | None = None) 
     return np.clip(colour, 0.0, 1.0) ** (1.0 / 2.2)
 
 
+def shade_top(
+    normal: NDArray[np.float32],
+    foam: NDArray[np.float32] | None = None,
+    *,
+    sun_azimuth: float = 0.0,
+    stretch: tuple[float, float] | None = None,
+) -> NDArray[np.float64]:
+    """A top view (0…1 RGB) of a surface lit by a low sun: relief shading, foam in white.
+
+    Lambert's cosine n·s with the sun ``_SUN_ELEVATION_DEG`` above the horizon at
+    ``sun_azimuth`` (radians, counter-clockwise from +x), stretched between ``stretch``
+    (low, high) of n·s, by default its 1st and 99th percentiles, so the waves read
+    whatever their steepness; coloured from deep water to sky.
+    """
+    n = np.asarray(normal, dtype=np.float64)
+    elevation = math.radians(_SUN_ELEVATION_DEG)
+    sun = np.array([math.cos(elevation) * math.cos(sun_azimuth), math.cos(elevation) * math.sin(sun_azimuth),
+                    math.sin(elevation)])
+    light = n @ sun
+    low, high = stretch if stretch is not None else np.percentile(light, _CONTRAST_PERCENTILES)
+    level = np.clip((light - low) / max(high - low, 1e-12), 0.0, 1.0)[..., None]
+    colour = (1.0 - level) * _WATER + level * _SKY
+    if foam is not None:
+        f = np.clip(np.asarray(foam, dtype=np.float64), 0.0, 1.0)[..., None]
+        colour = (1.0 - f) * colour + f * _FOAM
+    return np.clip(colour, 0.0, 1.0) ** (1.0 / 2.2)
+
+
+def length_text(metres: float, *, digits: int = 3) -> str:
+    """A length in the unit that suits it: ``"12 mm"``, ``"3.4 cm"``, ``"2.17 m"``, ``"1.2 km"``."""
+    size = abs(metres)
+    if size >= 10_000.0:
+        value, unit = metres / 1000.0, "km"
+    elif size >= 1.0 or size == 0.0:
+        value, unit = metres, "m"
+    elif size >= 0.01:
+        value, unit = metres * 100.0, "cm"
+    else:
+        value, unit = metres * 1000.0, "mm"
+    shown = f"{value:.0f}" if abs(value) >= 10**digits else f"{value:.{digits}g}"
+    return f"{shown} {unit}"
+
+
+def _unit_for(metres: float) -> tuple[str, float]:
+    """(unit, factor from metres) of the unit `length_text` would pick for ``metres``."""
+    unit = length_text(metres).split()[-1]
+    return unit, {"km": 1e-3, "m": 1.0, "cm": 100.0, "mm": 1000.0}[unit]
+
+
+def _window(preset, peak_wavelength: float) -> tuple[int, float]:
+    """(texels, metres) across the top view: the tile, or a few peak wavelengths of it."""
+    size, n = preset.tile.size_m, preset.tile.resolution
+    texels = n
+    if size > _WINDOW_PEAK_WAVELENGTHS * peak_wavelength:
+        texels = max(16, int(round(_WINDOW_PEAK_WAVELENGTHS * peak_wavelength / size * n)))
+    return texels, texels * size / n
+
+
+def _out_path(preset, out: str | Path | None, suffixes: tuple[str, ...], default_suffix: str) -> Path:
+    path = Path(out) if out is not None else Path("renders") / f"{preset.name or 'preset'}_preview{default_suffix}"
+    if path.suffix.lower() not in suffixes:
+        allowed = " or ".join(suffixes)
+        raise ValueError(f"--out: {str(path)!r} is not allowed; allowed: a file name ending in {allowed}")
+    if out is None:  # the default folder is ours to make, as render makes its own
+        path.parent.mkdir(parents=True, exist_ok=True)
+    if not path.parent.is_dir():
+        raise ValueError(f"--out: folder {str(path.parent)!r} does not exist; allowed: a path in an existing folder")
+    return path
+
+
+def _checked_frame(frame) -> int:
+    if isinstance(frame, bool) or not isinstance(frame, int):
+        raise ValueError(f"--frame: {frame!r} is not allowed; allowed: an integer frame number")
+    return frame
+
+
 def write_preview(preset, *, frame: int | None = None, out: str | Path | None = None) -> Path:
     """Write the preview PNG of a resolved preset and return its path.
 
     ``frame`` defaults to the preset's first frame; ``out`` to
-    ``renders/<preset>_preview.png``.
+    ``renders/<preset>_preview.png`` (the folder is made when it is the default).
     """
     import matplotlib
-    import matplotlib.ticker
 
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
 
     from ..io.atomic import atomic_output
+
+    frame = _checked_frame(preset.time.first_frame if frame is None else frame)
+    path = _out_path(preset, out, (".png",), ".png")
+    figure = preview_figure(preset, frame=frame)
+    with atomic_output(path) as temporary:
+        figure.savefig(temporary, format="png")
+    plt.close(figure)
+    return path
+
+
+def preview_figure(preset, *, frame: int | None = None):
+    """The preview picture as a matplotlib Figure (for `write_preview` and for tests)."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
     from .schema import to_sea_state
     from ..surface.synth import Ocean
 
-    frame = preset.time.first_frame if frame is None else frame
-    if isinstance(frame, bool) or not isinstance(frame, int):
-        raise ValueError(f"--frame: {frame!r} is not allowed; allowed: an integer frame number")
-    path = Path(out) if out is not None else Path("renders") / f"{preset.name or 'preset'}_preview.png"
-    if path.suffix.lower() != ".png":
-        raise ValueError(f"--out: {str(path)!r} is not allowed; allowed: a file name ending in .png")
-    if out is None:  # the default folder is ours to make, as render makes its own
-        path.parent.mkdir(parents=True, exist_ok=True)
-    if not path.parent.is_dir():
-        raise ValueError(f"--out: folder {str(path.parent)!r} does not exist; allowed: a PNG path in an existing folder")
-
+    frame = _checked_frame(preset.time.first_frame if frame is None else frame)
     sea = to_sea_state(preset)
     ocean = Ocean.from_preset(preset, velocity=False)
     t = preset.time.frame_time(frame)
     fields = ocean.frame(t)
     stats = sea.statistics()
     size = preset.tile.size_m
-    extent = (0.0, size, 0.0, size)
+    unit, factor = _unit_for(size)
+    extent = (0.0, size * factor, 0.0, size * factor)
 
-    figure = plt.figure(figsize=(13, 10), dpi=100)
+    figure = plt.figure(figsize=(16, 10), dpi=100)
     figure.suptitle(
-        f"{preset.name}: {preset.description}\nframe {frame} (t = {t:.2f} s), Hs {stats.hs:.2f} m, "
-        f"Tp {stats.tp:.2f} s, peak wavelength {stats.peak_wavelength:.1f} m, tile {size:g} m at "
+        f"{preset.name}: {preset.description}\nframe {frame} (t = {t:.2f} s), Hs {length_text(stats.hs)}, "
+        f"Tp {stats.tp:.3g} s, peak wavelength {length_text(stats.peak_wavelength)}, tile {length_text(size)} at "
         f"{preset.tile.resolution}²",
         fontsize=10,
     )
-    shaded_axes = figure.add_subplot(2, 2, 1)
-    shaded_axes.imshow(shade(fields.normal, fields.foam), origin="lower", extent=extent, interpolation="bilinear")
-    shaded_axes.set_title("shaded from the normals (camera 30° up, looking toward +y)", fontsize=10)
-    shaded_axes.set_xlabel("x (m)")
-    shaded_axes.set_ylabel("y (m)")
 
-    height_axes = figure.add_subplot(2, 2, 2)
+    texels, across = _window(preset, stats.peak_wavelength)
+    top_axes = figure.add_subplot(2, 3, 1)
+    picture = shade_top(fields.normal[:texels, :texels], fields.foam[:texels, :texels],
+                        sun_azimuth=stats.mean_direction + math.pi)
+    top_axes.imshow(picture, origin="lower", extent=(0.0, across * factor, 0.0, across * factor),
+                    interpolation="bilinear")
+    part = "the whole tile" if texels == preset.tile.resolution else f"a {length_text(across)} corner of the tile"
+    top_axes.set_title(f"top view, low sun facing the waves: {part}", fontsize=9)
+    top_axes.set_xlabel(f"x ({unit})")
+    top_axes.set_ylabel(f"y ({unit})")
+
+    height_axes = figure.add_subplot(2, 3, 2)
     limit = float(np.max(np.abs(fields.height))) or 1.0
-    image = height_axes.imshow(fields.height, origin="lower", extent=extent, cmap="RdBu_r", vmin=-limit, vmax=limit)
-    figure.colorbar(image, ax=height_axes, label="height (m)")
-    height_axes.set_title("height")
-    height_axes.set_xlabel("x (m)")
+    h_unit, h_factor = _unit_for(limit)
+    image = height_axes.imshow(fields.height * h_factor, origin="lower", extent=extent, cmap="RdBu_r",
+                               vmin=-limit * h_factor, vmax=limit * h_factor)
+    figure.colorbar(image, ax=height_axes, label=f"height ({h_unit})")
+    height_axes.set_title("height, top view", fontsize=10)
+    height_axes.set_xlabel(f"x ({unit})")
 
-    spectrum_axes = figure.add_subplot(2, 2, 3)
+    foam_axes = figure.add_subplot(2, 3, 3)
+    image = foam_axes.imshow(fields.foam, origin="lower", extent=extent, cmap="Greys_r", vmin=0.0, vmax=1.0)
+    figure.colorbar(image, ax=foam_axes, label="foam (0–1)")
+    covered = float(np.mean(fields.foam > 0.5))
+    foam_axes.set_title(f"foam, top view: {covered:.1%} of the surface above 0.5", fontsize=10)
+    foam_axes.set_xlabel(f"x ({unit})")
+
+    _spectrum_panel(figure.add_subplot(2, 3, 4), preset, sea, ocean)
+    _direction_panel(figure.add_subplot(2, 3, 5, projection="polar"), sea, stats)
+    _figures_panel(figure.add_subplot(2, 3, 6), preset, stats)
+
+    figure.tight_layout()
+    return figure
+
+
+def _spectrum_panel(axes, preset, sea, ocean) -> None:
+    """S(ω) of each component and the total, against period, with wavelength above."""
     peaks = [c.peak_frequency for c in sea.components]
     omega = np.geomspace(min(peaks) * 0.3, max(peaks) * 8.0, 600)
+    period = 2.0 * math.pi / omega
     for index, settings in enumerate(preset.sea.components):
-        spectrum_axes.plot(omega, sea.component_spectrum(index, omega), lw=1.2, label=settings.label or settings.spectrum)
+        axes.plot(period, sea.component_spectrum(index, omega), lw=1.2, label=settings.label or settings.spectrum)
     if len(sea.components) > 1:
-        spectrum_axes.plot(omega, sea.frequency_spectrum(omega), "k", lw=1.8, label="total")
-    low, high = float(sea.angular_frequency(ocean.tile.dk)), float(sea.angular_frequency(ocean.tile.nyquist))
-    spectrum_axes.axvspan(low, high, color="0.9", zorder=0, label="band the tile carries")
-    spectrum_axes.set_xscale("log")
-    spectrum_axes.xaxis.set_minor_formatter(matplotlib.ticker.NullFormatter())
-    spectrum_axes.set_yscale("log")
+        axes.plot(period, sea.frequency_spectrum(omega), "k", lw=1.8, label="total")
+    longest = 2.0 * math.pi / float(sea.angular_frequency(ocean.tile.dk))
+    shortest = 2.0 * math.pi / float(sea.angular_frequency(ocean.tile.nyquist))
+    axes.axvspan(shortest, longest, color="0.9", zorder=0, label="periods the tile carries")
+    axes.set_xscale("log")
+    axes.set_yscale("log")
     top = float(sea.frequency_spectrum(omega).max())
-    spectrum_axes.set_ylim(top * 1e-5, top * 3.0)
-    spectrum_axes.set_xlim(omega[0], omega[-1])
-    spectrum_axes.set_xlabel("angular frequency ω (rad/s)")
-    spectrum_axes.set_ylabel("S(ω) (m²·s/rad)")
-    spectrum_axes.set_title("frequency spectrum")
-    spectrum_axes.legend(fontsize=8)
+    axes.set_ylim(top * 1e-5, top * 3.0)
+    axes.set_xlim(period[-1], period[0])
+    _round_ticks(axes.xaxis, period[-1], period[0])
+    axes.set_xlabel("period (s)")
+    axes.set_ylabel("S(ω) (m²·s/rad)")
+    axes.set_title("frequency spectrum", fontsize=10)
+    axes.legend(fontsize=8)
 
-    polar_axes = figure.add_subplot(2, 2, 4, projection="polar")
+    def wavelength(t):
+        t = np.maximum(np.asarray(t, dtype=float), 1e-9)
+        return 2.0 * math.pi / np.maximum(sea.wavenumber(2.0 * math.pi / t), 1e-300)
+
+    def period_of(length):
+        length = np.maximum(np.asarray(length, dtype=float), 1e-9)
+        return 2.0 * math.pi / np.maximum(sea.angular_frequency(2.0 * math.pi / length), 1e-300)
+
+    above = axes.secondary_xaxis("top", functions=(wavelength, period_of))
+    unit, factor = _unit_for(float(wavelength(period[len(period) // 2])))
+    low, high = float(wavelength(period[-1])), float(wavelength(period[0]))
+    _round_ticks(above.xaxis, low, high, scale=factor)
+    above.set_xlabel(f"wavelength ({unit})", fontsize=9)
+
+
+def _round_ticks(axis, low: float, high: float, *, scale: float = 1.0) -> None:
+    """Ticks at round values (1, 2, 5 × 10ⁿ) on a log axis, labelled plainly, in ``scale`` units."""
+    import matplotlib.ticker
+
+    values = [m * 10.0**e for e in range(-6, 7) for m in (1, 2, 5) if low <= m * 10.0**e <= high]
+    if len(values) > 9:
+        values = [v for v in values if f"{v:.0e}"[0] in "15"]
+    axis.set_major_locator(matplotlib.ticker.FixedLocator(values))
+    axis.set_minor_locator(matplotlib.ticker.NullLocator())
+    axis.set_major_formatter(matplotlib.ticker.FuncFormatter(lambda v, _: f"{v * scale:g}"))
+
+
+def _direction_panel(axes, sea, stats) -> None:
     theta = np.linspace(-math.pi, math.pi, 721)
     weights = np.zeros_like(theta)
+    peaks = [c.peak_frequency for c in sea.components]
     grid = np.geomspace(min(peaks) * 0.3, max(peaks) * 8.0, 300)
-    for component in sea.components:
-        index = sea.components.index(component)
+    for index, component in enumerate(sea.components):
         density = sea.component_spectrum(index, grid)
         spread = component.directional_density(theta[:, None], grid[None, :], sea.gravity)
         weights += np.trapezoid(spread * density[None, :], grid, axis=1)
-    polar_axes.plot(theta, weights / stats.m0)
-    polar_axes.fill(theta, weights / stats.m0, alpha=0.3)
-    polar_axes.set_title("direction of travel (energy per radian, share of total)", fontsize=9)
+    axes.plot(theta, weights / stats.m0)
+    axes.fill(theta, weights / stats.m0, alpha=0.3)
+    axes.set_title("direction of travel (towards; degrees counter-clockwise from +x)", fontsize=9)
 
-    figure.tight_layout()
+
+def _figures_panel(axes, preset, stats) -> None:
+    size, n = preset.tile.size_m, preset.tile.resolution
+    rows = [
+        ("significant wave height Hs", length_text(stats.hs)),
+        ("peak period Tp", f"{stats.tp:.3g} s"),
+        ("mean period Tm02", f"{stats.tm02:.3g} s"),
+        ("peak wavelength", length_text(stats.peak_wavelength)),
+        ("travelling towards", f"{math.degrees(stats.mean_direction) % 360:.0f}°"),
+        ("Beaufort (equivalent)", f"{stats.beaufort}"),
+        ("tile", f"{length_text(size)} at {n}² ({length_text(size / n)} texels)"),
+        ("peak wavelengths across", f"{size / stats.peak_wavelength:.2g}"),
+        ("image rows", "row 0 is y = 0 (drawn at the bottom here)"),
+    ]
+    axes.axis("off")
+    text = "\n".join(f"{name:<28}{value}" for name, value in rows)
+    axes.text(0.0, 1.0, text, family="monospace", fontsize=9, va="top", ha="left", transform=axes.transAxes)
+    axes.set_title("the sea in figures", fontsize=10)
+
+
+def write_flipbook(preset, frames, *, out: str | Path | None = None) -> Path:
+    """Write the top view of ``frames`` as an animated GIF or MP4 (by ``out``'s suffix).
+
+    Each picture is `shade_top` of the same window as the preview's top view, with one
+    contrast stretch for the whole clip (so brightness does not flicker), enlarged by a
+    whole number of pixels per texel to at least ``_FLIPBOOK_MIN_PIXELS``, played at the
+    preset's frame rate (a GIF stores delays in hundredths of a second: 24 fps plays at
+    25). MP4 needs the ``video`` extra (imageio-ffmpeg). Written atomically.
+    """
+    import imageio.v3 as iio
+
+    from ..io.atomic import atomic_output
+    from ..surface.synth import Ocean
+
+    frames = [_checked_frame(f) for f in frames]
+    if not frames:
+        raise ValueError("--frames: no frames to preview; allowed: a range A-B")
+    path = _out_path(preset, out, _VIDEO_SUFFIXES, ".gif")
+    options: dict = {}
+    if path.suffix.lower() == ".mp4":
+        try:
+            import imageio_ffmpeg  # noqa: F401
+        except ImportError:
+            raise ValueError(
+                f"--out: {str(path)!r}: writing MP4 needs the video extra (pip install 'oceanfield[video]'); "
+                f"a .gif needs nothing more"
+            ) from None
+        options = dict(fps=preset.time.fps, codec="libx264", macro_block_size=1)
+    else:
+        options = dict(duration=1000.0 / preset.time.fps, loop=0)
+
+    ocean = Ocean.from_preset(preset, velocity=False)
+    stats = ocean.sea_state.statistics()
+    texels, _ = _window(preset, stats.peak_wavelength)
+    buffer = ocean.new_buffer()
+    sun = stats.mean_direction + math.pi
+    views = []
+    for frame in frames:
+        fields = ocean.frame(preset.time.frame_time(frame), buffer=buffer)
+        views.append((np.array(fields.normal[:texels, :texels]), np.array(fields.foam[:texels, :texels])))
+    elevation = math.radians(_SUN_ELEVATION_DEG)
+    sun_vector = np.array([math.cos(elevation) * math.cos(sun), math.cos(elevation) * math.sin(sun),
+                           math.sin(elevation)])
+    light = np.concatenate([(normal.astype(np.float64) @ sun_vector).ravel() for normal, _ in views])
+    stretch = tuple(np.percentile(light, _CONTRAST_PERCENTILES))
+    enlarge = max(1, math.ceil(_FLIPBOOK_MIN_PIXELS / texels))
+    pictures = []
+    for normal, foam in views:
+        picture = shade_top(normal, foam, sun_azimuth=sun, stretch=stretch)[::-1]  # y up, as in the preview
+        picture = np.repeat(np.repeat(picture, enlarge, axis=0), enlarge, axis=1)
+        pictures.append(np.round(picture * 255.0).astype(np.uint8))
     with atomic_output(path) as temporary:
-        figure.savefig(temporary, format="png")
-    plt.close(figure)
+        iio.imwrite(temporary, np.stack(pictures), extension=path.suffix.lower(), **options)
     return path

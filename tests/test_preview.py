@@ -1,0 +1,86 @@
+"""Tests for oceanfield.preset.preview: honest titles, axes in period and wavelength, a foam
+panel, units that suit the sea, and the flipbook."""
+
+from __future__ import annotations
+
+import math
+
+import imageio.v3 as iio
+import numpy as np
+import pytest
+
+from oceanfield.cli import main
+from oceanfield.preset import load_preset
+from oceanfield.preset.preview import length_text, preview_figure
+
+SMALL = ("tile.resolution=64",)
+
+
+@pytest.mark.parametrize(
+    "metres, text",
+    [(0.012, "1.2 cm"), (0.0081, "8.1 mm"), (0.0034, "3.4 mm"), (0.034, "3.4 cm"), (0.5, "50 cm"), (2.17, "2.17 m"), (1024.0, "1024 m"),
+     (25_000.0, "25 km")],
+)
+def test_lengths_in_the_unit_that_suits_them(metres, text):
+    assert length_text(metres) == text
+
+
+def _panels(figure):
+    return {axes.get_title(): axes for axes in figure.axes if axes.get_title()}
+
+
+def test_pond_preview_reads_in_small_units_with_period_and_wavelength_axes():
+    figure = preview_figure(load_preset("pond_ripples", overrides=SMALL))
+    title = figure._suptitle.get_text()
+    hs = load_preset("pond_ripples").sea_state().statistics().hs
+    assert f"Hs {length_text(hs)}" in title and "cm" in title and " 0.01 m" not in title
+    panels = _panels(figure)
+    assert not any("camera" in name for name in panels)  # the shaded panel is a top view and says so
+    assert any(name.startswith("top view") for name in panels)
+    assert any(name.startswith("foam") for name in panels)
+    spectrum = panels["frequency spectrum"]
+    assert spectrum.get_xlabel() == "period (s)"
+    assert [child.get_xlabel() for child in spectrum.child_axes] == ["wavelength (cm)"]
+    labels = [t.get_text() for t in spectrum.get_xticklabels() if t.get_text()]
+    assert len(labels) >= 3  # round periods labelled, not one lone tick
+    height = [axes for axes in figure.axes if axes.get_ylabel().startswith("height")]
+    assert height and height[0].get_ylabel() == "height (mm)"
+
+
+def test_large_tile_top_view_shows_a_window_of_a_few_peak_wavelengths():
+    """storm_force_ten: a 768 m tile, 241 m peak wavelength: the top view shows 2.5 of them."""
+    preset = load_preset("storm_force_ten", overrides=SMALL)
+    figure = preview_figure(preset)
+    top = next(axes for name, axes in _panels(figure).items() if name.startswith("top view"))
+    assert "corner of the tile" in top.get_title()
+    peak = preset.sea_state().statistics().peak_wavelength
+    shown = top.get_images()[0].get_extent()[1]  # metres across
+    texel = preset.tile.size_m / preset.tile.resolution
+    assert shown == pytest.approx(2.5 * peak, abs=texel)
+
+
+def test_flipbook_gif_moves_at_the_preset_rate(tmp_path, capsys):
+    out = tmp_path / "look.gif"
+    args = ["preview", "fresh_chop", "--set", "tile.resolution=32", "--frames", "1001-1006", "--out", str(out)]
+    assert main(args) == 0
+    assert "6 frames" in capsys.readouterr().out
+    frames = iio.imread(out)
+    assert frames.shape[0] == 6 and frames.shape[1] >= 384 and frames.shape[3] == 3
+    # a GIF stores delays in hundredths of a second: 1000/24 ms is kept as 40 ms
+    assert iio.immeta(out)["duration"] == 40
+    changes = [float(np.mean(np.abs(frames[i + 1].astype(int) - frames[i]))) for i in range(5)]
+    assert min(changes) > 1.0  # the sea moves from frame to frame
+
+
+def test_flipbook_errors_exit_2(tmp_path, capsys):
+    base = ["preview", "fresh_chop", "--set", "tile.resolution=32"]
+    assert main([*base, "--frames", "1001-1003", "--out", str(tmp_path / "x.png")]) == 2
+    assert "--out" in capsys.readouterr().err
+    assert main([*base, "--frames", "1003-1001", "--out", str(tmp_path / "x.gif")]) == 2
+    assert "--frames" in capsys.readouterr().err
+    try:
+        import imageio_ffmpeg  # noqa: F401
+    except ImportError:
+        assert main([*base, "--frames", "1001-1003", "--out", str(tmp_path / "x.mp4")]) == 2
+        assert "oceanfield[video]" in capsys.readouterr().err
+    assert not list(tmp_path.iterdir())
