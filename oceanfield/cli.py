@@ -90,7 +90,7 @@ def build_parser() -> argparse.ArgumentParser:
     analyze.add_argument("--depth", type=float, default=None, metavar="METRES", help="water depth (default: deep)")
     analyze.add_argument("--against", default=None, metavar="PRESET", help="compare with a preset's target spectrum")
     analyze.add_argument("--frames", default=None, help="frame range A-B to read")
-    analyze.add_argument("--crop", default=None, metavar="X,Y,SIZE", help="analyse a square region (texels); not periodic")
+    analyze.add_argument("--crop", default=None, metavar="X,Y,SIZE", help="analyse a square region (texels from the bottom-left corner); not periodic")
     analyze.add_argument("--metres-per-unit", type=float, default=None, help="scene scale of the values (default: from header, else 1)")
     analyze.add_argument("--up-axis", choices=("y", "z"), default=None, help="up axis of RGB displacement maps")
     analyze.add_argument("--json", action="store_true", help="print every figure as JSON")

@@ -84,6 +84,11 @@ def _synthesise(sea: SeaState, size: float, resolution: int, frames: int, fps: f
     return ocean, heights, displacement, folded
 
 
+def _file_rows(array: np.ndarray) -> np.ndarray:
+    """A tile's rows in image-file order: y = 0 is the image's bottom row (surface.maps)."""
+    return np.ascontiguousarray(array[::-1])
+
+
 def _lattice_sequence(power: np.ndarray, size: float, times: np.ndarray, seed: int) -> np.ndarray:
     """Heights Σ a_k cos(k·x − ω(k)t + φ_k) over the lattice: amplitudes a_k = √(2P_k) fixed,
     phases random, deep-water ω = √(gk); P in FFT layout, m² per lattice point."""
@@ -477,6 +482,7 @@ def test_files_exr_and_png_through_the_command_line(tmp_path, capsys, deep):
     frames = heights[:48]
     for i, frame in enumerate(frames):
         number = 1001 + i
+        frame = _file_rows(frame)
         write_exr(tmp_path / f"height.{number:04d}.exr", {"Y": frame}, precision="float",
                   attributes=_attributes(number, FPS, DEEP_SIZE))
         write_png16(tmp_path / f"height.{number:04d}.png", frame / 0.01)  # centimetres
@@ -525,6 +531,7 @@ def test_displacement_maps_give_height_and_folding(tmp_path, capsys, up_axis):
     assert folded > 0.002  # the sea is steep enough to fold somewhere
     for i, (height, (dx, dy)) in enumerate(zip(heights, lateral)):
         scene = {"R": dx, "G": height, "B": -dy} if up_axis == "y" else {"R": dx, "G": dy, "B": height}
+        scene = {name: _file_rows(array) for name, array in scene.items()}
         write_exr(tmp_path / f"displacement.{i:04d}.exr", scene, precision="float",
                   attributes=_attributes(1001 + i, fps, size, kind="displacement", up_axis=up_axis))
     assert main(["analyze", str(tmp_path / "displacement.####.exr"), "--tile-size", str(size),

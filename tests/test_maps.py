@@ -33,6 +33,14 @@ def _fields(n: int = 4, *, normal=(0.0, 0.0, 1.0), velocity: bool = True) -> Fie
     )
 
 
+def test_file_rows_put_y_zero_at_the_bottom():
+    """Row 0 of a map is the image's top row: the tile's last row; its last row is y = 0."""
+    fields = _fields(n=5)
+    height = map_channels(fields, "height")["Y"]
+    np.testing.assert_array_equal(height[-1], fields.height[0])
+    np.testing.assert_array_equal(height[0], fields.height[-1])
+
+
 def _vector(channels: dict) -> np.ndarray:
     """The (R, G, B) = scene (X, Y, Z) of texel (0, 0)."""
     return np.array([channels["R"][0, 0], channels["G"][0, 0], channels["B"][0, 0]], float)
@@ -41,18 +49,18 @@ def _vector(channels: dict) -> np.ndarray:
 def test_z_up_keeps_internal_axes():
     fields = _fields()
     channels = map_channels(fields, "displacement", up_axis="z")
-    np.testing.assert_array_equal(channels["R"], fields.displacement_x)
-    np.testing.assert_array_equal(channels["G"], fields.displacement_y)
-    np.testing.assert_array_equal(channels["B"], fields.height)
+    np.testing.assert_array_equal(channels["R"], fields.displacement_x[::-1])
+    np.testing.assert_array_equal(channels["G"], fields.displacement_y[::-1])
+    np.testing.assert_array_equal(channels["B"], fields.height[::-1])
 
 
 def test_y_up_maps_x_z_minus_y():
     """Y-up: scene (X, Y, Z) = internal (x, z, −y)."""
     fields = _fields()
     channels = map_channels(fields, "displacement", up_axis="y")
-    np.testing.assert_array_equal(channels["R"], fields.displacement_x)
-    np.testing.assert_array_equal(channels["G"], fields.height)
-    np.testing.assert_array_equal(channels["B"], -fields.displacement_y)
+    np.testing.assert_array_equal(channels["R"], fields.displacement_x[::-1])
+    np.testing.assert_array_equal(channels["G"], fields.height[::-1])
+    np.testing.assert_array_equal(channels["B"], -fields.displacement_y[::-1])
 
 
 @pytest.mark.parametrize(
@@ -84,24 +92,24 @@ def test_mapping_is_right_handed(up_axis):
 def test_velocity_uses_the_same_axes_and_scene_units():
     fields = _fields()
     channels = map_channels(fields, "velocity", up_axis="y", metres_per_unit=0.01)
-    np.testing.assert_allclose(channels["R"], fields.velocity[..., 0] * 100, rtol=UNIT_RTOL)
-    np.testing.assert_allclose(channels["G"], fields.velocity[..., 2] * 100, rtol=UNIT_RTOL)
-    np.testing.assert_allclose(channels["B"], -fields.velocity[..., 1] * 100, rtol=UNIT_RTOL)
+    np.testing.assert_allclose(channels["R"], fields.velocity[..., 0][::-1] * 100, rtol=UNIT_RTOL)
+    np.testing.assert_allclose(channels["G"], fields.velocity[..., 2][::-1] * 100, rtol=UNIT_RTOL)
+    np.testing.assert_allclose(channels["B"], -fields.velocity[..., 1][::-1] * 100, rtol=UNIT_RTOL)
 
 
 @pytest.mark.parametrize("metres_per_unit", [0.01, 2.5, 1.0])
 def test_lengths_divide_by_metres_per_unit_and_normals_do_not(metres_per_unit):
     fields = _fields(normal=(0.6, 0.0, 0.8))
     disp = map_channels(fields, "displacement", up_axis="z", metres_per_unit=metres_per_unit)
-    np.testing.assert_allclose(disp["B"], fields.height / metres_per_unit, rtol=UNIT_RTOL)
-    np.testing.assert_allclose(disp["R"], fields.displacement_x / metres_per_unit,
+    np.testing.assert_allclose(disp["B"], fields.height[::-1] / metres_per_unit, rtol=UNIT_RTOL)
+    np.testing.assert_allclose(disp["R"], fields.displacement_x[::-1] / metres_per_unit,
                                rtol=UNIT_RTOL)
     height = map_channels(fields, "height", metres_per_unit=metres_per_unit)
-    np.testing.assert_allclose(height["Y"], fields.height / metres_per_unit, rtol=UNIT_RTOL)
+    np.testing.assert_allclose(height["Y"], fields.height[::-1] / metres_per_unit, rtol=UNIT_RTOL)
     normal = map_channels(fields, "normal", up_axis="z", metres_per_unit=metres_per_unit)
     np.testing.assert_array_equal(_vector(normal), np.float32([0.6, 0.0, 0.8]))
     foam = map_channels(fields, "foam", metres_per_unit=metres_per_unit)
-    np.testing.assert_array_equal(foam["Y"], fields.foam)
+    np.testing.assert_array_equal(foam["Y"], fields.foam[::-1])
 
 
 @pytest.mark.parametrize(("name", "names"), [
@@ -128,7 +136,7 @@ def test_strided_input_gives_contiguous_channels():
                     normal=base.normal, foam=base.foam, velocity=None)
     channels = map_channels(fields, "displacement", up_axis="y")
     assert channels["G"].flags.c_contiguous
-    np.testing.assert_array_equal(channels["G"], base.height)
+    np.testing.assert_array_equal(channels["G"], base.height[::-1])
 
 
 def test_layered_names_follow_openexr_layer_convention():

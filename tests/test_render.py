@@ -250,14 +250,15 @@ def test_axis_mapping_and_scene_units(tmp_path, preset_file):
     z, _ = read_exr(plan_z.files(1001)["displacement"])
     height_y, _ = read_exr(plan_y.files(1001)["height"])
     height_z, _ = read_exr(plan_z.files(1001)["height"])
-    # Y-up maps internal (x, y, z) to scene (x, z, -y) (DEVELOPERS.md, scene axes).
-    np.testing.assert_array_equal(y["G"], fields.height)
-    np.testing.assert_array_equal(y["R"], fields.displacement_x)
-    np.testing.assert_array_equal(y["B"], -fields.displacement_y)
+    # Y-up maps internal (x, y, z) to scene (x, z, -y) (DEVELOPERS.md, scene axes); file
+    # rows run from the tile's last row down to y = 0 (surface.maps, image rows).
+    np.testing.assert_array_equal(y["G"], fields.height[::-1])
+    np.testing.assert_array_equal(y["R"], fields.displacement_x[::-1])
+    np.testing.assert_array_equal(y["B"], -fields.displacement_y[::-1])
     np.testing.assert_array_equal(height_y["Y"], y["G"])
     # Z-up keeps the axes; lengths divided by 0.01 m per unit: one float32 rounding each.
     for channel, internal in (("R", fields.displacement_x), ("G", fields.displacement_y), ("B", fields.height)):
-        np.testing.assert_allclose(z[channel], internal.astype(np.float64) / 0.01, rtol=FLOAT32_EPS)
+        np.testing.assert_allclose(z[channel], internal[::-1].astype(np.float64) / 0.01, rtol=FLOAT32_EPS)
     np.testing.assert_array_equal(height_z["Y"], z["B"])
     np.testing.assert_allclose(z["B"], 100.0 * y["G"].astype(np.float64), rtol=FLOAT32_EPS)
     assert np.abs(z["B"]).max() > 10.0  # centimetres: this 1 m sea spans tens of units

@@ -221,7 +221,9 @@ def read_channels(path: Path) -> tuple[dict[str, NDArray[np.float32]], dict[str,
     -------
     channels : dict of str to ndarray
         Each channel by name, float32 in the file's own units: an EXR's channel names; a
-        grey PNG's ``Y``, an RGB PNG's ``R``, ``G``, ``B``.
+        grey PNG's ``Y``, an RGB PNG's ``R``, ``G``, ``B``. Row 0 is the image's *bottom*
+        row (y = 0 where a package's UV origin is the bottom-left corner, and where
+        oceanfield's maps put it), so rows run along +y and columns along +x.
     attributes : dict
         The EXR header's attributes (a PNG has none: empty).
 
@@ -235,8 +237,10 @@ def read_channels(path: Path) -> tuple[dict[str, NDArray[np.float32]], dict[str,
         raise ValueError(f"sequence: '{path}' is not a supported format; allowed: {', '.join(_FORMATS)}")
     try:
         if suffix == ".exr":
-            return read_exr(path)
+            channels, attributes = read_exr(path)
+            return {name: array[::-1] for name, array in channels.items()}, attributes
         values, _ = read_png16(path)
+        values = values[::-1]  # row 0 = y = 0, the image's bottom row
         if values.ndim == 2:
             return {"Y": values}, {}
         return {name: values[..., i] for i, name in enumerate("RGB")}, {}
@@ -340,7 +344,8 @@ def parse_crop(text: str, rows: int, cols: int, *, min_size: int) -> tuple[int, 
     Parameters
     ----------
     text : str
-        The region as given (``--crop``): column and row of its first texel, its side.
+        The region as given (``--crop``): column and row of its first texel, its side;
+        rows count from the image's bottom row (y = 0), as `read_channels` gives them.
     rows, cols : int
         The frame's size in texels; the region must lie inside it.
     min_size : int

@@ -19,8 +19,18 @@ is either Z-up or Y-up, both right-handed:
 ``"y"``      (x, z, −y)
 ===========  =======================================
 
-so in a Y-up scene the internal +y direction (down the rows) is scene −Z, and "up" is
-scene +Y.
+so in a Y-up scene the internal +y direction is scene −Z, and "up" is scene +Y.
+
+Image rows
+----------
+A map's row 0 is the image's top row, as image files store them (OpenEXR and PNG scanlines
+run from the top down). The maps put the tile's y = 0 in the image's *bottom* row: file
+row r holds the tile's texel row N − 1 − r, so the picture is the tile seen from above
+with x to the right and y up. A package whose UV origin is the bottom-left corner then
+lays texel (x, y) at u = (x + ½ texel)/L, v = (y + ½ texel)/L: on a Z-up plane with u
+along +X and v along +Y, or a Y-up ground plane with u along +X and v along −Z, the tile
+lands in scene axes exactly as the vectors in the maps say, and waves travel towards
+``towards_deg`` (counter-clockwise from +X seen from above). `FILE_ROWS_FLIPPED` names this.
 
 Units
 -----
@@ -38,13 +48,17 @@ from numpy.typing import NDArray
 
 from oceanfield.surface.fields import Fields
 
-__all__ = ["MAPS", "UP_AXES", "map_channels", "layered_channels"]
+__all__ = ["FILE_ROWS_FLIPPED", "MAPS", "UP_AXES", "map_channels", "layered_channels"]
 
 #: The maps a frame can be written as.
 MAPS: tuple[str, ...] = ("displacement", "normal", "foam", "height", "velocity")
 
 #: The scene up-axis conventions `map_channels` knows.
 UP_AXES: tuple[str, ...] = ("y", "z")
+
+#: Whether file row 0 (the image's top row) holds the tile's last texel row (y = L − texel):
+#: true, so that y = 0 is the image's bottom row (see the module notes).
+FILE_ROWS_FLIPPED = True
 
 #: OpenEXR channel names of a vector map's scene X, Y, Z components.
 _VECTOR_CHANNELS = ("R", "G", "B")
@@ -84,7 +98,8 @@ def map_channels(
     Returns
     -------
     dict of str to NDArray[np.float32]
-        C-contiguous (N, N) float32 arrays keyed by OpenEXR channel name. They may share
+        C-contiguous (N, N) float32 arrays keyed by OpenEXR channel name, rows in file
+        order: row 0 is the tile's last row, y = L − texel (module notes). They may share
         memory with `fields`; treat them as read-only.
 
     Raises
@@ -202,7 +217,8 @@ def _to_scene_axes(
 
 
 def _scaled(component: NDArray[np.float32], metres_per_unit: float) -> NDArray[np.float32]:
-    """One C-contiguous float32 channel, lengths converted to scene units."""
+    """One C-contiguous float32 channel in file row order (y = 0 last), in scene units."""
+    component = component[::-1]  # file rows: the tile's last row first (module notes)
     if metres_per_unit != 1.0:
-        component = np.divide(component, metres_per_unit, dtype=np.float32)
+        return np.divide(component, metres_per_unit, dtype=np.float32)
     return np.ascontiguousarray(component, dtype=np.float32)
