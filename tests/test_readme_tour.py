@@ -106,3 +106,18 @@ def test_resolved_file_can_be_edited_where_the_readme_says(tmp_path, monkeypatch
     Path("twice.yaml").write_text(yaml.safe_dump(tree), encoding="utf-8")
     assert main(["stats", "twice.yaml"]) == 2
     assert "sized twice" in capsys.readouterr().err
+
+
+def test_a_preset_that_extends_another_can_size_a_component_its_own_way(tmp_path):
+    """`extends: fresh_chop` (sized by Beaufort 6) with its own wind speed: the child's sizing wins."""
+    child = tmp_path / "child.yaml"
+    child.write_text("extends: fresh_chop\nsea:\n  components:\n    0:\n      wind_speed_mps: 14\n", encoding="utf-8")
+    item = load_preset(child).sea.components[0]
+    assert (item.wind_speed_mps, item.beaufort, item.fetch_km) == (14.0, None, 60.0)
+    twice = tmp_path / "twice.yaml"
+    twice.write_text(
+        "extends: fresh_chop\nsea:\n  components:\n    0:\n      wind_speed_mps: 14\n      beaufort: 5\n",
+        encoding="utf-8",
+    )
+    with pytest.raises(ValueError, match="sized twice"):
+        load_preset(twice)

@@ -277,6 +277,7 @@ def load_preset(
     tree = read_tree(path, errors, _shipped_path)
     preset = None
     if tree is not None:
+        _resize_by_extension(tree)
         for text in overrides:
             apply_override(tree, text, errors)
             _resize_by_override(tree, text)
@@ -351,15 +352,35 @@ def _resize_by_override(tree: Node, text: str) -> None:
             node = value[int(part)]
         else:
             return
-    if node is None or not isinstance(node.value, dict):
+    if node is not None and isinstance(node.value, dict):
+        _replace_sizing(node, parts[3], lambda other: other.where.startswith("--set"))
+
+
+def _resize_by_extension(tree: Node) -> None:
+    """A sizing key written in the preset itself replaces the sizing it ``extends``."""
+    top = tree.where.rsplit(":", 1)[0]
+    sea = tree.value.get("sea") if isinstance(tree.value, dict) else None
+    components = sea.value.get("components") if sea is not None and isinstance(sea.value, dict) else None
+    if components is None or not isinstance(components.value, list):
         return
-    written = node.value.get(parts[3])
+    for node in components.value:
+        if not isinstance(node.value, dict):
+            continue
+        for key in _SIZING_KEYS:
+            written = node.value.get(key)
+            if written is not None and written.where.rsplit(":", 1)[0] == top:
+                _replace_sizing(node, key, lambda other: other.where.rsplit(":", 1)[0] == top)
+
+
+def _replace_sizing(component: Node, key: str, keep) -> None:
+    """Drop the sizing keys ``key`` replaces from ``component``, except those ``keep`` names."""
+    written = component.value.get(key)
     if written is None or written.value is None:
         return
-    for other in _REPLACED_BY[parts[3]]:
-        old = node.value.get(other)
-        if old is not None and not old.where.startswith("--set"):
-            del node.value[other]
+    for other in _REPLACED_BY[key]:
+        old = component.value.get(other)
+        if old is not None and not keep(old):
+            del component.value[other]
 
 
 def _derive_defaults(written: dict[str, Any], item: ComponentSettings) -> dict[str, Any]:
