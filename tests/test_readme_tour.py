@@ -53,7 +53,7 @@ def test_the_readme_tour_runs_from_top_to_bottom(tmp_path, monkeypatch, capsys):
     monkeypatch.chdir(tmp_path)
     tour = _tour()
     assert [words[0] for words in tour] == [
-        "presets", "stats", "preview", "resolve", "stats", "render", "analyze"
+        "presets", "stats", "preview", "preview", "resolve", "stats", "render", "analyze"
     ], "the tour changed: check that this test still covers each step"
     for words in tour:
         target = None
@@ -70,6 +70,7 @@ def test_the_readme_tour_runs_from_top_to_bottom(tmp_path, monkeypatch, capsys):
             # the override replaced the file's Beaufort sizing: 14 m/s over 60 km of fetch
             assert "Bft" in captured.out
     assert Path("renders/swell_under_wind_sea_preview.png").stat().st_size > 10_000
+    assert Path("renders/swell_under_wind_sea_preview.gif").stat().st_size > 10_000
     assert len(list(Path("renders/my_chop").glob("displacement.*.exr"))) == 24
     assert Path("check.png").stat().st_size > 10_000
 

@@ -134,8 +134,8 @@ def assess(result: SequenceAnalysis, *, target_tp: float | None = None) -> Relia
     if total > 0 and math.isfinite(result.mean_direction):
         share = float(energy[resolved[1 : energy.size + 1]].sum()) / total
         if share < _MIN_DIRECTION_SHARE:
-            shown = f"{share:.0%}" if share >= 0.01 else "under 1 %"
-            why = f"from the {shown} of the energy in waves short enough for the {clip} to time"
+            shown = f"the {share:.0%}" if share >= 0.01 else "under 1 %"
+            why = f"from {shown} of the energy in waves short enough for the {clip} to time"
             unreliable["towards_deg"] = f"the direction of travel comes {why}"
             unreliable["directional_spread_deg"] = f"the directional spread comes {why}"
 

@@ -351,6 +351,7 @@ def write_flipbook(preset, frames, *, out: str | Path | None = None) -> Path:
     light = np.concatenate([(normal.astype(np.float64) @ sun_vector).ravel() for normal, _ in views])
     stretch = tuple(np.percentile(light, _CONTRAST_PERCENTILES))
     enlarge = max(1, math.ceil(_FLIPBOOK_MIN_PIXELS / texels))
+    enlarge += (texels * enlarge) % 2  # even sides: H.264's 4:2:0 colour needs them
     pictures = []
     for normal, foam in views:
         picture = shade_top(normal, foam, sun_azimuth=sun, stretch=stretch)[::-1]  # y up, as in the preview
