@@ -47,16 +47,18 @@ def test_pond_preview_reads_in_small_units_with_period_and_wavelength_axes():
     assert height and height[0].get_ylabel() == "height (mm)"
 
 
-def test_large_tile_top_view_shows_a_window_of_a_few_peak_wavelengths():
-    """storm_force_ten: a 768 m tile, 241 m peak wavelength: the top view shows 2.5 of them."""
+def test_large_tile_top_view_shows_a_window_of_a_few_mean_wavelengths():
+    """storm_force_ten: a 768 m tile; the top view shows four wavelengths of the mean period
+    Tm02 (9.7 s, 146 m in deep water, L = gT²/2π), where the look of the surface is set."""
     preset = load_preset("storm_force_ten", overrides=SMALL)
     figure = preview_figure(preset)
     top = next(axes for name, axes in _panels(figure).items() if name.startswith("top view"))
     assert "corner of the tile" in top.get_title()
-    peak = preset.sea_state().statistics().peak_wavelength
+    tm02 = preset.sea_state().statistics().tm02
+    mean_wavelength = 9.80665 * tm02**2 / (2 * math.pi)  # deep water
     shown = top.get_images()[0].get_extent()[1]  # metres across
     texel = preset.tile.size_m / preset.tile.resolution
-    assert shown == pytest.approx(2.5 * peak, abs=texel)
+    assert shown == pytest.approx(4.0 * mean_wavelength, abs=texel)
 
 
 def test_flipbook_gif_moves_at_the_preset_rate(tmp_path, capsys):

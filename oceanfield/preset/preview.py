@@ -3,7 +3,7 @@
 Knows nothing of render jobs or map files.
 
 One picture of one frame, six panels: a top view of the surface shaded from its normals
-(of a window a few peak wavelengths wide, so that a large tile still reads as waves, not
+(of a window four mean wavelengths wide, so that a large tile still reads as waves, not
 as noise); the height map; the foam map; the frequency spectrum of each component and the
 total against period (s) with wavelength (m) above, the band the tile carries marked; the
 directional distribution of the energy; and the sea's figures. Lengths are written in the
@@ -32,7 +32,9 @@ _SUN_DIRECTION = np.array([0.0, 0.94, 0.34])  # low sun ahead of the viewer: gli
 _VIEW_DIRECTION = np.array([0.0, -0.87, 0.50])  # a camera 30° above the horizon looking toward +y
 _WATER_REFLECTANCE = 0.02  # Fresnel reflectance of water at normal incidence, (n−1)²/(n+1)², n = 1.33
 _SUN_ELEVATION_DEG = 25.0  # the top view's low sun (demo look): slopes facing it light up
-_WINDOW_PEAK_WAVELENGTHS = 2.5  # the top view shows at most this many peak wavelengths across
+#: The top view shows at most this many mean wavelengths (of the mean period Tm02) across:
+#: the waves that set the look of the surface, the short wind sea over a long swell too.
+_WINDOW_WAVELENGTHS = 4.0
 _CONTRAST_PERCENTILES = (1.0, 99.0)  # the top view's shading stretched between these
 _FLIPBOOK_MIN_PIXELS = 384  # a flipbook's frames are enlarged (whole texels) to at least this
 _VIDEO_SUFFIXES = (".gif", ".mp4")
@@ -110,12 +112,13 @@ def _unit_for(metres: float) -> tuple[str, float]:
     return unit, {"km": 1e-3, "m": 1.0, "cm": 100.0, "mm": 1000.0}[unit]
 
 
-def _window(preset, peak_wavelength: float) -> tuple[int, float]:
-    """(texels, metres) across the top view: the tile, or a few peak wavelengths of it."""
+def _window(preset, sea) -> tuple[int, float]:
+    """(texels, metres) across the top view: the tile, or a few mean wavelengths of it."""
     size, n = preset.tile.size_m, preset.tile.resolution
+    mean_wavelength = 2.0 * math.pi / float(sea.wavenumber(2.0 * math.pi / sea.statistics().tm02))
     texels = n
-    if size > _WINDOW_PEAK_WAVELENGTHS * peak_wavelength:
-        texels = max(16, int(round(_WINDOW_PEAK_WAVELENGTHS * peak_wavelength / size * n)))
+    if size > _WINDOW_WAVELENGTHS * mean_wavelength:
+        texels = max(16, int(round(_WINDOW_WAVELENGTHS * mean_wavelength / size * n)))
     return texels, texels * size / n
 
 
@@ -187,7 +190,7 @@ def preview_figure(preset, *, frame: int | None = None):
         fontsize=10,
     )
 
-    texels, across = _window(preset, stats.peak_wavelength)
+    texels, across = _window(preset, sea)
     top_axes = figure.add_subplot(2, 3, 1)
     picture = shade_top(fields.normal[:texels, :texels], fields.foam[:texels, :texels],
                         sun_azimuth=stats.mean_direction + math.pi)
@@ -338,7 +341,7 @@ def write_flipbook(preset, frames, *, out: str | Path | None = None) -> Path:
 
     ocean = Ocean.from_preset(preset, velocity=False)
     stats = ocean.sea_state.statistics()
-    texels, _ = _window(preset, stats.peak_wavelength)
+    texels, _ = _window(preset, ocean.sea_state)
     buffer = ocean.new_buffer()
     sun = stats.mean_direction + math.pi
     views = []
