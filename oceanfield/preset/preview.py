@@ -312,7 +312,8 @@ def write_flipbook(preset, frames, *, out: str | Path | None = None) -> Path:
     """Write the top view of ``frames`` as an animated GIF or MP4 (by ``out``'s suffix).
 
     Each picture is `shade_top` of the same window as the preview's top view, with one
-    contrast stretch for the whole clip (so brightness does not flicker), enlarged by a
+    contrast stretch for the whole clip (from its first, middle and last frames, so
+    brightness does not flicker), enlarged by a
     whole number of pixels per texel to at least ``_FLIPBOOK_MIN_PIXELS``, played at the
     preset's frame rate (a GIF stores delays in hundredths of a second: 24 fps plays at
     25). MP4 needs the ``video`` extra (imageio-ffmpeg). Written atomically.
@@ -344,22 +345,27 @@ def write_flipbook(preset, frames, *, out: str | Path | None = None) -> Path:
     texels, _ = _window(preset, ocean.sea_state)
     buffer = ocean.new_buffer()
     sun = stats.mean_direction + math.pi
-    views = []
-    for frame in frames:
-        fields = ocean.frame(preset.time.frame_time(frame), buffer=buffer)
-        views.append((np.array(fields.normal[:texels, :texels]), np.array(fields.foam[:texels, :texels])))
     elevation = math.radians(_SUN_ELEVATION_DEG)
     sun_vector = np.array([math.cos(elevation) * math.cos(sun), math.cos(elevation) * math.sin(sun),
                            math.sin(elevation)])
-    light = np.concatenate([(normal.astype(np.float64) @ sun_vector).ravel() for normal, _ in views])
+
+    def lit(frame: int):
+        fields = ocean.frame(preset.time.frame_time(frame), buffer=buffer)
+        return fields.normal[:texels, :texels], fields.foam[:texels, :texels]
+
+    # One stretch for the clip, from its first, middle and last frames: no flicker, and no
+    # need to hold every frame's normals.
+    samples = sorted({frames[0], frames[len(frames) // 2], frames[-1]})
+    light = np.concatenate([(lit(f)[0].astype(np.float64) @ sun_vector).ravel() for f in samples])
     stretch = tuple(np.percentile(light, _CONTRAST_PERCENTILES))
     enlarge = max(1, math.ceil(_FLIPBOOK_MIN_PIXELS / texels))
     enlarge += (texels * enlarge) % 2  # even sides: H.264's 4:2:0 colour needs them
     pictures = []
-    for normal, foam in views:
+    for frame in frames:
+        normal, foam = lit(frame)
         picture = shade_top(normal, foam, sun_azimuth=sun, stretch=stretch)[::-1]  # y up, as in the preview
-        picture = np.repeat(np.repeat(picture, enlarge, axis=0), enlarge, axis=1)
-        pictures.append(np.round(picture * 255.0).astype(np.uint8))
+        picture = np.round(picture * 255.0).astype(np.uint8)
+        pictures.append(np.repeat(np.repeat(picture, enlarge, axis=0), enlarge, axis=1))
     with atomic_output(path) as temporary:
         iio.imwrite(temporary, np.stack(pictures), extension=path.suffix.lower(), **options)
     return path
