@@ -360,6 +360,12 @@ class SeaState:
         edges = np.linspace(math.log(lo), math.log(hi), _MOMENT_PANELS + 1)
         if lo < wp < hi:
             edges = np.unique(np.append(edges, math.log(wp)))
+        # A measured record's S(ω) has kinks and steps at its frequencies and band edges:
+        # panel edges there keep every panel smooth.
+        breaks = getattr(self.components[index], "frequency_breaks", ())
+        breaks = np.asarray([b for b in breaks if lo < b < hi], dtype=np.float64)
+        if breaks.size:
+            edges = np.unique(np.concatenate((edges, np.log(breaks))))
         mid = 0.5 * (edges[1:] + edges[:-1])
         half = 0.5 * (edges[1:] - edges[:-1])
         u = (mid[:, None] + half[:, None] * _GAUSS_NODES[None, :]).ravel()
@@ -401,6 +407,9 @@ class SeaState:
         # Midpoint nodes, symmetric about the mean and never on the ±90° cut of
         # suppress_opposing (a node there falls on either side by rounding, tilting the mean).
         omega = np.geomspace(0.2 * wp, 20.0 * wp, 800)
+        breaks = getattr(component, "frequency_breaks", ())
+        if len(breaks):  # a measured record: its whole range, wherever its peak lies
+            omega = np.geomspace(min(0.2 * wp, breaks[0]), max(20.0 * wp, breaks[-1]), 2000)
         theta = np.linspace(-np.pi, np.pi, 2049)[:-1] + np.pi / 2048 + component.direction
         density = self.component_spectrum(index, omega)
         d = component.directional_density(theta[None, :], omega[:, None], self.gravity)

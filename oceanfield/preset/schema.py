@@ -52,6 +52,7 @@ from ..surface.maps import MAPS, UP_AXES
 from ..physics.seastate import Component, SeaState, beaufort_sea, height_period, wind_sea
 from ..physics.spectra import JONSWAP_GAMMA, SPECTRA
 from ..physics.spreading import SPREADING
+from .record import RecordSettings, read_record, record_component
 
 __all__ = [
     "PresetError",
@@ -126,6 +127,7 @@ class ComponentSettings:
     spread_deg: float | None
     suppress_opposing: bool
     small_wave_cutoff_m: float
+    record: RecordSettings | None = None  # a measured record sizes the component instead
 
 
 @dataclass(frozen=True)
@@ -206,10 +208,12 @@ class OutputSettings:
 
 @dataclass(frozen=True)
 class SceneSettings:
-    """How the maps meet the 3D package: metres per scene unit and the up axis."""
+    """How the maps meet the 3D package: metres per scene unit and the up axis; where
+    north lies on the tile (degrees counter-clockwise from +x) for measured records."""
 
     metres_per_unit: float
     up_axis: str
+    north_deg: float = 90.0
 
 
 @dataclass(frozen=True)
@@ -426,6 +430,9 @@ def preset_hash(preset: Preset) -> str:
     """
     tree = _as_tree(preset)
     del tree["description"]
+    for component in tree["sea"]["components"]:  # a record counts by its contents, not its path
+        if component.get("record"):
+            del component["record"]["file"]
     canonical = json.dumps(tree, sort_keys=True, separators=(",", ":"), allow_nan=False)
     return hashlib.sha256(canonical.encode("utf-8")).hexdigest()
 
@@ -441,15 +448,17 @@ def to_sea_state(preset: Preset) -> SeaState:
         If the physics refuses the sea; :func:`load_preset` has already built every
         component once, so only a hand-made :class:`Preset` can meet this.
     """
-    sea = preset.sea
+    sea, north = preset.sea, preset.scene.north_deg
     try:
-        return SeaState(tuple(_component(sea, item) for item in sea.components), **_fluid(sea))
+        return SeaState(tuple(_component(sea, item, north) for item in sea.components), **_fluid(sea))
     except ValueError as error:
         raise PresetError([f"sea: {error}"]) from None
 
 
-def _component(sea: SeaSettings, item: ComponentSettings) -> Component:
+def _component(sea: SeaSettings, item: ComponentSettings, north_deg: float = 90.0) -> Component:
     """One component in SI units and radians, from the constructor its sizing calls for."""
+    if item.record is not None:
+        return record_component(item.record, north_deg=north_deg, label=item.label)
     options: dict[str, Any] = dict(
         spectrum=item.spectrum,
         depth=sea.depth_m,
@@ -540,7 +549,7 @@ def _build_preset(tree: Node, errors: list[str], path: Path, allow_outside_outpu
     scene = _read_scene(top.section("scene"))
     context.report_unknown_keys()
     if not errors:
-        _check_physics(sea, component_sections)
+        _check_physics(sea, component_sections, scene.north_deg)
     if errors:
         return None
     return Preset(
@@ -548,9 +557,15 @@ def _build_preset(tree: Node, errors: list[str], path: Path, allow_outside_outpu
     )
 
 
-def _check_physics(sea: SeaSettings, sections: list[Section]) -> None:
+def _check_physics(sea: SeaSettings, sections: list[Section], north_deg: float) -> None:
     """Build each component as :func:`to_sea_state` will; report what fails where it was written."""
     for item, sec in zip(sea.components, sections):
+        if item.record is not None:
+            try:
+                _component(sea, item, north_deg)
+            except ValueError as error:
+                sec.fail("record", str(error))
+            continue
         try:
             if item.small_wave_cutoff_m > 0:
                 uncut = _component(sea, replace(item, small_wave_cutoff_m=0.0))
@@ -609,6 +624,9 @@ def _default_component() -> ComponentSettings:
 
 
 def _read_component(sec: Section, depth: float) -> ComponentSettings:
+    record = sec.node("record")
+    if record is not None and record.value is not None:
+        return _read_record_component(sec)
     label = sec.text("label", "")
     spectrum = sec.choice("spectrum", "jonswap", SPECTRA)
     wind = sec.number("wind_speed_mps", None, low=0.1, high=75.0, optional=True)
@@ -683,6 +701,20 @@ def _read_component(sec: Section, depth: float) -> ComponentSettings:
     return ComponentSettings(
         label, spectrum, wind, fetch, hs, tp, force, gamma, towards, spreading, spread, suppress, cutoff
     )
+
+
+def _read_record_component(sec: Section) -> Any:
+    """A component sized by a measured record: a label and the record, nothing else."""
+    label = sec.text("label", "record")
+    record = read_record(sec.section("record"))
+    for key in list(sec.items):
+        if key not in sec.asked:
+            sec.asked.append(key)
+            sec.fail(key, "does not apply to a component sized by a record (it takes label and record only)")
+    if not valid(label, record):
+        return BAD
+    return ComponentSettings(label, "record", None, None, None, None, None, None, 0.0, "record", None, False, 0.0,
+                             record)
 
 
 def _read_tile(sec: Section) -> TileSettings:
@@ -805,7 +837,8 @@ def _check_template(sec: Section, key: str, template: str, *, frame_run: bool, a
 def _read_scene(sec: Section) -> SceneSettings:
     metres = sec.number("metres_per_unit", 1.0, low=1.0e-6, high=1.0e6)
     up_axis = sec.choice("up_axis", "y", UP_AXES)
-    return SceneSettings(metres, up_axis)
+    north = sec.number("north_deg", 90.0, low=-360, high=360)
+    return SceneSettings(metres, up_axis, north)
 
 
 # -- writing -------------------------------------------------------------------------------
@@ -824,4 +857,8 @@ def _as_tree(preset: Preset) -> dict[str, Any]:
     tree = plain(preset)
     tree["sea"]["depth_m"] = "deep" if preset.sea.depth_m == math.inf else preset.sea.depth_m
     tree["output"]["precision_per_map"] = dict(preset.output.precision_per_map)
+    tree["sea"]["components"] = [
+        {"label": item["label"], "record": item["record"]} if item["record"] else item
+        for item in tree["sea"]["components"]
+    ]
     return tree
