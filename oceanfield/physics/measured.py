@@ -361,7 +361,8 @@ def _check_spectrum(frequency: ArrayLike, density: ArrayLike, tail: str) -> tupl
     return f, e
 
 
-def _check_coefficients(a1, b1, a2, b2) -> tuple[NDArray, ...]:
+def _check_coefficients(a1, b1, a2, b2, *, realisable: bool) -> tuple[NDArray, ...]:
+    """Checked coefficient arrays; ``realisable`` also asks that some distribution has all four."""
     arrays = [None if c is None else np.asarray(c, dtype=np.float64).ravel() for c in (a1, b1, a2, b2)]
     for name, values in zip(("a1", "b1", "a2", "b2"), arrays):
         if values is None:
@@ -386,6 +387,7 @@ def _check_coefficients(a1, b1, a2, b2) -> tuple[NDArray, ...]:
                 f"r2 = √(a2² + b2²) = {r2[i]:.4g} is above 1 (a2 {arrays[2][i]:g}, b2 {arrays[3][i]:g})",
                 index=i, column="a2",
             )
+    if arrays[2] is not None and realisable:
         # A distribution with these four moments exists only if the second reflection
         # coefficient φ2 = (c2 − c1²)/(1 − |c1|²) has |φ2| ≤ 1 (derived from Lygre &
         # Krogstad 1986 eq. 12; otherwise D of eq. 13 turns negative).
@@ -453,13 +455,13 @@ def measured_from_moments(
     f, e = _check_spectrum(frequency, density, tail)
     if method not in ("maximum_entropy", "cos2s"):
         raise ValueError(f"method: {method!r} is not allowed; allowed: maximum_entropy, cos2s")
+    if (a2 is None) != (b2 is None):
+        raise RecordError("a2 and b2 come together: give both or neither", column="a2" if a2 is None else "b2")
     if method == "maximum_entropy" and (a2 is None or b2 is None):
         raise RecordError("the maximum entropy method needs a2 and b2 as well as a1 and b1", column="a2")
     if frame not in DIRECTION_FRAMES:
         raise ValueError(f"frame: {frame!r} is not allowed; allowed: {', '.join(DIRECTION_FRAMES)}")
-    if method == "cos2s":
-        a2 = b2 = None
-    ca1, cb1, ca2, cb2 = _check_coefficients(a1, b1, a2, b2)
+    ca1, cb1, ca2, cb2 = _check_coefficients(a1, b1, a2, b2, realisable=method == "maximum_entropy")
     for name, values in (("a1", ca1), ("b1", cb1), ("a2", ca2), ("b2", cb2)):
         if values is not None and values.size != f.size:
             raise RecordError(f"{name} has {values.size} values for {f.size} frequencies", column=name)
