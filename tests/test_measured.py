@@ -85,6 +85,21 @@ def test_mem_finds_both_peaks_of_a_bimodal_sea():
     assert len(_peaks(cos2s_from_moments(_THETA, a1, b1))) == 1
 
 
+@pytest.mark.parametrize("s", [5.0, 10.0, 20.0])
+def test_mem_splits_a_cos2s_peak_where_its_denominator_is_least(s):
+    """MEM of a cos-2s's moments (real c1, c2: mean 0) has φ1 > 0 > φ2 and its denominator
+    |1 − φ1e^{−iθ} − φ2e^{−2iθ}|² = const − 2φ1(1 − φ2) cos θ − 2φ2 cos 2θ is least at
+    cos θ* = −φ1(1 − φ2)/(4φ2) (derived): two peaks at ±θ*, the peak-splitting Simanesew
+    et al. (2018) describe. The table's maxima sit there."""
+    r1, r2 = s / (s + 1.0), s * (s - 1.0) / ((s + 1.0) * (s + 2.0))
+    phi1 = r1 * (1.0 - r2) / (1.0 - r1**2)
+    phi2 = r2 - r1 * phi1
+    expected = math.degrees(math.acos(-phi1 * (1.0 - phi2) / (4.0 * phi2)))
+    d = maximum_entropy(_THETA, r1, 0.0, r2, 0.0)
+    found = sorted(math.degrees(_THETA[i]) for i in _peaks(d))
+    assert found == pytest.approx([-expected, expected], abs=math.degrees(_STEP))
+
+
 def test_cos2s_fit_keeps_the_first_order_moments():
     """cos-2s with s = r1/(1 − r1) has r1 = s/(s+1) (Longuet-Higgins et al. 1963)."""
     a1, b1 = 0.6, -0.3

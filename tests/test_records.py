@@ -274,6 +274,8 @@ def test_a_netcdf_with_several_times_needs_one(tmp_path, capsys):
     earlier = load_preset(_preset(tmp_path, "series.nc", extra="        time: '2026-03-14T09:00'\n"))
     ratio = to_sea_state(later).statistics().hs / to_sea_state(earlier).statistics().hs
     assert ratio == pytest.approx(math.sqrt(2.0), rel=1e-6)
+    unquoted = load_preset(_preset(tmp_path, "series.nc", extra="        time: 2026-03-14T10:00:00Z\n"))
+    assert to_sea_state(unquoted).statistics().hs == pytest.approx(to_sea_state(later).statistics().hs)
     assert main(["stats", str(_preset(tmp_path, "series.nc", extra="        time: '2026-03-15T00:00'\n"))]) == 2
     assert "no spectrum at 2026-03-15T00:00" in capsys.readouterr().err
 

@@ -1,4 +1,4 @@
-"""Writers and readers: OpenEXR and 16-bit PNG maps, written atomically.
+"""Writers and readers: OpenEXR and 16-bit PNG maps, written atomically; wave records read.
 
 Used from above (``preset``, ``render``, ``analysis``, the command line). It knows
 nothing of physics, synthesis or presets and imports none of them: the writers take named channel
@@ -18,19 +18,23 @@ from oceanfield.io.exr import (
     write_exr,
 )
 from oceanfield.io.png import read_png16, sidecar_path, write_png16
+from oceanfield.io.records import MissingExtraError, read_frequency_direction, read_table
 
 __all__ = [
     "COMPRESSIONS",
     "LOSSLESS_COMPRESSIONS",
     "PRECISIONS",
     "CorruptFileError",
+    "MissingExtraError",
     "OutputError",
     "atomic_output",
     "exr_is_complete",
     "is_temporary",
     "read_exr",
     "read_exr_attributes",
+    "read_frequency_direction",
     "read_png16",
+    "read_table",
     "remove_stale_temporaries",
     "sidecar_path",
     "to_pixels",

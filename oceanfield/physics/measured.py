@@ -37,7 +37,13 @@ directional spectrum of sea waves using the motions of a floating buoy. *Ocean W
 Spectra*, Prentice-Hall, 111–136.
 Lygre, A. & Krogstad, H. E. (1986). Maximum entropy estimation of the directional
 distribution in ocean wave spectra. *J. Phys. Oceanogr.* 16(12), 2052–2060, eqs 10–13
-(with both exponentials of eq. 13 negative, the published typo corrected as in Krogstad 1991).
+(both exponentials of eq. 13 negative: the printed signs are a typo, as buoy-processing
+code notes; the closed form confirmed against the documentation of Sofar Ocean's
+ocean-science-utilities, ``wavespectra.estimators.mem``).
+Simanesew, A. W., Krogstad, H. E., Trulsen, K. & Nieto Borge, J. C. (2018). Bimodality of
+directional distributions in ocean wave spectra. *J. Atmos. Oceanic Technol.* 35, 365–384
+(the maximum entropy methods split peaks: MEM of a cos-2s's moments has two peaks either
+side of the mean, at ±23° for s = 10; derived here and tested).
 Kuik, A. J., van Vledder, G. Ph. & Holthuijsen, L. H. (1988). A method for the routine
 analysis of pitch-and-roll buoy wave data. *J. Phys. Oceanogr.* 18, 1020–1034.
 """
@@ -122,8 +128,10 @@ def maximum_entropy(theta: ArrayLike, a1: ArrayLike, b1: ArrayLike, a2: ArrayLik
 
         D(θ) = (1 − φ1 c1* − φ2 c2*) / (2π |1 − φ1 e^{−iθ} − φ2 e^{−2iθ}|²)   (eq. 13),
 
-    both exponentials negative (the paper prints them positive; Krogstad 1991 corrects it).
-    D reproduces the four coefficients exactly and integrates to 1.
+    both exponentials negative (the paper prints them positive, a typo). D reproduces the
+    four coefficients exactly and integrates to 1. It is sharper than the sea it comes
+    from and may split a single peak in two (Simanesew et al. 2018): the moments of a cos-2s
+    with s = 10 give two peaks 23° either side of the mean.
 
     Parameters
     ----------

@@ -7,6 +7,7 @@ which makes its ``SeaState`` and ``Ocean``; this package also reports a preset i
 ==============  ==================================================================
 ``_yamltree``   located YAML: safe parse with file:line, ``extends``, ``--set`` overrides
 ``schema``      the settings, defaults, validation, dump and hash; ``load_preset``
+``record``      a component sized by a measured wave record (file, directions, tail)
 ``warnings``    physically doubtful choices in a valid preset, one sentence each
 ``stats``       the numbers behind ``oceanfield stats``; the folded share
 ``preview``     the preview picture (matplotlib)
@@ -15,10 +16,11 @@ which makes its ``SeaState`` and ``Ocean``; this package also reports a preset i
 
 from __future__ import annotations
 
-from . import schema as _schema, warnings as _warnings, stats as _stats, preview as _preview
+from . import schema as _schema, warnings as _warnings, stats as _stats, preview as _preview, record as _record
 from .schema import *  # noqa: F401,F403  (the names in schema.__all__)
+from .record import *  # noqa: F401,F403  (the names in record.__all__)
 from .warnings import *  # noqa: F401,F403  (the names in warnings.__all__)
 from .stats import *  # noqa: F401,F403  (the names in stats.__all__)
 from .preview import *  # noqa: F401,F403  (the names in preview.__all__)
 
-__all__ = [*_schema.__all__, *_warnings.__all__, *_stats.__all__, *_preview.__all__]
+__all__ = [*_schema.__all__, *_record.__all__, *_warnings.__all__, *_stats.__all__, *_preview.__all__]

@@ -22,6 +22,7 @@ direction sets ``a1, b1, a2, b2`` (``a1, b1`` suffice for ``spreading: cos2s``) 
 
 from __future__ import annotations
 
+import datetime
 import hashlib
 import math
 from dataclasses import dataclass
@@ -104,7 +105,7 @@ def read_record(sec: Section) -> Any:
     directions = sec.choice("directions", "coming_from", DIRECTION_FRAMES)
     spreading = sec.choice("spreading", "cos2s", RECORD_SPREADING)
     tail = sec.choice("tail", "none", TAILS)
-    time = sec.text("time", "") or None
+    time = _time_text(sec)
     pinned = sec.text("sha256", "") or None
     if node is None or node.value is None:
         return sec.fail("file", "needs the record's file (a .csv table or a .nc netCDF spectrum)")
@@ -134,6 +135,18 @@ def read_record(sec: Section) -> Any:
     if not valid(directions, spreading, tail, time):
         return BAD
     return RecordSettings(str(path), directions, spreading, tail, time, digest)
+
+
+def _time_text(sec: Section) -> Any:
+    """The record's ``time`` as ISO 8601 text: YAML reads an unquoted date and time as a timestamp."""
+    node = sec.items.get("time")
+    if node is not None and isinstance(node.value, (datetime.date, datetime.datetime)):
+        sec.asked.append("time")
+        value = node.value
+        if isinstance(value, datetime.datetime) and value.tzinfo is not None:
+            value = value.astimezone(datetime.timezone.utc).replace(tzinfo=None)
+        return value.isoformat()
+    return sec.text("time", "") or None
 
 
 def record_component(record: RecordSettings, *, north_deg: float, label: str) -> MeasuredComponent:
