@@ -338,18 +338,26 @@ def _band_widths(frequency: NDArray[np.float64]) -> NDArray[np.float64]:
 # -- building one from a record -----------------------------------------------------------
 
 
+def _finite(name: str, values: ArrayLike, size: int | None = None) -> NDArray[np.float64]:
+    """``values`` as a flat float array; RecordError at the first value that is not finite
+    or when there are not ``size`` of them."""
+    values = np.asarray(values, dtype=np.float64).ravel()
+    bad = np.flatnonzero(~np.isfinite(values))
+    if bad.size:
+        raise RecordError(f"{name} is {values[bad[0]]!r}; allowed: a finite number", index=int(bad[0]), column=name)
+    if size is not None and values.size != size:
+        raise RecordError(f"{name} has {values.size} values for {size} frequencies", column=name)
+    return values
+
+
 def _check_spectrum(frequency: ArrayLike, density: ArrayLike, tail: str) -> tuple[NDArray, NDArray]:
     """Checked float arrays of a record's frequencies and densities."""
     if tail not in TAILS:
         raise ValueError(f"tail: {tail!r} is not allowed; allowed: {', '.join(TAILS)}")
-    f = np.asarray(frequency, dtype=np.float64).ravel()
-    e = np.asarray(density, dtype=np.float64).ravel()
+    f = _finite("frequency", frequency)
+    e = _finite("density", density, f.size)
     if f.size < 2:
         raise RecordError(f"holds {f.size} frequencies; a spectrum needs at least 2")
-    for name, values in (("frequency", f), ("density", e)):
-        bad = np.flatnonzero(~np.isfinite(values))
-        if bad.size:
-            raise RecordError(f"{name} is {values[bad[0]]!r}; allowed: a finite number", index=int(bad[0]), column=name)
     if f[0] <= 0:
         raise RecordError(f"frequency {f[0]:g} Hz is not above 0", index=0, column="frequency")
     steps = np.flatnonzero(np.diff(f) <= 0)
@@ -369,15 +377,9 @@ def _check_spectrum(frequency: ArrayLike, density: ArrayLike, tail: str) -> tupl
     return f, e
 
 
-def _check_coefficients(a1, b1, a2, b2, *, realisable: bool) -> tuple[NDArray, ...]:
+def _check_coefficients(a1, b1, a2, b2, *, size: int, realisable: bool) -> tuple[NDArray, ...]:
     """Checked coefficient arrays; ``realisable`` also asks that some distribution has all four."""
-    arrays = [None if c is None else np.asarray(c, dtype=np.float64).ravel() for c in (a1, b1, a2, b2)]
-    for name, values in zip(("a1", "b1", "a2", "b2"), arrays):
-        if values is None:
-            continue
-        bad = np.flatnonzero(~np.isfinite(values))
-        if bad.size:
-            raise RecordError(f"{name} is {values[bad[0]]!r}; allowed: a finite number", index=int(bad[0]), column=name)
+    arrays = [None if c is None else _finite(name, c, size) for name, c in zip(("a1", "b1", "a2", "b2"), (a1, b1, a2, b2))]
     r1 = np.hypot(arrays[0], arrays[1])
     over = np.flatnonzero(r1 >= 1.0)
     if over.size:
@@ -469,10 +471,7 @@ def measured_from_moments(
         raise RecordError("the maximum entropy method needs a2 and b2 as well as a1 and b1", column="a2")
     if frame not in DIRECTION_FRAMES:
         raise ValueError(f"frame: {frame!r} is not allowed; allowed: {', '.join(DIRECTION_FRAMES)}")
-    ca1, cb1, ca2, cb2 = _check_coefficients(a1, b1, a2, b2, realisable=method == "maximum_entropy")
-    for name, values in (("a1", ca1), ("b1", cb1), ("a2", ca2), ("b2", cb2)):
-        if values is not None and values.size != f.size:
-            raise RecordError(f"{name} has {values.size} values for {f.size} frequencies", column=name)
+    ca1, cb1, ca2, cb2 = _check_coefficients(a1, b1, a2, b2, size=f.size, realisable=method == "maximum_entropy")
     alpha = _compass_grid()
     if method == "maximum_entropy":
         rows = maximum_entropy(alpha[None, :], ca1[:, None], cb1[:, None], ca2[:, None], cb2[:, None])
@@ -500,14 +499,8 @@ def measured_from_mean_spread(
     s = 2/σ² − 1.
     """
     f, e = _check_spectrum(frequency, density, tail)
-    d = np.asarray(direction, dtype=np.float64).ravel()
-    sigma = np.asarray(spread, dtype=np.float64).ravel()
-    for name, values in (("direction", d), ("spread", sigma)):
-        bad = np.flatnonzero(~np.isfinite(values))
-        if bad.size:
-            raise RecordError(f"{name} is {values[bad[0]]!r}; allowed: a finite number", index=int(bad[0]), column=name)
-        if values.size != f.size:
-            raise RecordError(f"{name} has {values.size} values for {f.size} frequencies", column=name)
+    d = _finite("direction", direction, f.size)
+    sigma = _finite("spread", spread, f.size)
     out = np.flatnonzero(~((sigma > 0) & (sigma < math.sqrt(2.0))))
     if out.size:
         i = int(out[0])
