@@ -203,6 +203,22 @@ def test_dump_round_trip_and_hash_follow_the_contents_not_the_path(tmp_path):
         load_preset(dumped)
 
 
+def test_a_table_without_directions_takes_the_presets(tmp_path):
+    """A heave-only record: E(f) from the table, one direction and spread from the preset
+    (from 200°, spread 20°; north +y → towards 20° clockwise from north = 70° from +x)."""
+    (tmp_path / "heave.csv").write_text(
+        "frequency_hz,density_m2_per_hz\n0.08,0.2\n0.09,1.0\n0.10,0.6\n0.11,0.2\n", encoding="utf-8"
+    )
+    path = _preset(tmp_path, "heave.csv", extra="        direction_deg: 200\n        spread_deg: 20\n")
+    stats = to_sea_state(load_preset(path)).statistics()
+    assert stats.hs == pytest.approx(4.0 * math.sqrt(2.0 * 0.01), rel=1e-9)  # Σ E Δf, Δf = 0.01 Hz
+    assert _angle_deg(math.degrees(stats.mean_direction), 70.0) <= 0.1
+    assert math.degrees(stats.directional_spread) == pytest.approx(20.0, abs=0.1)
+    half = _preset(tmp_path, "heave.csv", extra="        direction_deg: 200\n")
+    with pytest.raises(PresetError, match="spread_deg: needs a value"):
+        load_preset(half)
+
+
 def test_record_component_takes_only_label_and_record(tmp_path):
     shutil.copy(Path(load_preset("headland_buoy_record").sea.components[0].record.file), tmp_path / "r.csv")
     path = _preset(tmp_path, "r.csv", extra="      wind_speed_mps: 10\n")

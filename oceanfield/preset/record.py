@@ -13,11 +13,15 @@ A record component is written in a preset as::
         spreading: cos2s             # a1..b2 tables: cos2s | maximum_entropy
         tail: none                   # none | f-4 | f-5
         time: null                   # netCDF with several times: which one (ISO 8601)
+        direction_deg: null          # a table without directions: its one mean direction
+        spread_deg: null             #   and cos-2s spread, for every frequency
         sha256: null                 # optional pin: the file must have this digest
 
 CSV tables hold the columns ``frequency_hz`` and ``density_m2_per_hz`` and one of the
 direction sets ``a1, b1, a2, b2`` (``a1, b1`` suffice for ``spreading: cos2s``) or
-``direction_deg, spread_deg``. netCDF files hold wavespectra's ``efth(freq, dir)``.
+``direction_deg, spread_deg``; a table without directions (a heave-only buoy) takes one
+``direction_deg`` and ``spread_deg`` from the preset. netCDF files hold wavespectra's
+``efth(freq, dir)``.
 """
 
 from __future__ import annotations
@@ -77,6 +81,8 @@ class RecordSettings:
     spreading: str
     tail: str
     time: str | None
+    direction_deg: float | None
+    spread_deg: float | None
     sha256: str
 
 
@@ -106,6 +112,8 @@ def read_record(sec: Section) -> Any:
     spreading = sec.choice("spreading", "cos2s", RECORD_SPREADING)
     tail = sec.choice("tail", "none", TAILS)
     time = _time_text(sec)
+    direction = sec.number("direction_deg", None, low=-360, high=360, optional=True)
+    spread = sec.number("spread_deg", None, low=1, high=80, optional=True)
     pinned = sec.text("sha256", "") or None
     if node is None or node.value is None:
         return sec.fail("file", "needs the record's file (a .csv table or a .nc netCDF spectrum)")
@@ -132,9 +140,14 @@ def read_record(sec: Section) -> Any:
         )
     if time is not None and path.suffix.lower() in TABLE_SUFFIXES:
         return sec.fail("time", "applies to netCDF records only; a table holds one spectrum (set time: null)")
-    if not valid(directions, spreading, tail, time):
+    if (direction is None) != (spread is None):
+        missing = "spread_deg" if spread is None else "direction_deg"
+        return sec.fail(missing, "needs a value: direction_deg and spread_deg give a record without directions its own")
+    if direction is not None and path.suffix.lower() in NETCDF_SUFFIXES:
+        return sec.fail("direction_deg", "a frequency–direction spectrum has its own directions (set it null)")
+    if not valid(directions, spreading, tail, time, direction, spread):
         return BAD
-    return RecordSettings(str(path), directions, spreading, tail, time, digest)
+    return RecordSettings(str(path), directions, spreading, tail, time, direction, spread, digest)
 
 
 def _time_text(sec: Section) -> Any:
@@ -185,15 +198,27 @@ def _from_table(path: Path, record: RecordSettings, options: dict) -> MeasuredCo
         )
     has_moments = all(name in columns for name in COEFFICIENT_COLUMNS[:2])
     has_mean_spread = all(name in columns for name in MEAN_SPREAD_COLUMNS)
-    if not has_moments and not has_mean_spread:
+    given = record.direction_deg is not None
+    if not (has_moments or has_mean_spread or given):
         raise ValueError(
             f"{table.where(None)}: no directions: add the columns a1, b1, a2, b2 (directional Fourier "
-            f"coefficients) or direction_deg, spread_deg"
+            f"coefficients) or direction_deg, spread_deg, or give the record a direction_deg and spread_deg"
         )
     if has_moments and has_mean_spread:
         raise ValueError(f"{table.where(None)}: directions are given twice (a1, b1 and direction_deg); keep one set")
+    if given and (has_moments or has_mean_spread):
+        raise ValueError(
+            f"{table.where(None)}: the table has its own directions; set the record's direction_deg and "
+            f"spread_deg to null"
+        )
     frequency, density = columns[FREQUENCY_COLUMN], columns[DENSITY_COLUMN]
     try:
+        if given:
+            ones = np.ones(frequency.size)
+            return measured_from_mean_spread(
+                frequency, density, math.radians(record.direction_deg) * ones,
+                math.radians(record.spread_deg) * ones, **options,
+            )
         if has_mean_spread:
             return measured_from_mean_spread(
                 frequency, density, np.radians(columns["direction_deg"]), np.radians(columns["spread_deg"]), **options
