@@ -13,6 +13,8 @@ import math
 
 import numpy as np
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from oceanfield.physics.measured import (
     RecordError,
@@ -144,6 +146,29 @@ def test_record_variance_is_conserved_and_no_energy_outside_the_bands():
     assert sea.moment(0, 2 * math.pi * high * 1.001) == 0.0
 
 
+@settings(max_examples=25, deadline=None)
+@given(
+    steps=st.lists(st.floats(0.002, 0.05), min_size=1, max_size=30),
+    start=st.floats(0.026, 0.2),  # a first step below 2 f0: the first band stays above 0 Hz
+    seed=st.integers(0, 2**32 - 1),
+    depth=st.sampled_from([math.inf, 5.0, 40.0]),
+)
+def test_any_record_keeps_its_variance_and_its_distributions_integrate_to_one(steps, start, seed, depth):
+    """Invariants for any rising grid and any non-negative densities: m0 = Σ E_i Δf_i
+    (centred bands) at any depth (the record's spectrum is the measured one), and D
+    integrates to 1 at every frequency."""
+    rng = np.random.default_rng(seed)
+    f = start + np.concatenate(([0.0], np.cumsum(steps)))
+    e = rng.random(f.size) ** 2
+    e[rng.integers(f.size)] += 0.1  # some energy
+    a1, b1 = (rng.random(f.size) - 0.5) * 1.2, (rng.random(f.size) - 0.5) * 0.4
+    component = measured_from_moments(f, e, a1, b1, method="cos2s")
+    sea = SeaState((component,), depth=depth)
+    assert sea.moment(0) == pytest.approx(float(np.sum(e * np.gradient(f))), rel=1e-9)
+    d = component.directional_density(_THETA[None, :], 2 * math.pi * f[:, None])
+    assert np.sum(d, axis=1) * _STEP == pytest.approx(np.ones(f.size), abs=1e-9)
+
+
 @pytest.mark.parametrize("tail, power", [("f-4", 4), ("f-5", 5)])
 def test_tail_adds_the_integral_of_its_power_law(tail, power):
     """∫_{fe}^∞ E_N (f/fe)^−n df = E_N fe/(n − 1) (derived)."""
@@ -194,6 +219,7 @@ def test_mean_directions_per_frequency_follow_the_record():
         ([0.1, 0.2, 0.3], [1, math.nan, 1], 1, "finite"),
         ([0.1, math.nan, 0.3], [1, 1, 1], 1, "finite"),
         ([0.0, 0.2, 0.3], [1, 1, 1], 0, "not above 0"),
+        ([0.1, 0.35, 0.4], [1, 1, 1], 1, "would reach 0 Hz"),
     ],
 )
 def test_bad_spectra_name_the_row(frequency, density, index, text):

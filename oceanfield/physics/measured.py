@@ -368,6 +368,11 @@ def _check_spectrum(frequency: ArrayLike, density: ArrayLike, tail: str) -> tupl
             f"frequency {f[i]:g} Hz {what} the one before ({f[i - 1]:g} Hz); frequencies must rise",
             index=i, column="frequency",
         )
+    if f[1] >= 3.0 * f[0]:
+        raise RecordError(
+            f"the first band, centred on {f[0]:g} Hz and as wide as the step to {f[1]:g} Hz, would reach "
+            f"0 Hz; allowed: a second frequency below three times the first", index=1, column="frequency",
+        )
     negative = np.flatnonzero(e < 0)
     if negative.size:
         i = int(negative[0])

@@ -353,17 +353,17 @@ class SeaState:
         rule matches adaptive quadrature to better than 1e-9 (tested).
         """
         wp = self.components[index].peak_frequency
-        lo = max(omega_low, _MOMENT_LOW * wp)
+        # A measured record's S(ω) has kinks and steps at its frequencies and band edges:
+        # the range reaches its lowest edge, and panel edges there keep every panel smooth.
+        breaks = np.asarray(getattr(self.components[index], "frequency_breaks", ()), dtype=np.float64)
+        lo = max(omega_low, min((_MOMENT_LOW * wp, *breaks[:1])))
         hi = min(omega_high, _MOMENT_HIGH * wp)
         if not hi > lo:
             return 0.0
         edges = np.linspace(math.log(lo), math.log(hi), _MOMENT_PANELS + 1)
         if lo < wp < hi:
             edges = np.unique(np.append(edges, math.log(wp)))
-        # A measured record's S(ω) has kinks and steps at its frequencies and band edges:
-        # panel edges there keep every panel smooth.
-        breaks = getattr(self.components[index], "frequency_breaks", ())
-        breaks = np.asarray([b for b in breaks if lo < b < hi], dtype=np.float64)
+        breaks = breaks[(breaks > lo) & (breaks < hi)]
         if breaks.size:
             edges = np.unique(np.concatenate((edges, np.log(breaks))))
         mid = 0.5 * (edges[1:] + edges[:-1])
