@@ -378,3 +378,29 @@ def test_render_then_analyze_through_the_command_line(tmp_path, capsys):
     verdicts = [band["verdict"] for band in data["bands"]]
     assert set(verdicts) <= {"ok", "negligible", "not resolved"}, verdicts
     assert verdicts.count("ok") >= 3
+
+
+@pytest.mark.parametrize("depth", ["deep", 8.0, 3.0])
+def test_the_lattice_carries_the_records_variance_at_the_presets_depth(tmp_path, depth):
+    """Frequencies reach wavenumbers through the dispersion relation at the preset's depth
+    (Ψ = S(ω(k)) D (dω/dk)/k): the lattice's variance Σ Ψ Δk² is the record's m0 = Σ E Δf
+    (midpoint sums over ~1000 energetic cells: 1 %), shallow water or deep."""
+    from oceanfield.surface.synth import Ocean
+
+    (tmp_path / "r.csv").write_text(
+        "frequency_hz,density_m2_per_hz,direction_deg,spread_deg\n"
+        + "".join(f"{f:.3f},{e:.6f},200,30\n" for f, e in zip(np.arange(0.15, 0.4501, 0.01),
+                                                            _wide_peak(np.arange(0.15, 0.4501, 0.01)))),
+        encoding="utf-8",
+    )
+    preset = load_preset(_preset(tmp_path, "r.csv"),
+                         overrides=[f"sea.depth_m={depth}", "tile.size_m=400", "tile.resolution=256"])
+    sea = preset.sea_state()
+    record = float(np.sum(sea.components[0].density * np.gradient(sea.components[0].frequency)))
+    assert sea.moment(0) == pytest.approx(record, rel=1e-9)
+    assert Ocean.from_preset(preset).lattice_variance == pytest.approx(record, rel=0.01)
+
+
+def _wide_peak(f: np.ndarray) -> np.ndarray:
+    """A smooth invented spectrum peaking at 0.25 Hz (m²/Hz)."""
+    return 0.5 * np.exp(-(((f - 0.25) / 0.06) ** 2))
