@@ -387,12 +387,9 @@ def test_the_lattice_carries_the_records_variance_at_the_presets_depth(tmp_path,
     (midpoint sums over ~1000 energetic cells: 1 %), shallow water or deep."""
     from oceanfield.surface.synth import Ocean
 
-    (tmp_path / "r.csv").write_text(
-        "frequency_hz,density_m2_per_hz,direction_deg,spread_deg\n"
-        + "".join(f"{f:.3f},{e:.6f},200,30\n" for f, e in zip(np.arange(0.15, 0.4501, 0.01),
-                                                            _wide_peak(np.arange(0.15, 0.4501, 0.01)))),
-        encoding="utf-8",
-    )
+    freq = np.arange(0.15, 0.4501, 0.01)
+    rows = "".join(f"{f:.3f},{e:.6f},200,30\n" for f, e in zip(freq, _wide_peak(freq)))
+    (tmp_path / "r.csv").write_text("frequency_hz,density_m2_per_hz,direction_deg,spread_deg\n" + rows, encoding="utf-8")
     preset = load_preset(_preset(tmp_path, "r.csv"),
                          overrides=[f"sea.depth_m={depth}", "tile.size_m=400", "tile.resolution=256"])
     sea = preset.sea_state()
