@@ -401,3 +401,24 @@ def test_the_lattice_carries_the_records_variance_at_the_presets_depth(tmp_path,
 def _wide_peak(f: np.ndarray) -> np.ndarray:
     """A smooth invented spectrum peaking at 0.25 Hz (m²/Hz)."""
     return 0.5 * np.exp(-(((f - 0.25) / 0.06) ** 2))
+
+
+def test_a_record_and_the_other_sizings_replace_each_other(tmp_path):
+    """--set or an extending preset that sizes a component one way replaces the other way:
+    a Beaufort force replaces a record; a record replaces every parametric key but the label."""
+    record = load_preset("headland_buoy_record").sea.components[0].record.file
+    beaufort = load_preset("headland_buoy_record", overrides=["sea.components.0.beaufort=5"])
+    assert beaufort.sea.components[0].record is None and beaufort.sea.components[0].beaufort == 5
+    swapped = load_preset("swell_under_wind_sea", overrides=[f"sea.components.1.record.file={record}"])
+    assert swapped.sea.components[1].record is not None
+    assert swapped.sea.components[1].label == "local wind sea"
+    assert swapped.sea.components[0].significant_height_m == 1.5
+    shutil.copy(record, tmp_path / "r.csv")
+    child = tmp_path / "child.yaml"
+    child.write_text("extends: swell_under_wind_sea\nsea:\n  components:\n    0:\n      record: {file: r.csv}\n",
+                     encoding="utf-8")
+    extended = load_preset(child)
+    assert extended.sea.components[0].record is not None and extended.sea.components[1].beaufort == 5
+    again = tmp_path / "again.yaml"
+    again.write_text(dump_preset(extended), encoding="utf-8")
+    assert load_preset(again) == extended

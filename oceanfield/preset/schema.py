@@ -328,12 +328,14 @@ def dump_preset(preset: Preset) -> str:
 # the others (the default γ, the spreading that suits the sizing, ...) is written null, so
 # it follows an edit of the others instead of contradicting it; a comment gives its value.
 
-_SIZING_KEYS = ("wind_speed_mps", "beaufort", "significant_height_m", "peak_period_s")
+_SIZING_KEYS = ("wind_speed_mps", "beaufort", "significant_height_m", "peak_period_s", "record")
 _REPLACED_BY = {
-    "wind_speed_mps": ("beaufort", "significant_height_m", "peak_period_s"),
-    "beaufort": ("wind_speed_mps", "significant_height_m", "peak_period_s"),
-    "significant_height_m": ("wind_speed_mps", "beaufort", "fetch_km"),
-    "peak_period_s": ("wind_speed_mps", "beaufort", "fetch_km"),
+    "wind_speed_mps": ("beaufort", "significant_height_m", "peak_period_s", "record"),
+    "beaufort": ("wind_speed_mps", "significant_height_m", "peak_period_s", "record"),
+    "significant_height_m": ("wind_speed_mps", "beaufort", "fetch_km", "record"),
+    "peak_period_s": ("wind_speed_mps", "beaufort", "fetch_km", "record"),
+    # A measured record sizes, shapes and directs the component: it replaces every key but the label.
+    "record": tuple(name for name in ComponentSettings.__dataclass_fields__ if name not in ("label", "record")),
 }
 
 
@@ -345,7 +347,7 @@ def _resize_by_override(tree: Node, text: str) -> None:
     """
     key, _, _ = text.partition("=")
     parts = key.strip().split(".")
-    if len(parts) != 4 or parts[:2] != ["sea", "components"] or parts[3] not in _REPLACED_BY:
+    if len(parts) < 4 or parts[:2] != ["sea", "components"] or parts[3] not in _REPLACED_BY:
         return
     node: Any = tree
     for part in ("sea", "components", parts[2]):
@@ -389,6 +391,8 @@ def _replace_sizing(component: Node, key: str, keep) -> None:
 
 def _derive_defaults(written: dict[str, Any], item: ComponentSettings) -> dict[str, Any]:
     """Null the keys of one dumped component that equal what the schema derives; {key: value}."""
+    if item.record is not None:  # a record component writes only its label and record
+        return {}
     wind_driven = item.significant_height_m is None
     defaults = {
         "label": "wind sea" if wind_driven else "wave system",
