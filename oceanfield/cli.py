@@ -41,6 +41,15 @@ def _add_preset_arguments(parser: argparse.ArgumentParser) -> None:
     )
 
 
+def _add_shot_arguments(parser: argparse.ArgumentParser, *, table: bool) -> None:
+    parser.add_argument("--frames", default=None, help="frame range A-B or list A,B,C (default: the preset's)")
+    parser.add_argument("--scene-units", action="store_true",
+                        help="positions and body lengths in the scene's horizontal axes and units instead of tile metres")
+    if table:
+        parser.add_argument("--out", default=None, metavar="FILE", help="write a .csv or .json file (default: CSV on stdout)")
+        parser.add_argument("--json", action="store_true", help="print JSON instead of CSV")
+
+
 def build_parser() -> argparse.ArgumentParser:
     """The argument parser of every command."""
     parser = argparse.ArgumentParser(
@@ -80,6 +89,31 @@ def build_parser() -> argparse.ArgumentParser:
     render.add_argument("--scheduler", default=None, metavar="ADDRESS", help="a Dask distributed scheduler to render on")
     render.add_argument("--out", default=None, metavar="DIR", help="output root (default: ./renders)")
     render.add_argument("--overwrite", action="store_true", help="replace frames and a manifest from another preset")
+
+    probe = commands.add_parser("probe", help="the surface above points: height, displacement, normal, velocity per frame")
+    _add_preset_arguments(probe)
+    probe.add_argument("--at", action="append", required=True, metavar="[NAME=]X,Y",
+                       help="a horizontal position in the tile's axes, metres (x along image columns, y along rows); repeatable")
+    _add_shot_arguments(probe, table=True)
+
+    float_ = commands.add_parser("float", help="floating bodies riding the sea: position and rotation per frame")
+    _add_preset_arguments(float_)
+    float_.add_argument("--body", action="append", required=True, metavar="KEY=VALUE,...",
+                        help="a waterplane: x_m, y_m, length_m, beam_m, optional heading_deg (bow, counter-clockwise "
+                             "from +x), name, and per motion (heave, pitch, roll) a damped response: "
+                             "<motion>_period_s with <motion>_damping; repeatable")
+    _add_shot_arguments(float_, table=True)
+
+    scene = commands.add_parser("scene", help="write the animated sea, its material, probes and bodies as a USD stage")
+    _add_preset_arguments(scene)
+    scene.add_argument("--out", required=True, metavar="FILE.usda", help="the stage to write (.usda text, .usd/.usdc binary)")
+    scene.add_argument("--at", action="append", default=[], metavar="[NAME=]X,Y", help="a probe, as for 'probe'; repeatable")
+    scene.add_argument("--body", action="append", default=[], metavar="KEY=VALUE,...", help="a floating body, as for 'float'; repeatable")
+    scene.add_argument("--mesh-resolution", type=int, default=None, metavar="N",
+                       help="sea mesh quads per side, a divisor of the tile resolution (default: up to 128)")
+    scene.add_argument("--maps", default=None, metavar="DIR", help="the render output root the material's map files are under (default: ./renders)")
+    scene.add_argument("--render-maps", action="store_true", help="render the map sequences into --maps first")
+    _add_shot_arguments(scene, table=False)
 
     analyze = commands.add_parser("analyze", help="measure a height sequence's spectrum, statistics and wave timing")
     analyze.add_argument("sequence", help="a folder of frames, a glob, or a pattern with #### for the frame number")
@@ -232,6 +266,24 @@ def _cmd_analyze(args: argparse.Namespace) -> int:
     return run_analyze_command(args)
 
 
+def _cmd_probe(args: argparse.Namespace) -> int:
+    from .render.shot import run_probe_command
+
+    return run_probe_command(args)
+
+
+def _cmd_float(args: argparse.Namespace) -> int:
+    from .render.shot import run_float_command
+
+    return run_float_command(args)
+
+
+def _cmd_scene(args: argparse.Namespace) -> int:
+    from .render.shot import run_scene_command
+
+    return run_scene_command(args)
+
+
 _COMMANDS = {
     "presets": _cmd_presets,
     "stats": _cmd_stats,
@@ -239,6 +291,9 @@ _COMMANDS = {
     "preview": _cmd_preview,
     "render": _cmd_render,
     "analyze": _cmd_analyze,
+    "probe": _cmd_probe,
+    "float": _cmd_float,
+    "scene": _cmd_scene,
 }
 
 

@@ -48,7 +48,7 @@ from numpy.typing import NDArray
 
 from oceanfield.surface.fields import Fields
 
-__all__ = ["FILE_ROWS_FLIPPED", "MAPS", "UP_AXES", "map_channels", "layered_channels"]
+__all__ = ["FILE_ROWS_FLIPPED", "MAPS", "UP_AXES", "map_channels", "layered_channels", "scene_axes"]
 
 #: The maps a frame can be written as.
 MAPS: tuple[str, ...] = ("displacement", "normal", "foam", "height", "velocity")
@@ -205,6 +205,17 @@ def _map(
         channel: _scaled(component, scale)
         for channel, component in zip(_VECTOR_CHANNELS, scene)
     }
+
+
+def scene_axes(up_axis: str) -> NDArray[np.float64]:
+    """The 3×3 matrix A taking an internal vector (x, y, z) to scene (X, Y, Z) = A·(x, y, z).
+
+    The same mapping as the maps' (see the module notes); a rotation (det A = 1), so a
+    rotation R in internal axes is A R Aᵀ in the scene's.
+    """
+    _check_options(1.0, up_axis)
+    columns = _to_scene_axes(*np.eye(3), up_axis=up_axis)
+    return np.stack(columns, axis=0).astype(np.float64)
 
 
 def _to_scene_axes(

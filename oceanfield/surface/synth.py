@@ -17,6 +17,7 @@ from __future__ import annotations
 import math
 import os
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
@@ -24,6 +25,9 @@ from numpy.typing import ArrayLike, NDArray
 from .fields import Fields
 from ..physics.seastate import SeaState
 from .tile import Tile
+
+if TYPE_CHECKING:
+    from .modes import WaveModes
 
 __all__ = ["Ocean", "LoopInfo", "amplitude_noise", "frame_bytes_per_texel", "available_memory"]
 
@@ -381,6 +385,28 @@ class Ocean:
             for a in (fields.displacement_x, fields.displacement_y, fields.height)
         ]
         return np.stack(out, axis=-1).reshape(x.shape + (3,))
+
+    def modes(self) -> "WaveModes":
+        """The travelling sinusoids the frames sum, as arrays (see ``surface.modes``).
+
+        Each lattice wave k that carries energy is one mode: height amplitude 2·h0(k),
+        lateral amplitudes i·λ·(k/|k|)·2·h0(k), frequency ω(|k|) (after loop
+        quantisation). Re Σ c·e^{i(k·x − ωt)} over them equals the frame's fields exactly
+        (ĥ(k) and its mirror ĥ(−k) pair into one real sinusoid). Probes and floating
+        bodies evaluate these sums at any point; a band or bound waves add their own modes
+        here with ``WaveModes.join``.
+        """
+        from .modes import WaveModes
+
+        ny, nx = self.tile.wave_indices()
+        q = np.minimum(nx * nx + ny * ny, self._omega.size - 1)
+        keep = self._h0 != 0
+        kx = np.broadcast_to(nx * self.tile.dk, keep.shape)[keep]
+        ky = np.broadcast_to(ny * self.tile.dk, keep.shape)[keep]
+        height = 2.0 * self._h0[keep].astype(np.complex128)
+        k = np.hypot(kx, ky)
+        lateral = 1j * self.lateral_factor * height
+        return WaveModes(kx, ky, self._omega[q[keep]], height, lateral * kx / k, lateral * ky / k)
 
     @property
     def amplitudes(self) -> NDArray[np.complex64]:

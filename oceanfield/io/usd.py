@@ -1,0 +1,234 @@
+"""An OpenUSD stage of an animated shot, through the ``usd-core`` package (optional extra).
+
+Knows nothing of physics: it takes arrays already in scene axes and units, and frame
+numbers, and writes them as a USD stage.
+
+The stage (``/Shot`` is its default prim):
+
+* stage metadata ``metersPerUnit``, ``upAxis``, ``timeCodesPerSecond`` =
+  ``framesPerSecond`` = the frame rate, start and end time codes = the first and last
+  frame; one time sample per frame, at its frame number;
+* ``/Shot/Sea``: a ``Mesh`` of quads with time-sampled ``points``, ``normals`` (vertex
+  interpolation) and ``extent``, a ``primvars:st`` texture coordinate per vertex, and a
+  bound material;
+* ``/Shot/Looks/SeaMaterial``: a ``UsdPreviewSurface`` whose ``diffuseColor`` comes from a
+  ``UsdUVTexture`` of the foam sequence (scale and bias blend the water colour to white),
+  plus one ``UsdUVTexture`` per other map sequence with its file time-sampled frame by
+  frame, documented but not wired (the mesh is already displaced; a normal map in scene
+  axes is not the tangent-space normal ``UsdPreviewSurface`` expects);
+* ``/Shot/Probes/<name>``: an ``Xform`` with a time-sampled translate per probe;
+* ``/Shot/Bodies/<name>``: an ``Xform`` with a time-sampled 4×4 transform per body.
+
+`write_stage` writes to a temporary beside the final name and renames it into place only
+when complete (``io.atomic``). A ``.usda`` name gives the text format, ``.usd`` or
+``.usdc`` the binary one. Without ``usd-core`` installed, `require_usd` raises a
+ValueError whose one line names the extra to install.
+"""
+
+from __future__ import annotations
+
+import os
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Mapping, Sequence
+
+import numpy as np
+from numpy.typing import NDArray
+
+from oceanfield.io.atomic import atomic_output
+
+__all__ = ["USD_SUFFIXES", "Look", "SeaMesh", "require_usd", "write_stage"]
+
+#: File suffixes a stage can be written as.
+USD_SUFFIXES = (".usda", ".usd", ".usdc")
+
+_INSTALL = "USD output needs the usd-core package; install it with: pip install 'oceanfield[usd]'"
+
+
+def require_usd() -> None:
+    """Raise ValueError (one line naming the extra to install) when usd-core is missing."""
+    try:
+        from pxr import Usd  # noqa: F401
+    except ImportError:
+        raise ValueError(_INSTALL) from None
+
+
+@dataclass(frozen=True, eq=False)
+class SeaMesh:
+    """A quad mesh whose points move from frame to frame.
+
+    Attributes
+    ----------
+    face_vertex_counts, face_vertex_indices : NDArray[np.int32]
+        USD's mesh topology (4 per quad; vertex indices, counter-clockwise seen from above).
+    st : NDArray[np.float32], shape (V, 2)
+        Texture coordinate of each vertex.
+    points, normals : NDArray[np.float32], shape (F, V, 3)
+        Vertex positions (scene units) and unit normals per frame, scene axes.
+    """
+
+    face_vertex_counts: NDArray[np.int32]
+    face_vertex_indices: NDArray[np.int32]
+    st: NDArray[np.float32]
+    points: NDArray[np.float32]
+    normals: NDArray[np.float32]
+
+
+@dataclass(frozen=True, eq=False)
+class Look:
+    """The preview material: texture files per frame by map name, and the water colour."""
+
+    textures: Mapping[str, Sequence[str]] = field(default_factory=dict)
+    foam_map: str | None = "foam"
+    water_colour: tuple[float, float, float] = (0.02, 0.08, 0.10)
+    notes: Mapping[str, str] = field(default_factory=dict)
+
+
+def write_stage(
+    path: str | os.PathLike[str],
+    *,
+    metres_per_unit: float,
+    up_axis: str,
+    fps: float,
+    frames: Sequence[int],
+    mesh: SeaMesh,
+    look: Look | None = None,
+    probes: Mapping[str, NDArray[np.float64]] | None = None,
+    bodies: Mapping[str, NDArray[np.float64]] | None = None,
+    comment: str = "",
+) -> Path:
+    """Write the shot as a USD stage (see the module notes); returns the path.
+
+    Parameters
+    ----------
+    path : path
+        Ends in .usda (text), .usd or .usdc (binary).
+    metres_per_unit : float
+        Stage ``metersPerUnit``.
+    up_axis : {"y", "z"}
+        Stage ``upAxis``.
+    fps : float
+        Time codes per second (and frames per second).
+    frames : sequence of int
+        Frame numbers, one per time sample, increasing.
+    mesh : SeaMesh
+    look : Look, optional
+        The material's texture sequences (one file per frame, relative to the stage's
+        folder or absolute).
+    probes : mapping of name to (F, 3) array, optional
+        Position of each probe per frame (scene units and axes).
+    bodies : mapping of name to (F, 4, 4) array, optional
+        Transform of each body per frame in USD's row-vector convention (translation in
+        the last row).
+    comment : str
+        The root layer's comment.
+    """
+    require_usd()
+    from pxr import Gf, Sdf, Tf, Usd, UsdGeom, UsdShade, Vt
+
+    final = Path(path)
+    if final.suffix.lower() not in USD_SUFFIXES:
+        raise ValueError(f"--out: {str(final)!r} is not allowed; allowed: a file ending in .usda, .usd or .usdc")
+    frames = [int(f) for f in frames]
+    count = len(frames)
+    stage = Usd.Stage.CreateInMemory()
+    UsdGeom.SetStageMetersPerUnit(stage, float(metres_per_unit))
+    UsdGeom.SetStageUpAxis(stage, UsdGeom.Tokens.y if up_axis == "y" else UsdGeom.Tokens.z)
+    stage.SetTimeCodesPerSecond(float(fps))
+    stage.SetFramesPerSecond(float(fps))
+    stage.SetStartTimeCode(frames[0])
+    stage.SetEndTimeCode(frames[-1])
+    if comment:
+        stage.GetRootLayer().comment = comment
+    shot = UsdGeom.Xform.Define(stage, "/Shot")
+    stage.SetDefaultPrim(shot.GetPrim())
+
+    sea = UsdGeom.Mesh.Define(stage, "/Shot/Sea")
+    sea.CreateSubdivisionSchemeAttr(UsdGeom.Tokens.none)
+    sea.CreateFaceVertexCountsAttr(Vt.IntArray.FromNumpy(np.ascontiguousarray(mesh.face_vertex_counts, np.int32)))
+    sea.CreateFaceVertexIndicesAttr(Vt.IntArray.FromNumpy(np.ascontiguousarray(mesh.face_vertex_indices, np.int32)))
+    points_attr = sea.CreatePointsAttr()
+    normals_attr = sea.CreateNormalsAttr()
+    sea.SetNormalsInterpolation(UsdGeom.Tokens.vertex)
+    extent_attr = sea.CreateExtentAttr()
+    for index, frame in enumerate(frames):
+        time = Usd.TimeCode(frame)
+        points = np.ascontiguousarray(mesh.points[index], dtype=np.float32)
+        points_attr.Set(Vt.Vec3fArray.FromNumpy(points), time)
+        normals_attr.Set(Vt.Vec3fArray.FromNumpy(np.ascontiguousarray(mesh.normals[index], dtype=np.float32)), time)
+        extent_attr.Set(Vt.Vec3fArray.FromNumpy(np.stack([points.min(axis=0), points.max(axis=0)])), time)
+    st = UsdGeom.PrimvarsAPI(sea.GetPrim()).CreatePrimvar(
+        "st", Sdf.ValueTypeNames.TexCoord2fArray, UsdGeom.Tokens.vertex)
+    st.Set(Vt.Vec2fArray.FromNumpy(np.ascontiguousarray(mesh.st, dtype=np.float32)))
+
+    if look is not None:
+        material = _material(stage, look, frames, Sdf, Usd, UsdShade)
+        UsdShade.MaterialBindingAPI.Apply(sea.GetPrim()).Bind(material)
+
+    for group, items in (("Probes", probes or {}), ("Bodies", bodies or {})):
+        if not items:
+            continue
+        UsdGeom.Scope.Define(stage, f"/Shot/{group}")
+        for name, values in items.items():
+            values = np.asarray(values, dtype=np.float64)
+            if values.shape[0] != count:
+                raise ValueError(f"{group.lower()} {name}: {values.shape[0]} samples for {count} frames")
+            xform = UsdGeom.Xform.Define(stage, f"/Shot/{group}/{Tf.MakeValidIdentifier(name)}")
+            if group == "Probes":
+                op = xform.AddTranslateOp()
+                for frame, value in zip(frames, values):
+                    op.Set(Gf.Vec3d(*map(float, value)), Usd.TimeCode(frame))
+            else:
+                op = xform.AddTransformOp()
+                for frame, value in zip(frames, values):
+                    op.Set(Gf.Matrix4d(value.tolist()), Usd.TimeCode(frame))
+
+    final.parent.mkdir(parents=True, exist_ok=True)
+    with atomic_output(final) as temporary:
+        if not stage.GetRootLayer().Export(str(temporary)):
+            raise OSError(f"USD could not export the stage to {temporary}")
+    return final
+
+
+def _material(stage, look: Look, frames: Sequence[int], Sdf, Usd, UsdShade):
+    """The preview material: foam → diffuse colour, every map sequence as a texture."""
+    root = "/Shot/Looks/SeaMaterial"
+    material = UsdShade.Material.Define(stage, root)
+    surface = UsdShade.Shader.Define(stage, f"{root}/PreviewSurface")
+    surface.CreateIdAttr("UsdPreviewSurface")
+    water = tuple(float(c) for c in look.water_colour)
+    diffuse = surface.CreateInput("diffuseColor", Sdf.ValueTypeNames.Color3f)
+    diffuse.Set(water)
+    surface.CreateInput("roughness", Sdf.ValueTypeNames.Float).Set(0.05)
+    surface.CreateInput("metallic", Sdf.ValueTypeNames.Float).Set(0.0)
+    surface.CreateInput("ior", Sdf.ValueTypeNames.Float).Set(1.33)
+    material.CreateSurfaceOutput().ConnectToSource(surface.ConnectableAPI(), "surface")
+
+    reader = UsdShade.Shader.Define(stage, f"{root}/TextureCoordinates")
+    reader.CreateIdAttr("UsdPrimvarReader_float2")
+    reader.CreateInput("varname", Sdf.ValueTypeNames.Token).Set("st")
+    reader_output = reader.CreateOutput("result", Sdf.ValueTypeNames.Float2)
+
+    for name, files in look.textures.items():
+        if len(files) != len(frames):
+            raise ValueError(f"texture {name}: {len(files)} files for {len(frames)} frames")
+        texture = UsdShade.Shader.Define(stage, f"{root}/{name.capitalize()}Texture")
+        texture.CreateIdAttr("UsdUVTexture")
+        file_input = texture.CreateInput("file", Sdf.ValueTypeNames.Asset)
+        for frame, file in zip(frames, files):
+            file_input.Set(Sdf.AssetPath(file), Usd.TimeCode(frame))
+        texture.CreateInput("st", Sdf.ValueTypeNames.Float2).ConnectToSource(reader_output)
+        texture.CreateInput("wrapS", Sdf.ValueTypeNames.Token).Set("repeat")
+        texture.CreateInput("wrapT", Sdf.ValueTypeNames.Token).Set("repeat")
+        texture.CreateInput("sourceColorSpace", Sdf.ValueTypeNames.Token).Set("raw")
+        rgb = texture.CreateOutput("rgb", Sdf.ValueTypeNames.Float3)
+        texture.CreateOutput("r", Sdf.ValueTypeNames.Float)
+        if name == look.foam_map:
+            # foam f in [0, 1] → water + f·(white − water): the texture's scale and bias
+            texture.CreateInput("scale", Sdf.ValueTypeNames.Float4).Set(tuple(1.0 - c for c in water) + (1.0,))
+            texture.CreateInput("bias", Sdf.ValueTypeNames.Float4).Set(water + (0.0,))
+            diffuse.ConnectToSource(rgb)
+        note = look.notes.get(name)
+        if note:
+            texture.GetPrim().SetDocumentation(note)
+    return material

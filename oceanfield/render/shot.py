@@ -1,0 +1,458 @@
+"""Into the shot: the ``probe``, ``float`` and ``scene`` commands.
+
+Orchestration only — it knows nothing of formulas: it reads the preset and the frames,
+asks the surface for probes (``surface.probes``) and body motions (``surface.bodies``),
+puts them in the scene's axes and units (``surface.maps.scene_axes``) and hands arrays to
+the writers (``io.table`` for CSV/JSON, ``io.usd`` for the USD stage), which write
+atomically: a failed command leaves no partial file.
+
+Positions on the command line are in the tile's own axes and metres (x along image
+columns, y along rows), or in the scene's horizontal axes and units with
+``--scene-units``; the sea repeats with the tile, so any position within ±100 km works.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+import sys
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any, Sequence
+
+import numpy as np
+
+from .plan import parse_frames
+
+__all__ = [
+    "ProbePoint",
+    "parse_probe",
+    "parse_body",
+    "probe_table",
+    "body_table",
+    "run_probe_command",
+    "run_float_command",
+    "run_scene_command",
+]
+
+#: Farthest a probe or body may be from the tile's origin, metres.
+MAX_DISTANCE_M = 100_000.0
+#: Default most vertices per side of the scene's sea mesh.
+DEFAULT_MESH_RESOLUTION = 128
+
+_UNIT_NAMES = {1.0: "m", 0.01: "cm", 0.001: "mm", 0.1: "dm", 1000.0: "km", 0.0254: "in", 0.3048: "ft"}
+
+
+@dataclass(frozen=True)
+class ProbePoint:
+    """A named probe position in the tile's axes, metres."""
+
+    name: str
+    x: float
+    y: float
+
+
+# -- parsing ---------------------------------------------------------------------------------
+
+
+def _number(option: str, text: str, key: str, value: str) -> float:
+    try:
+        number = float(value)
+    except ValueError:
+        raise ValueError(f"{option}: {key}={value!r} in {text!r} is not a number") from None
+    if not math.isfinite(number):
+        raise ValueError(f"{option}: {key}={value!r} in {text!r} is not allowed; allowed: a finite number")
+    return number
+
+
+def _check_position(option: str, text: str, x: float, y: float) -> None:
+    if abs(x) > MAX_DISTANCE_M or abs(y) > MAX_DISTANCE_M:
+        raise ValueError(
+            f"{option}: {text!r} is {max(abs(x), abs(y)):.6g} m from the tile's origin; allowed: within "
+            f"±{MAX_DISTANCE_M:.0f} m (the sea repeats with the tile, so every spot on it is that close)"
+        )
+
+
+def _to_tile_metres(x: float, y: float, scene: Any | None) -> tuple[float, float]:
+    """A horizontal position given in scene units and axes, as tile metres (x, y)."""
+    if scene is None:
+        return x, y
+    from ..surface.maps import scene_axes
+
+    # Scene horizontal axes: X and Y (Z-up) or X and Z (Y-up); the up component is 0.
+    horizontal = np.zeros(3)
+    up = 1 if scene.up_axis == "y" else 2
+    horizontal[[0, 2 if up == 1 else 1]] = (x, y)
+    internal = scene_axes(scene.up_axis).T @ horizontal * scene.metres_per_unit
+    return float(internal[0]), float(internal[1])
+
+
+def parse_probe(text: str, index: int, scene: Any | None = None) -> ProbePoint:
+    """``X,Y`` or ``NAME=X,Y`` (tile metres; scene units and axes when ``scene`` is given)."""
+    name, _, coordinates = text.rpartition("=")
+    name = name.strip() or f"probe{index}"
+    parts = [p.strip() for p in coordinates.split(",")]
+    if len(parts) != 2 or not all(parts):
+        raise ValueError(f"--at: {text!r} is not a position; allowed: X,Y or NAME=X,Y (e.g. --at hero=12.5,40)")
+    x = _number("--at", text, "X", parts[0])
+    y = _number("--at", text, "Y", parts[1])
+    x, y = _to_tile_metres(x, y, scene)
+    _check_position("--at", text, x, y)
+    return ProbePoint(name, x, y)
+
+
+_BODY_KEYS = ("name", "x_m", "y_m", "length_m", "beam_m", "heading_deg",
+              "heave_period_s", "heave_damping", "pitch_period_s", "pitch_damping", "roll_period_s", "roll_damping")
+
+
+def parse_body(text: str, index: int, scene: Any | None = None):
+    """A body from ``key=value,...`` (see ``_BODY_KEYS``); x_m, y_m, length_m, beam_m required."""
+    from ..surface.bodies import Body, Response
+
+    values: dict[str, str] = {}
+    for item in text.split(","):
+        key, sep, value = (s.strip() for s in item.partition("="))
+        if not sep or not key or not value:
+            raise ValueError(f"--body: {item.strip()!r} in {text!r} is not key=value; allowed keys: {', '.join(_BODY_KEYS)}")
+        if key not in _BODY_KEYS:
+            import difflib
+
+            close = difflib.get_close_matches(key, _BODY_KEYS, n=1)
+            hint = f" — did you mean {close[0]}?" if close else ""
+            raise ValueError(f"--body: {key!r} is not a key{hint}; allowed: {', '.join(_BODY_KEYS)}")
+        if key in values:
+            raise ValueError(f"--body: {key} is given twice in {text!r}")
+        values[key] = value
+    missing = [k for k in ("x_m", "y_m", "length_m", "beam_m") if k not in values]
+    if missing:
+        raise ValueError(f"--body: {text!r} lacks {', '.join(missing)}; a body needs x_m, y_m, length_m and beam_m")
+    number = {k: _number("--body", text, k, v) for k, v in values.items() if k != "name"}
+    for key in ("length_m", "beam_m"):
+        if number[key] <= 0:
+            raise ValueError(f"--body: {key}={values[key]} is not allowed; allowed: a length > 0 metres")
+    responses = {}
+    for motion in ("heave", "pitch", "roll"):
+        period, damping = number.get(f"{motion}_period_s"), number.get(f"{motion}_damping")
+        if (period is None) != (damping is None):
+            given, lacking = (f"{motion}_period_s", f"{motion}_damping") if damping is None else \
+                (f"{motion}_damping", f"{motion}_period_s")
+            raise ValueError(f"--body: {given} needs {lacking} too: the two set the {motion} response together")
+        if period is not None:
+            if period <= 0:
+                raise ValueError(f"--body: {motion}_period_s={values[f'{motion}_period_s']} is not allowed; "
+                                 "allowed: a natural period > 0 seconds")
+            if damping <= 0:
+                raise ValueError(f"--body: {motion}_damping={values[f'{motion}_damping']} is not allowed; "
+                                 "allowed: a damping ratio > 0 (0.05-0.3 is typical of a hull)")
+            responses[motion] = Response(period, damping)
+    x, y = _to_tile_metres(number["x_m"], number["y_m"], scene)
+    _check_position("--body", text, x, y)
+    length, beam = number["length_m"], number["beam_m"]
+    if scene is not None:
+        length, beam = length * scene.metres_per_unit, beam * scene.metres_per_unit
+    heading = math.radians(number.get("heading_deg", 0.0))
+    return Body(x, y, length, beam, heading, name=values.get("name", f"body{index}"), **responses)
+
+
+# -- computing ---------------------------------------------------------------------------------
+
+
+def _unit(metres_per_unit: float) -> str:
+    """The scene unit's symbol for column names (``su`` = scene units when not a common one)."""
+    for value, name in _UNIT_NAMES.items():
+        if math.isclose(metres_per_unit, value, rel_tol=1e-12):
+            return name
+    return "su"
+
+
+def _frames_and_times(preset, frames_text: str | None) -> tuple[list[int], np.ndarray]:
+    frames = parse_frames(frames_text, preset.time.frames)
+    return frames, np.array([preset.time.frame_time(f) for f in frames], dtype=np.float64)
+
+
+def _ocean(preset):
+    from ..surface.synth import Ocean
+
+    return Ocean.from_preset(preset, velocity=False, foam_memory=0.0)
+
+
+def probe_table(preset, ocean, probes: Sequence[ProbePoint], frames: Sequence[int], times: np.ndarray):
+    """(columns, rows, positions (P, F, 3) in scene units, worst residual) of the probes."""
+    from ..surface.maps import scene_axes
+    from ..surface.probes import surface_at
+
+    scene = preset.scene
+    axes = scene_axes(scene.up_axis)
+    unit = _unit(scene.metres_per_unit)
+    mpu = scene.metres_per_unit
+    xs = np.array([[p.x] for p in probes])
+    ys = np.array([[p.y] for p in probes])
+    points = surface_at(ocean.modes(), xs, ys, times[None, :], tolerance=_tolerance(ocean))
+    shape = (len(probes), len(times))
+    where = np.stack([np.broadcast_to(xs, shape), np.broadcast_to(ys, shape), points.position[..., 2]], axis=-1)
+    position = where @ axes.T / mpu
+    displacement = points.displacement @ axes.T / mpu
+    normal = points.normal @ axes.T
+    velocity = points.velocity @ axes.T / mpu
+    axis_names = ("X", "Y", "Z")
+    columns = ["frame", "time_s", "probe", "at_x_m", "at_y_m",
+               *(f"position_{a}_{unit}" for a in axis_names), f"height_{unit}",
+               *(f"displacement_{a}_{unit}" for a in axis_names),
+               *(f"normal_{a}" for a in axis_names),
+               *(f"velocity_{a}_{unit}ps" for a in axis_names), f"rise_rate_{unit}ps",
+               "rest_x_m", "rest_y_m", "residual_m"]
+    rows = []
+    for f, (frame, t) in enumerate(zip(frames, times)):
+        for p, probe in enumerate(probes):
+            rows.append([frame, float(t), probe.name, probe.x, probe.y,
+                         *position[p, f].tolist(), float(points.position[p, f, 2] / mpu),
+                         *displacement[p, f].tolist(), *normal[p, f].tolist(), *velocity[p, f].tolist(),
+                         float(points.rise_rate[p, f] / mpu),
+                         *points.rest[p, f].tolist(), float(points.residual[p, f])])
+    return columns, rows, position, float(points.residual.max(initial=0.0))
+
+
+def _tolerance(ocean) -> float:
+    """Inversion tolerance: a hundred-millionth of the tile (7.7 µm on a 768 m tile)."""
+    return 1e-8 * ocean.tile.size
+
+
+def body_table(preset, ocean, bodies, frames: Sequence[int], times: np.ndarray):
+    """(columns, rows, transforms {name: (F, 4, 4) USD row-vector matrices}, worst residual)."""
+    from ..surface.bodies import body_motion, quaternion
+    from ..surface.maps import scene_axes
+
+    scene = preset.scene
+    axes = scene_axes(scene.up_axis)
+    unit = _unit(scene.metres_per_unit)
+    mpu = scene.metres_per_unit
+    modes = ocean.modes()
+    columns = ["frame", "time_s", "body", *(f"position_{a}_{unit}" for a in "XYZ"), f"heave_{unit}",
+               "pitch_bow_up_deg", "roll_starboard_down_deg", "heading_deg",
+               "orientation_w", "orientation_X", "orientation_Y", "orientation_Z", "waterplane_samples", "residual_m"]
+    motions = []
+    for body in bodies:
+        motion = body_motion(modes, body, times, spacing=ocean.tile.spacing)
+        position = motion.position @ axes.T / mpu
+        rotation = axes @ motion.rotation @ axes.T
+        matrix = np.zeros((len(times), 4, 4))
+        matrix[:, :3, :3] = np.swapaxes(rotation, -1, -2)  # USD: row vectors, p' = p · M
+        matrix[:, 3, :3] = position
+        matrix[:, 3, 3] = 1.0
+        motions.append((body, motion, position, quaternion(rotation), matrix))
+    rows = []
+    for f, (frame, t) in enumerate(zip(frames, times)):
+        for body, motion, position, quat, _ in motions:
+            rows.append([frame, float(t), body.name, *position[f].tolist(), float(motion.heave[f] / mpu),
+                         math.degrees(motion.pitch[f]), math.degrees(motion.roll[f]),
+                         math.degrees(body.heading), *quat[f].tolist(), motion.samples, motion.worst_residual])
+    worst = max((m[1].worst_residual for m in motions), default=0.0)
+    return columns, rows, {m[0].name: m[4] for m in motions}, worst
+
+
+def _metadata(preset, frames: Sequence[int]) -> dict[str, Any]:
+    from .. import __version__
+    from .plan import render_hash
+
+    return {
+        "software": f"oceanfield {__version__}",
+        "preset": preset.name,
+        "preset_hash": render_hash(preset),
+        "fps": preset.time.fps,
+        "frames": [frames[0], frames[-1]] if frames else [],
+        "metres_per_unit": preset.scene.metres_per_unit,
+        "up_axis": preset.scene.up_axis,
+        "tile_size_m": preset.tile.size_m,
+    }
+
+
+def _unique_names(kind: str, names: Sequence[str]) -> None:
+    seen = set()
+    for name in names:
+        if name in seen:
+            raise ValueError(f"{kind}: the name {name!r} is used twice; give each a name of its own")
+        seen.add(name)
+
+
+# -- commands ----------------------------------------------------------------------------------
+
+
+def _load(args):
+    from ..preset.schema import load_preset
+
+    return load_preset(args.preset, overrides=tuple(args.overrides), allow_outside_output=False)
+
+
+def _emit(args, columns, rows, metadata) -> None:
+    from ..io.table import format_csv, format_json, write_table
+
+    if args.out:
+        path = write_table(args.out, columns, rows, metadata)
+        print(f"{len(rows)} rows written to {path}", file=sys.stderr)
+    elif args.json:
+        sys.stdout.write(format_json(columns, rows, metadata))
+    else:
+        sys.stdout.write(format_csv(columns, rows))
+
+
+def _check_out(args) -> None:
+    if args.out:
+        from ..io.table import table_format
+
+        table_format(args.out)
+
+
+def run_probe_command(args) -> int:
+    """``oceanfield probe``: the surface above points, per frame, as CSV or JSON."""
+    _check_out(args)
+    preset = _load(args)
+    scene = preset.scene if args.scene_units else None
+    probes = [parse_probe(text, i + 1, scene) for i, text in enumerate(args.at)]
+    _unique_names("--at", [p.name for p in probes])
+    frames, times = _frames_and_times(preset, args.frames)
+    columns, rows, _, worst = probe_table(preset, _ocean(preset), probes, frames, times)
+    _emit(args, columns, rows, {**_metadata(preset, frames), "worst_residual_m": worst})
+    return 0
+
+
+def run_float_command(args) -> int:
+    """``oceanfield float``: floating bodies' position and rotation per frame, as CSV or JSON."""
+    _check_out(args)
+    preset = _load(args)
+    scene = preset.scene if args.scene_units else None
+    bodies = [parse_body(text, i + 1, scene) for i, text in enumerate(args.body)]
+    _unique_names("--body", [b.name for b in bodies])
+    frames, times = _frames_and_times(preset, args.frames)
+    columns, rows, _, worst = body_table(preset, _ocean(preset), bodies, frames, times)
+    _emit(args, columns, rows, {**_metadata(preset, frames), "worst_residual_m": worst})
+    return 0
+
+
+def _mesh_stride(preset, requested: int | None) -> int:
+    n = preset.tile.resolution
+    if requested is None:
+        stride = 1
+        while n // stride > DEFAULT_MESH_RESOLUTION and n % (stride * 2) == 0:
+            stride *= 2
+        return stride
+    if requested < 2 or requested > n or n % requested:
+        raise ValueError(f"--mesh-resolution: {requested} is not allowed; allowed: a divisor of the tile "
+                         f"resolution {n} from 2 up (e.g. {n // 4 if n % 4 == 0 else n // 2})")
+    return n // requested
+
+
+def sea_mesh(preset, ocean, frames: Sequence[int], times: np.ndarray, stride: int):
+    """The decimated displaced grid of each frame: every ``stride``-th texel of the maps."""
+    from ..io.usd import SeaMesh
+    from ..surface.maps import map_channels, scene_axes
+
+    scene = preset.scene
+    n = preset.tile.resolution // stride
+    size = preset.tile.size_m
+    spacing = size / n
+    index = np.arange(n + 1)
+    # Rest grid in internal axes, one row and column more than the texels so the mesh
+    # closes at the far edges (they take the first row's and column's values).
+    rest = np.zeros((n + 1, n + 1, 3))
+    rest[..., 0] = index[None, :] * spacing
+    rest[..., 1] = index[:, None] * spacing
+    rest_scene = rest @ scene_axes(scene.up_axis).T / scene.metres_per_unit
+    points = np.empty((len(frames), (n + 1) ** 2, 3), dtype=np.float32)
+    normals = np.empty_like(points)
+    for f, t in enumerate(times):
+        fields = ocean.frame(float(t))
+        for name, target in (("displacement", points), ("normal", normals)):
+            channels = map_channels(fields, name, metres_per_unit=scene.metres_per_unit, up_axis=scene.up_axis)
+            vector = np.stack([channels[c][::stride, ::stride] for c in ("R", "G", "B")], axis=-1)
+            vector = np.pad(vector, ((0, 1), (0, 1), (0, 0)), mode="wrap")
+            target[f] = (vector + (rest_scene if name == "displacement" else 0.0)).reshape(-1, 3)
+    quad = (index[:-1, None] * (n + 1) + index[None, :-1]).ravel()
+    # Counter-clockwise seen from above: +x, then +y (internal axes; the scene map is a rotation).
+    indices = np.stack([quad, quad + 1, quad + n + 2, quad + n + 1], axis=-1).ravel().astype(np.int32)
+    texels = preset.tile.resolution
+    u = rest[..., 0] / size + 0.5 / texels
+    v = 1.0 - rest[..., 1] / size - 0.5 / texels
+    st = np.stack([u, v], axis=-1).reshape(-1, 2).astype(np.float32)
+    return SeaMesh(np.full(n * n, 4, dtype=np.int32), indices, st, points, normals)
+
+
+def _texture_files(preset, maps_root: Path, stage_path: Path, frames: Sequence[int]) -> tuple[dict, int]:
+    """Each map's file per frame, relative to the stage's folder; and how many are missing."""
+    files: dict[str, list[str]] = {}
+    missing = 0
+    base = stage_path.resolve().parent
+    for name in preset.maps:
+        paths = []
+        for frame in frames:
+            target = (maps_root / preset.output.relative_path(preset.name, name, frame)).resolve()
+            missing += not target.is_file()
+            relative = Path(os.path.relpath(target, base)).as_posix()
+            paths.append(relative if relative.startswith("../") else f"./{relative}")
+        files[name] = paths
+    return files, missing
+
+
+_TEXTURE_NOTES = {
+    "displacement": "Vector displacement (scene X, Y, Z in scene units) of each texel; the mesh's points "
+                    "already carry it at the mesh's resolution. Wire it to a vector displacement at render "
+                    "time on a flat, finer tile instead.",
+    "normal": "Unit normal of the displaced surface in scene axes (not tangent space): for shading a flat "
+              "tile; the mesh's own normals already carry it at the mesh's resolution.",
+    "height": "Vertical displacement in scene units (displacement along the normal of a flat tile).",
+    "velocity": "Velocity of the surface in scene units per second (spray, motion blur).",
+    "foam": "Foam coverage 0-1; wired to the diffuse colour through this texture's scale and bias.",
+}
+
+
+def run_scene_command(args) -> int:
+    """``oceanfield scene``: the animated sea, its material, probes and bodies as a USD stage."""
+    from ..io.usd import Look, USD_SUFFIXES, require_usd, write_stage
+
+    out = Path(args.out)
+    if out.suffix.lower() not in USD_SUFFIXES:
+        raise ValueError(f"--out: {args.out!r} is not allowed; allowed: a file ending in .usda, .usd or .usdc")
+    require_usd()
+    preset = _load(args)
+    scene = preset.scene if args.scene_units else None
+    probes = [parse_probe(text, i + 1, scene) for i, text in enumerate(args.at)]
+    bodies = [parse_body(text, i + 1, scene) for i, text in enumerate(args.body)]
+    _unique_names("--at", [p.name for p in probes])
+    _unique_names("--body", [b.name for b in bodies])
+    stride = _mesh_stride(preset, args.mesh_resolution)
+    frames, times = _frames_and_times(preset, args.frames)
+    maps_root = Path(args.maps) if args.maps else Path("renders")
+    if args.render_maps:
+        from .job import render
+        from .plan import plan_render
+
+        plan = plan_render(preset, root=maps_root, frames=args.frames)
+        summary = render(plan)
+        print(summary.line(), file=sys.stderr)
+        if not summary.ok:
+            raise ValueError(f"--render-maps: {len(summary.failed)} frames failed to render; the stage was not written")
+    ocean = _ocean(preset)
+    mesh = sea_mesh(preset, ocean, frames, times, stride)
+    probe_positions = {}
+    if probes:
+        _, _, positions, _ = probe_table(preset, ocean, probes, frames, times)
+        probe_positions = {p.name: positions[i] for i, p in enumerate(probes)}
+    body_transforms = body_table(preset, ocean, bodies, frames, times)[2] if bodies else {}
+    textures, missing = _texture_files(preset, maps_root, out, frames)
+    look = Look(textures=textures, foam_map="foam" if "foam" in preset.maps else None,
+                notes={k: v for k, v in _TEXTURE_NOTES.items() if k in textures})
+    from .. import __version__
+
+    n = preset.tile.resolution // stride
+    path = write_stage(
+        out, metres_per_unit=preset.scene.metres_per_unit, up_axis=preset.scene.up_axis, fps=preset.time.fps,
+        frames=frames, mesh=mesh, look=look, probes=probe_positions, bodies=body_transforms,
+        comment=f"oceanfield {__version__}: preset {preset.name}, frames {frames[0]}-{frames[-1]}, "
+                f"sea mesh {n}x{n} quads over a {preset.tile.size_m:g} m tile",
+    )
+    print(f"scene written to {path}: {len(frames)} frames, a {n}x{n} sea mesh, "
+          f"{len(probes)} probes, {len(bodies)} bodies", file=sys.stderr)
+    if missing:
+        print(f"oceanfield: warning: the material refers to {missing} map files not rendered yet under "
+              f"{maps_root}; render them with `oceanfield render {args.preset} --frames "
+              f"{frames[0]}-{frames[-1]} --out {maps_root}` or add --render-maps", file=sys.stderr)
+    return 0
