@@ -2,7 +2,8 @@
 
 Used from above (``preset``, ``render``, ``analysis``, the command line). It knows
 nothing of physics, synthesis or presets and imports none of them: the writers take named channel
-arrays (see ``oceanfield.surface.maps``) and put them in files.
+arrays (see ``oceanfield.surface.maps``) and put them in files. ``table`` writes CSV/JSON
+tables; ``usd`` (``oceanfield.io.usd``, needs the optional usd-core) writes a USD stage.
 """
 
 from oceanfield.io.atomic import atomic_output, is_temporary, remove_stale_temporaries
@@ -19,6 +20,7 @@ from oceanfield.io.exr import (
 )
 from oceanfield.io.png import read_png16, sidecar_path, write_png16
 from oceanfield.io.records import MissingExtraError, read_frequency_direction, read_table
+from oceanfield.io.table import format_csv, format_json, table_format, write_table
 
 __all__ = [
     "COMPRESSIONS",
@@ -40,4 +42,8 @@ __all__ = [
     "to_pixels",
     "write_exr",
     "write_png16",
+    "format_csv",
+    "format_json",
+    "table_format",
+    "write_table",
 ]

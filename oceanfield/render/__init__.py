@@ -10,14 +10,16 @@ knows nothing of formulas.
 ``plan``      which frames and files a job has, and which are already complete
 ``writing``   one frame's files: encode, then write while the next frame computes
 ``job``       executors, manifest, resume, progress and the ``render`` command
+``shot``      the ``probe``, ``float`` and ``scene`` commands (CSV, JSON, USD)
 ============  ====================================================================
 """
 
 from __future__ import annotations
 
-from . import plan as _plan, writing as _writing, job as _job
+from . import plan as _plan, writing as _writing, job as _job, shot as _shot
 from .plan import *  # noqa: F401,F403  (the names in plan.__all__)
 from .writing import *  # noqa: F401,F403  (the names in writing.__all__)
 from .job import *  # noqa: F401,F403  (the names in job.__all__)
+from .shot import *  # noqa: F401,F403  (the names in shot.__all__)
 
-__all__ = [*_plan.__all__, *_writing.__all__, *_job.__all__]
+__all__ = [*_plan.__all__, *_writing.__all__, *_job.__all__, *_shot.__all__]

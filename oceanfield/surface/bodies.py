@@ -15,7 +15,7 @@ single-degree-of-freedom model
     x'' + 2 ζ ω_n x' + ω_n² x = ω_n² F(t),     ω_n = 2π / natural period,
 
 with F the wave plane's motion, solved as the convolution of F with the model's impulse
-response over a bounded window of the past (until the response has decayed to 1/1000),
+response over a bounded window of the past (until its envelope has decayed to 1/10 000),
 from forcing sampled on a fixed grid of times (multiples of ``step``). The motion at a
 time therefore depends on that time alone, not on which other frames were asked for.
 No surge, sway or yaw, no added mass, no coupling between motions, no hydrodynamic
@@ -43,7 +43,8 @@ __all__ = ["Response", "Body", "BodyMotion", "body_motion", "impulse_response", 
 #: Most waterplane samples along the length and across the beam.
 MAX_SAMPLES_ALONG = 48
 MAX_SAMPLES_ACROSS = 24
-_MEMORY_DECAY = 1e-3  # the response window ends where the impulse response's envelope has decayed to this
+_MEMORY_DECAY = 1e-4  # the window ends where the impulse response's envelope has decayed to this
+# (what it leaves out then integrates to under 1e-3 of the response, critically damped included)
 _STEPS_PER_PERIOD = 40  # forcing samples per natural period (the shortest one given)
 
 
@@ -66,7 +67,7 @@ class Response:
 
     @property
     def memory(self) -> float:
-        """Seconds of the past the response remembers (its envelope decays to 1/1000)."""
+        """Seconds of the past the response remembers (its envelope decays to 1/10 000)."""
         wn = 2.0 * math.pi / self.natural_period
         z = self.damping_ratio
         slowest = wn * z if z <= 1.0 else wn * (z - math.sqrt(z * z - 1.0))

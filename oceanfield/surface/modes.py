@@ -71,7 +71,9 @@ class WaveModes:
 
     @property
     def height_variance(self) -> float:
-        """Variance of the height the modes sum to, Σ |c|²/2, in m²."""
+        """Time-averaged variance of the height the modes sum to, Σ |c|²/2, in m² (at one
+        instant, modes k and −k of the same frequency interfere and the spatial variance
+        differs from it)."""
         return float(np.sum(np.abs(self.height) ** 2) / 2.0)
 
     def select(self, keep: NDArray[np.bool_]) -> "WaveModes":

@@ -1,0 +1,229 @@
+"""The shot commands (render/shot.py, io/usd.py, io/table.py): probes against the maps,
+floating bodies, the USD stage read back, and one-line errors."""
+
+from __future__ import annotations
+
+import json
+import math
+import sys
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from oceanfield.cli import main
+from oceanfield.io.exr import read_exr
+from oceanfield.io.table import format_csv
+from oceanfield.preset.schema import load_preset
+from oceanfield.surface.maps import map_channels, scene_axes
+from oceanfield.surface.synth import Ocean
+
+HALF_EPSILON = 2.0**-11  # relative rounding of a half float (11-bit significand, IEEE 754-2008)
+
+#: Centimetre scene, Y up: the probes must come out in the maps' units and axes.
+SHOT = {"maps": ["displacement", "normal", "foam"], "scene": {"metres_per_unit": 0.01, "up_axis": "y"},
+        "output": {"precision": "half"}}
+
+
+def _texels_that_do_not_fold(preset, t: float, count: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(iy, ix) of texels well away from folds, and their displaced positions in metres."""
+    ocean = Ocean.from_preset(preset, velocity=False, foam_memory=0.0)
+    fields = ocean.frame(t)
+    rng = np.random.default_rng(4)
+    n = preset.tile.resolution
+    iy, ix = rng.integers(0, n, count * 4), rng.integers(0, n, count * 4)
+    keep = fields.jacobian[iy, ix] > 0.5
+    iy, ix = iy[keep][:count], ix[keep][:count]
+    spacing = preset.tile.size_m / n
+    x = ix * spacing + fields.displacement_x[iy, ix].astype(np.float64)
+    y = iy * spacing + fields.displacement_y[iy, ix].astype(np.float64)
+    return np.stack([iy, ix], axis=1), x, y
+
+
+def test_a_probe_at_a_texel_returns_the_maps_values(tmp_path, preset_file, capsys):
+    """Issue check: displacement and normal maps (written as half floats, cm, Y up) at a
+    texel equal the probe above the texel's displaced position, to half-float precision."""
+    path = preset_file(settings=SHOT)
+    maps = tmp_path / "maps"
+    assert main(["render", str(path), "--frames", "1003", "--out", str(maps), "--workers", "1"]) == 0
+    preset = load_preset(path)
+    texels, x, y = _texels_that_do_not_fold(preset, preset.time.frame_time(1003), 12)
+    out = tmp_path / "probes.json"
+    at = [item for i in range(len(x)) for item in ("--at", f"t{i}={float(x[i])!r},{float(y[i])!r}")]
+    assert main(["probe", str(path), "--frames", "1003", "--out", str(out), *at]) == 0
+    records = json.loads(out.read_text())["records"]
+    displacement, _ = read_exr(maps / "tiny" / "displacement.1003.exr")
+    normal, _ = read_exr(maps / "tiny" / "normal.1003.exr")
+    spacing = preset.tile.size_m / preset.tile.resolution
+    worst_d = worst_n = 0.0
+    for record, (iy, ix) in zip(records, texels):
+        assert record["rest_x_m"] == pytest.approx(ix * spacing, abs=1e-5)
+        assert record["rest_y_m"] == pytest.approx(iy * spacing, abs=1e-5)
+        for axis, channel in zip("XYZ", "RGB"):
+            on_map = float(displacement[channel][iy, ix])
+            got = record[f"displacement_{axis}_cm"]
+            assert abs(got - on_map) <= HALF_EPSILON * abs(on_map) + 1e-4
+            worst_d = max(worst_d, abs(got - on_map) / max(abs(on_map), 1e-3))
+            on_map = float(normal[channel][iy, ix])
+            assert abs(record[f"normal_{axis}"] - on_map) <= HALF_EPSILON * abs(on_map) + 1e-6
+            worst_n = max(worst_n, abs(record[f"normal_{axis}"] - on_map))
+        assert record["residual_m"] < 1e-3
+        # the position is the probe's own horizontal position, with the height, in cm and Y up
+        assert record["position_X_cm"] == pytest.approx(record["at_x_m"] * 100, rel=1e-12)
+        assert record["position_Z_cm"] == pytest.approx(-record["at_y_m"] * 100, rel=1e-12)
+        assert record["position_Y_cm"] == record["height_cm"] == record["displacement_Y_cm"]
+    print(f"worst relative displacement difference {worst_d:.2e}, worst normal difference {worst_n:.2e}")
+
+
+def test_probe_csv_names_every_column_with_its_unit(preset_file, capsys):
+    path = preset_file(settings=SHOT)
+    assert main(["probe", str(path), "--frames", "1001-1002", "--at", "3,4", "--at", "buoy=-10,500"]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    header = lines[0].split(",")
+    assert header[:5] == ["frame", "time_s", "probe", "at_x_m", "at_y_m"]
+    assert "height_cm" in header and "velocity_Y_cmps" in header and "residual_m" in header
+    assert len(lines) == 1 + 2 * 2
+    assert lines[2].split(",")[2] == "buoy"
+
+
+def test_scene_units_positions_land_where_tile_metres_do(preset_file, capsys):
+    path = preset_file(settings=SHOT)
+    assert main(["probe", str(path), "--frames", "1001", "--at", "3,4", "--json"]) == 0
+    metres = json.loads(capsys.readouterr().out)["records"][0]
+    # Y up: scene (X, Z) = (x, −y), in cm
+    assert main(["probe", str(path), "--frames", "1001", "--at", "300,-400", "--scene-units", "--json"]) == 0
+    scene = json.loads(capsys.readouterr().out)["records"][0]
+    assert scene["at_x_m"] == pytest.approx(3.0) and scene["at_y_m"] == pytest.approx(4.0)
+    assert scene["height_cm"] == pytest.approx(metres["height_cm"], abs=1e-9)
+
+
+def test_float_writes_position_and_rotation_in_scene_axes(tmp_path, preset_file):
+    path = preset_file(settings=SHOT)
+    out = tmp_path / "boat.csv"
+    body = "name=boat,x_m=20,y_m=30,length_m=12,beam_m=4,heading_deg=30,roll_period_s=5,roll_damping=0.1"
+    assert main(["float", str(path), "--frames", "1001-1003", "--body", body, "--out", str(out)]) == 0
+    lines = out.read_text().splitlines()
+    header = lines[0].split(",")
+    row = dict(zip(header, lines[1].split(",")))
+    assert row["body"] == "boat" and float(row["position_X_cm"]) == pytest.approx(2000.0)
+    assert float(row["position_Z_cm"]) == pytest.approx(-3000.0)
+    q = np.array([float(row[f"orientation_{a}"]) for a in "wXYZ"])
+    assert np.linalg.norm(q) == pytest.approx(1.0, abs=1e-12)
+
+
+@pytest.fixture
+def usd():
+    return pytest.importorskip("pxr", reason="usd-core is in the test extra; install it with pip install '.[test]'")
+
+
+def test_the_usd_stage_reads_back(tmp_path, preset_file, capsys, usd):
+    """Issue check: metadata, time codes, point counts, the points of a frame equal the
+    displaced grid sampled from the maps, transforms equal the probe and float output."""
+    from pxr import Sdf, Usd, UsdGeom, UsdShade
+
+    path = preset_file(settings=SHOT)
+    maps = tmp_path / "renders"
+    stage_path = tmp_path / "shot" / "shot.usda"
+    body = "name=boat,x_m=20,y_m=30,length_m=12,beam_m=4,heading_deg=30"
+    assert main(["scene", str(path), "--frames", "1001-1003", "--out", str(stage_path), "--maps", str(maps),
+                 "--render-maps", "--mesh-resolution", "16", "--at", "buoy=5,6", "--body", body]) == 0
+    stage = Usd.Stage.Open(str(stage_path))
+    assert UsdGeom.GetStageMetersPerUnit(stage) == pytest.approx(0.01)
+    assert UsdGeom.GetStageUpAxis(stage) == UsdGeom.Tokens.y
+    assert stage.GetTimeCodesPerSecond() == 24.0 and stage.GetFramesPerSecond() == 24.0
+    assert (stage.GetStartTimeCode(), stage.GetEndTimeCode()) == (1001.0, 1003.0)
+    mesh = UsdGeom.Mesh(stage.GetPrimAtPath("/Shot/Sea"))
+    assert mesh.GetPointsAttr().GetTimeSamples() == [1001.0, 1002.0, 1003.0]
+    points = np.array(mesh.GetPointsAttr().Get(1002.0))
+    assert points.shape == (17 * 17, 3) and len(mesh.GetFaceVertexCountsAttr().Get()) == 16 * 16
+
+    # the displaced grid from the maps: every 4th texel of the 64² half-float map, cm, Y up
+    preset = load_preset(path)
+    displacement, _ = read_exr(maps / "tiny" / "displacement.1002.exr")
+    grid = np.stack([displacement[c][::4, ::4] for c in "RGB"], axis=-1)
+    grid = np.pad(grid, ((0, 1), (0, 1), (0, 0)), mode="wrap")
+    spacing = preset.tile.size_m / 16
+    index = np.arange(17) * spacing
+    rest = np.stack(np.broadcast_arrays(index[None, :], 0.0 * index[:, None], -index[:, None]), axis=-1) * 100
+    expected = (rest + grid).reshape(-1, 3)
+    assert np.max(np.abs(points - expected)) <= HALF_EPSILON * np.max(np.abs(expected)) + 1e-3
+
+    # the material's foam texture follows the frames and resolves to the rendered files
+    foam = UsdShade.Shader(stage.GetPrimAtPath("/Shot/Looks/SeaMaterial/FoamTexture"))
+    files = foam.GetInput("file").GetAttr()
+    assert files.GetTimeSamples() == [1001.0, 1002.0, 1003.0]
+    resolved = Path(stage.GetRootLayer().ComputeAbsolutePath(files.Get(1002.0).path))
+    assert resolved == (maps / "tiny" / "foam.1002.exr").resolve() and resolved.is_file()
+    assert UsdShade.MaterialBindingAPI(mesh.GetPrim()).ComputeBoundMaterial()[0].GetPath() == \
+        Sdf.Path("/Shot/Looks/SeaMaterial")
+
+    # transforms equal the probe and float commands' output
+    out = tmp_path / "buoy.json"
+    assert main(["probe", str(path), "--frames", "1001-1003", "--at", "buoy=5,6", "--out", str(out)]) == 0
+    buoy = UsdGeom.Xformable(stage.GetPrimAtPath("/Shot/Probes/buoy"))
+    for record in json.loads(out.read_text())["records"]:
+        moved = buoy.ComputeLocalToWorldTransform(record["frame"]).ExtractTranslation()
+        assert list(moved) == pytest.approx([record[f"position_{a}_cm"] for a in "XYZ"], abs=1e-9)
+    out = tmp_path / "boat.json"
+    assert main(["float", str(path), "--frames", "1001-1003", "--body", body, "--out", str(out)]) == 0
+    boat = UsdGeom.Xformable(stage.GetPrimAtPath("/Shot/Bodies/boat"))
+    for record in json.loads(out.read_text())["records"]:
+        matrix = boat.ComputeLocalToWorldTransform(record["frame"])
+        assert list(matrix.ExtractTranslation()) == pytest.approx([record[f"position_{a}_cm"] for a in "XYZ"], abs=1e-9)
+        q = matrix.ExtractRotationQuat()
+        got = np.array([q.GetReal(), *q.GetImaginary()])
+        want = np.array([record[f"orientation_{a}"] for a in "wXYZ"])
+        assert min(np.abs(got - want).max(), np.abs(got + want).max()) < 1e-9
+
+
+def test_scene_axes_are_the_maps_axes():
+    fields = Ocean.from_preset(load_preset("moderate_breeze", overrides=("tile.resolution=32",))).frame(1.0)
+    for up in ("y", "z"):
+        channels = map_channels(fields, "displacement", up_axis=up)
+        internal = np.stack([fields.displacement_x, fields.displacement_y, fields.height], axis=-1)
+        mapped = internal @ scene_axes(up).T
+        for index, channel in enumerate("RGB"):
+            assert np.array_equal(mapped[..., index].astype(np.float32), channels[channel])
+
+
+@pytest.mark.parametrize(
+    "arguments, needle",
+    [
+        (["probe", "{preset}", "--at", "1e6,0", "--out", "{out}.csv"], "--at"),
+        (["probe", "{preset}", "--at", "nan,0", "--out", "{out}.csv"], "finite"),
+        (["probe", "{preset}", "--at", "3", "--out", "{out}.csv"], "X,Y"),
+        (["probe", "{preset}", "--at", "3,4", "--frames", "1005-1001", "--out", "{out}.csv"], "backwards"),
+        (["probe", "{preset}", "--at", "3,4", "--out", "{out}.txt"], ".csv or .json"),
+        (["float", "{preset}", "--body", "x_m=0,y_m=0,length_m=0,beam_m=2", "--out", "{out}.csv"], "length_m"),
+        (["float", "{preset}", "--body", "x_m=0,y_m=0,length_m=5", "--out", "{out}.csv"], "beam_m"),
+        (["float", "{preset}", "--body", "x_m=0,y_m=0,length_m=5,beam_m=2,roll_period_s=4", "--out", "{out}.csv"],
+         "roll_damping"),
+        (["float", "{preset}", "--body", "x_m=0,y_m=0,length_m=5,beam_m=2,lenght_m=3", "--out", "{out}.csv"],
+         "did you mean length_m"),
+        (["scene", "{preset}", "--out", "{out}.usda", "--mesh-resolution", "7"], "--mesh-resolution"),
+        (["scene", "{preset}", "--out", "{out}.abc"], ".usda"),
+    ],
+)
+def test_bad_input_is_one_line_and_exit_2_with_no_file(tmp_path, preset_file, capsys, arguments, needle):
+    path = preset_file(settings=SHOT)
+    out = tmp_path / "out"
+    argv = [a.format(preset=path, out=out) for a in arguments]
+    assert main(argv) == 2
+    error = capsys.readouterr().err.strip().splitlines()
+    assert len(error) == 1 and needle in error[0], error
+    assert [p.name for p in tmp_path.iterdir()] == [path.name]
+
+
+def test_usd_core_missing_is_one_line_naming_the_extra(tmp_path, preset_file, capsys, monkeypatch):
+    monkeypatch.setitem(sys.modules, "pxr", None)  # import pxr now raises ImportError
+    path = preset_file(settings=SHOT)
+    assert main(["scene", str(path), "--out", str(tmp_path / "shot.usda")]) == 2
+    error = capsys.readouterr().err.strip().splitlines()
+    assert len(error) == 1 and "pip install 'oceanfield[usd]'" in error[0]
+    assert not (tmp_path / "shot.usda").exists()
+
+
+def test_csv_cells_keep_full_precision():
+    text = format_csv(["a_m", "name"], [[1.0 / 3.0, "x"], [float("nan"), "y"]])
+    assert text.splitlines() == ["a_m,name", "0.3333333333333333,x", ",y"]
+    assert math.isnan(float("nan"))
