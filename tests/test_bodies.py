@@ -97,7 +97,7 @@ def test_the_damped_heave_of_a_steady_wave_has_the_textbook_gain():
 
 def test_a_damped_motion_depends_on_its_time_alone():
     ocean = Ocean(SeaState((wind_sea(8.0),)), Tile(100.0, 32), seed=4)
-    body = Body(5.0, 5.0, 6.0, 2.0, roll=Response(4.0, 0.1), heave=Response(3.0, 0.3))
+    body = Body(5.0, 5.0, 6.0, 2.0, roll=Response(4.0, 0.3), heave=Response(3.0, 0.5))
     together = body_motion(ocean.modes(), body, [10.0, 10.5, 11.0], spacing=1.0)
     alone = body_motion(ocean.modes(), body, [10.5], spacing=1.0)
     assert alone.roll[0] == together.roll[1] and alone.heave[0] == together.heave[1]

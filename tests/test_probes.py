@@ -56,6 +56,19 @@ def test_the_inverted_point_lands_on_the_probe(ocean):
     assert np.max(np.abs(landed[:, 2] - points.position[:, 2])) < 1e-9
 
 
+@pytest.mark.parametrize("steepness", [1.2, 1.5, 3.0])
+def test_the_inversion_crosses_the_folds_of_an_overturned_wave(steepness):
+    """λkA > 1 folds a single wave (DESIGN: the Gerstner cusp at kA = 1): several layers
+    land on some points and Newton stalls at the fold's edge; the relaxed steps must still
+    reach a layer that lands on every target."""
+    k, amplitude = 2 * math.pi / 50.0, 2.0
+    lam = steepness / (k * amplitude)
+    modes = WaveModes([k], [0.0], [math.sqrt(9.81 * k)], [amplitude], [1j * lam * amplitude], [0.0])
+    x = np.linspace(0.0, 50.0, 401)
+    points = surface_at(modes, x, 0.0, 0.0, tolerance=1e-9)
+    assert points.residual.max() < 1e-8
+
+
 def test_probes_repeat_with_the_tile(ocean):
     modes = ocean.modes()
     here = surface_at(modes, 13.0, 170.0, 4.0)

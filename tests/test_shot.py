@@ -100,7 +100,7 @@ def test_scene_units_positions_land_where_tile_metres_do(preset_file, capsys):
 def test_float_writes_position_and_rotation_in_scene_axes(tmp_path, preset_file):
     path = preset_file(settings=SHOT)
     out = tmp_path / "boat.csv"
-    body = "name=boat,x_m=20,y_m=30,length_m=12,beam_m=4,heading_deg=30,roll_period_s=5,roll_damping=0.1"
+    body = "name=boat,x_m=20,y_m=30,length_m=12,beam_m=4,heading_deg=30,roll_period_s=5,roll_damping=0.3"
     assert main(["float", str(path), "--frames", "1001-1003", "--body", body, "--out", str(out)]) == 0
     lines = out.read_text().splitlines()
     header = lines[0].split(",")

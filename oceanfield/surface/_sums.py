@@ -7,8 +7,12 @@ displacement, their first derivatives in x and y, and their time derivatives, as
 sums Re Σ c·e^{iφ} with φ = kx·x + ky·y − ω·t. With ``invert`` it first finds the rest
 position x0 whose displaced position x0 + D(x0) lands on (x, y): Newton's method on
 F(x0) = x0 + D(x0) − X (the 2×2 Jacobian of the lateral map comes with the sum), each
-step halved until the residual |F| falls, and a plain fixed-point step x0 ← X − D(x0)
-where Newton cannot make progress (a fold, where the Jacobian is near singular). Points
+step halved until the residual |F| falls, and relaxed fixed-point steps x0 ← x0 − μ·F
+where Newton cannot make progress (at a fold, where the lateral map turns back): they walk
+over the fold, with μ doubling on each such step in a row (|F| is small near a fold), to
+a layer of the surface that lands on the target. Where the surface folds, several layers
+land on one point; the inversion returns one of them, and its residual says whether it
+got there. Points
 are independent, so the loop over them runs in parallel; each sum is one pass over the
 modes with one sine and cosine each. `surface_point_reference` is the same by numpy.
 """
@@ -33,6 +37,9 @@ OUTPUT_COLUMNS = (
 
 _SINGULAR = 1e-3  # |det| of the lateral map's Jacobian below which Newton is not tried
 _HALVINGS = 8
+_UNFOLDED = 0.25  # det of the lateral map above which Newton is tried again after a fold
+_RELAXATION = 0.25  # first μ of the relaxed fixed-point step (converges where |∇D| < 2/μ − 1 = 7)
+_MAX_RELAXATION = 16.0  # μ doubles on each relaxed step in a row, up to this
 
 
 @numba.njit(cache=True, fastmath=False)
@@ -89,15 +96,23 @@ def surface_point_kernel(kx, ky, omega, a, bx, by, x, y, t, invert, tolerance, m
             fx = x0 + v[0] - X
             fy = y0 + v[1] - Y
             residual = math.sqrt(fx * fx + fy * fy)
+            folded = False
+            stuck = 0.0
+            folds = 0
+            relax = _RELAXATION
             while residual > tolerance and iterations < max_iterations:
                 iterations += 1
+                if folded and folds < 2 and residual < 0.5 * stuck:
+                    folded = False  # past the fold: free Newton again (twice at most, no cycling)
                 m11 = 1.0 + v[3]
                 m12 = v[4]
                 m21 = v[5]
                 m22 = 1.0 + v[6]
                 det = m11 * m22 - m12 * m21
                 accepted = False
-                if abs(det) > _SINGULAR:
+                # After a fold, Newton only where the lateral map clearly does not fold
+                # (else it falls back into the fold's middle layer).
+                if det > (_UNFOLDED if folded else _SINGULAR) or (not folded and det < -_SINGULAR):
                     sx = -(m22 * fx - m12 * fy) / det
                     sy = -(-m21 * fx + m11 * fy) / det
                     step = 1.0
@@ -111,11 +126,20 @@ def surface_point_kernel(kx, ky, omega, a, bx, by, x, y, t, invert, tolerance, m
                         if r < residual:
                             x0, y0, v, fx, fy, residual = nx0, ny0, w, gx, gy, r
                             accepted = True
+                            relax = _RELAXATION
                             break
                         step *= 0.5
-                if not accepted:  # a fold: fall back on the fixed-point step
-                    x0 = X - v[0]
-                    y0 = Y - v[1]
+                if not accepted:
+                    if not folded:
+                        stuck = residual
+                        folds += 1
+                    folded = True
+                    # Stuck at a fold (Newton cannot lower the residual): walk on with the
+                    # relaxed fixed-point step x0 ← x0 − μ·F, which passes over the fold to
+                    # a layer of the surface that lands on the target, then Newton again.
+                    x0 = x0 - relax * fx
+                    y0 = y0 - relax * fy
+                    relax = min(2.0 * relax, _MAX_RELAXATION)  # near a fold |F| is small: lengthen the stride
                     v = _sums(kx, ky, omega, a, bx, by, x0, y0, T, False)
                     fx = x0 + v[0] - X
                     fy = y0 + v[1] - Y

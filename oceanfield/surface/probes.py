@@ -5,7 +5,8 @@ arrays out, in internal axes and SI units.
 
 A probe at horizontal position (X, Y) reports the surface point that *lands* there after
 lateral displacement: the rest position x0 with x0 + D(x0, t) = X, found by Newton's
-method with a fixed-point fallback (see ``_sums``), and its residual |x0 + D(x0) − X|.
+method with relaxed fixed-point steps over folds (see ``_sums``), and its residual
+|x0 + D(x0) − X|.
 At x0 the sums give, exactly and without interpolation, the height, the full
 displacement, the slopes and the lateral map's derivatives (hence the displaced
 surface's normal, from the same cross product as the normal map), and the velocity of
@@ -28,7 +29,7 @@ from .modes import WaveModes
 
 __all__ = ["SurfacePoints", "surface_at", "DEFAULT_MAX_ITERATIONS"]
 
-DEFAULT_MAX_ITERATIONS = 60
+DEFAULT_MAX_ITERATIONS = 200
 
 
 @dataclass(frozen=True, eq=False)
