@@ -41,8 +41,8 @@ from .probes import surface_at
 __all__ = ["Response", "Body", "BodyMotion", "body_motion", "impulse_response", "quaternion", "MAX_SAMPLES_ALONG", "MAX_SAMPLES_ACROSS"]
 
 #: Most waterplane samples along the length and across the beam.
-MAX_SAMPLES_ALONG = 24
-MAX_SAMPLES_ACROSS = 12
+MAX_SAMPLES_ALONG = 16
+MAX_SAMPLES_ACROSS = 8
 _MEMORY_DECAY = 1e-4  # the window ends where the impulse response's envelope has decayed to this
 # (what it leaves out then integrates to under 1e-3 of the response, critically damped included)
 _STEPS_PER_PERIOD = 40  # forcing samples per natural period (the shortest one given)
