@@ -20,7 +20,7 @@ from oceanfield.cli import main
 from oceanfield.preset import load_preset
 
 README = Path(__file__).resolve().parents[1] / "README.md"
-_PRESET_COMMANDS = {"stats", "resolve", "preview", "render"}
+_PRESET_COMMANDS = {"stats", "resolve", "preview", "render", "probe", "float", "scene"}
 _SMALL = ["--set", "tile.resolution=64"]
 _FRAMES = "1001-1024"
 
@@ -53,7 +53,7 @@ def test_the_readme_tour_runs_from_top_to_bottom(tmp_path, monkeypatch, capsys):
     monkeypatch.chdir(tmp_path)
     tour = _tour()
     assert [words[0] for words in tour] == [
-        "presets", "stats", "preview", "preview", "resolve", "stats", "render", "analyze"
+        "presets", "stats", "preview", "preview", "resolve", "stats", "render", "analyze", "probe", "float", "scene"
     ], "the tour changed: check that this test still covers each step"
     for words in tour:
         target = None
@@ -73,6 +73,8 @@ def test_the_readme_tour_runs_from_top_to_bottom(tmp_path, monkeypatch, capsys):
     assert Path("renders/swell_under_wind_sea_preview.gif").stat().st_size > 10_000
     assert len(list(Path("renders/my_chop").glob("displacement.*.exr"))) == 24
     assert Path("check.png").stat().st_size > 10_000
+    assert len(Path("hero.csv").read_text().splitlines()) == 1 + 24 and Path("boat.csv").is_file()
+    assert Path("shot.usda").stat().st_size > 10_000
 
 
 def test_resolved_file_can_be_edited_where_the_readme_says(tmp_path, monkeypatch, capsys):

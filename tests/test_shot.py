@@ -56,15 +56,16 @@ def test_a_probe_at_a_texel_returns_the_maps_values(tmp_path, preset_file, capsy
     normal, _ = read_exr(maps / "tiny" / "normal.1003.exr")
     spacing = preset.tile.size_m / preset.tile.resolution
     worst_d = worst_n = 0.0
+    rows = preset.tile.resolution - 1  # file row r holds the tile's texel row N − 1 − r
     for record, (iy, ix) in zip(records, texels):
         assert record["rest_x_m"] == pytest.approx(ix * spacing, abs=1e-5)
         assert record["rest_y_m"] == pytest.approx(iy * spacing, abs=1e-5)
         for axis, channel in zip("XYZ", "RGB"):
-            on_map = float(displacement[channel][iy, ix])
+            on_map = float(displacement[channel][rows - iy, ix])
             got = record[f"displacement_{axis}_cm"]
             assert abs(got - on_map) <= HALF_EPSILON * abs(on_map) + 1e-4
             worst_d = max(worst_d, abs(got - on_map) / max(abs(on_map), 1e-3))
-            on_map = float(normal[channel][iy, ix])
+            on_map = float(normal[channel][rows - iy, ix])
             assert abs(record[f"normal_{axis}"] - on_map) <= HALF_EPSILON * abs(on_map) + 1e-6
             worst_n = max(worst_n, abs(record[f"normal_{axis}"] - on_map))
         assert record["residual_m"] < 1e-3
@@ -140,13 +141,17 @@ def test_the_usd_stage_reads_back(tmp_path, preset_file, capsys, usd):
     # the displaced grid from the maps: every 4th texel of the 64² half-float map, cm, Y up
     preset = load_preset(path)
     displacement, _ = read_exr(maps / "tiny" / "displacement.1002.exr")
-    grid = np.stack([displacement[c][::4, ::4] for c in "RGB"], axis=-1)
+    grid = np.stack([displacement[c][::-1][::4, ::4] for c in "RGB"], axis=-1)  # y = 0 is the bottom row
     grid = np.pad(grid, ((0, 1), (0, 1), (0, 0)), mode="wrap")
     spacing = preset.tile.size_m / 16
     index = np.arange(17) * spacing
     rest = np.stack(np.broadcast_arrays(index[None, :], 0.0 * index[:, None], -index[:, None]), axis=-1) * 100
     expected = (rest + grid).reshape(-1, 3)
     assert np.max(np.abs(points - expected)) <= HALF_EPSILON * np.max(np.abs(expected)) + 1e-3
+
+    # texel centres: u = (x + ½ texel)/L, v = (y + ½ texel)/L (y = 0 in the bottom row)
+    st = np.array(UsdGeom.PrimvarsAPI(mesh.GetPrim()).GetPrimvar("st").Get())
+    assert st[0] == pytest.approx([0.5 / 64, 0.5 / 64]) and st[17 + 1] == pytest.approx([4.5 / 64, 4.5 / 64])
 
     # the material's foam texture follows the frames and resolves to the rendered files
     foam = UsdShade.Shader(stage.GetPrimAtPath("/Shot/Looks/SeaMaterial/FoamTexture"))
@@ -182,8 +187,8 @@ def test_scene_axes_are_the_maps_axes():
         channels = map_channels(fields, "displacement", up_axis=up)
         internal = np.stack([fields.displacement_x, fields.displacement_y, fields.height], axis=-1)
         mapped = internal @ scene_axes(up).T
-        for index, channel in enumerate("RGB"):
-            assert np.array_equal(mapped[..., index].astype(np.float32), channels[channel])
+        for index, channel in enumerate("RGB"):  # channels are in file row order: y = 0 last
+            assert np.array_equal(mapped[::-1, :, index].astype(np.float32), channels[channel])
 
 
 @pytest.mark.parametrize(

@@ -363,7 +363,8 @@ def sea_mesh(preset, ocean, frames: Sequence[int], times: np.ndarray, stride: in
         fields = ocean.frame(float(t))
         for name, target in (("displacement", points), ("normal", normals)):
             channels = map_channels(fields, name, metres_per_unit=scene.metres_per_unit, up_axis=scene.up_axis)
-            vector = np.stack([channels[c][::stride, ::stride] for c in ("R", "G", "B")], axis=-1)
+            # map channels are in file row order (y = 0 last): back to the tile's rows first
+            vector = np.stack([channels[c][::-1][::stride, ::stride] for c in ("R", "G", "B")], axis=-1)
             vector = np.pad(vector, ((0, 1), (0, 1), (0, 0)), mode="wrap")
             target[f] = (vector + (rest_scene if name == "displacement" else 0.0)).reshape(-1, 3)
     quad = (index[:-1, None] * (n + 1) + index[None, :-1]).ravel()
@@ -371,7 +372,7 @@ def sea_mesh(preset, ocean, frames: Sequence[int], times: np.ndarray, stride: in
     indices = np.stack([quad, quad + 1, quad + n + 2, quad + n + 1], axis=-1).ravel().astype(np.int32)
     texels = preset.tile.resolution
     u = rest[..., 0] / size + 0.5 / texels
-    v = 1.0 - rest[..., 1] / size - 0.5 / texels
+    v = rest[..., 1] / size + 0.5 / texels  # the maps put y = 0 in the image's bottom row
     st = np.stack([u, v], axis=-1).reshape(-1, 2).astype(np.float32)
     return SeaMesh(np.full(n * n, 4, dtype=np.int32), indices, st, points, normals)
 
