@@ -18,6 +18,7 @@ from scipy import stats
 
 import oceanfield.surface.synth as synth
 from oceanfield.surface import _kernels
+from oceanfield.surface.amplitudes import cell_variance
 from oceanfield import Ocean, SeaState, Tile, height_period, wind_sea
 from oceanfield.physics.dispersion import angular_frequency, phase_velocity, wavenumber
 
@@ -54,11 +55,12 @@ def _as64(array) -> np.ndarray:
 
 
 def _lattice_psi(sea: SeaState, tile: Tile) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Ψ(k)Δk² on the carried lattice (the expected variance per wave index), kx and ky."""
+    """∫ Ψ over each lattice cell on the carried lattice (the expected variance per wave
+    index, DESIGN.md "Amplitudes"), kx and ky."""
     ny, nx = tile.wave_indices()
     ky, kx = tile.wavenumbers()
     carried = tile.carried(ny, nx)
-    psi = np.where(carried, sea.directional_spectrum(kx, ky), 0.0) * tile.dk**2
+    psi = np.where(carried, cell_variance(sea, tile.dk, ny, nx), 0.0)
     return psi, np.broadcast_to(kx, psi.shape), np.broadcast_to(ky, psi.shape)
 
 
@@ -242,7 +244,7 @@ def test_mean_field_variance_equals_lattice_variance():
     tile = Tile(8 * sea.statistics().peak_wavelength, 64)
     variances = []
     for seed in range(60):
-        ocean = Ocean(sea, tile, seed=seed, lateral_factor=0.0)
+        ocean = Ocean(sea, tile, seed=seed, lateral_factor=0.0, wave_heights="random")
         variances.append(_as64(ocean.frame(3.0).height).var())
     variances = np.array(variances)
     expected = ocean.lattice_variance
@@ -855,8 +857,9 @@ def test_lingering_foam_is_the_largest_decayed_past_foam():
     e^{−jΔ/M}·clip((threshold − J(t − jΔ))/ramp, 0, 1), Δ = 3M/S: recomputed here from
     frames of an Ocean without memory at the past instants (float32 tolerance)."""
     tile = Tile(200.0, 64)
-    plain = Ocean(_folding_sea(), tile, seed=2, lateral_factor=2.5)
-    lingering = Ocean(_folding_sea(), tile, seed=2, lateral_factor=2.5, foam_memory=2.0, foam_samples=6)
+    plain = Ocean(_folding_sea(), tile, seed=2, lateral_factor=2.5, fold_threshold=0.3)
+    lingering = Ocean(_folding_sea(), tile, seed=2, lateral_factor=2.5, fold_threshold=0.3, foam_memory=2.0,
+                      foam_samples=6)
     t = 10.0
     step = 3.0 * 2.0 / 6
     expected = plain.frame(t).foam.astype(np.float64)

@@ -11,22 +11,26 @@ lattices, tiles, frames or files: every function is a published formula on numpy
 ``spreading``   directional distributions D(θ; ω); registry ``SPREADING``
 ``seastate``    ``Component`` and ``SeaState``: a sea from wind, Hs/Tp or Beaufort
 ``measured``    ``MeasuredComponent``: a sea from a wave record (spectrum, directional moments)
+``whitecaps``   whitecap coverage against wind speed (Monahan & O'Muircheartaigh 1980)
 ==============  ===================================================================
 """
 
 from __future__ import annotations
 
 from . import constants as _constants, dispersion as _dispersion, spectra as _spectra, spreading as _spreading, seastate as _seastate, measured as _measured
+from . import whitecaps as _whitecaps
 from .constants import *  # noqa: F401,F403  (the names in constants.__all__)
 from .dispersion import *  # noqa: F401,F403  (the names in dispersion.__all__)
 from .spectra import *  # noqa: F401,F403  (the names in spectra.__all__)
 from .spreading import *  # noqa: F401,F403  (the names in spreading.__all__)
 from .seastate import *  # noqa: F401,F403  (the names in seastate.__all__)
 from .measured import *  # noqa: F401,F403  (the names in measured.__all__)
+from .whitecaps import *  # noqa: F401,F403  (the names in whitecaps.__all__)
 
 spreading = _spreading  # the module; its entry point of the same name is spreading.spreading
 
 __all__ = [
     *_constants.__all__, *_dispersion.__all__, *_spectra.__all__,
     *(name for name in _spreading.__all__ if name != "spreading"), *_seastate.__all__, *_measured.__all__,
+    *_whitecaps.__all__,
 ]

@@ -48,6 +48,7 @@ from ._yamltree import (
     valid,
 )
 from ..physics.constants import GRAVITY, SEAWATER_DENSITY
+from ..surface.amplitudes import WAVE_HEIGHTS
 from ..surface.maps import MAPS, UP_AXES
 from ..physics.seastate import Component, SeaState, beaufort_sea, height_period, wind_sea
 from ..physics.spectra import JONSWAP_GAMMA, SPECTRA
@@ -143,20 +144,24 @@ class SeaSettings:
 
 @dataclass(frozen=True)
 class TileSettings:
-    """The square periodic patch: side in metres, texels per side."""
+    """The square periodic patch: side in metres, texels per side, and whether its wave
+    heights are rescaled to the requested variance (``as_requested``) or left ``random``."""
 
     size_m: float
     resolution: int
+    wave_heights: str = "as_requested"
 
 
 @dataclass(frozen=True)
 class SurfaceSettings:
-    """Lateral displacement scale (0 = height only), the Jacobian below which foam forms,
-    and how long foam lingers after the surface stops folding (0 = not at all)."""
+    """Lateral displacement scale (0 = height only), the Jacobian below which foam forms
+    (None: set from the wind's whitecap coverage, times ``whitecap_scale``), and how long
+    foam lingers after the surface stops folding (0 = not at all)."""
 
     lateral_factor: float
-    fold_threshold: float
+    fold_threshold: float | None
     foam_memory_s: float = 0.0
+    whitecap_scale: float = 1.0
 
 
 @dataclass(frozen=True)
@@ -726,14 +731,20 @@ def _read_tile(sec: Section) -> TileSettings:
     resolution = sec.number("resolution", 512, low=16, high=16384, whole=True)
     if valid(resolution) and resolution % 2:
         resolution = sec.fail("resolution", f"`{resolution}` is odd (allowed: an even whole number)")
-    return TileSettings(size, resolution)
+    heights = sec.choice("wave_heights", "as_requested", WAVE_HEIGHTS)
+    return TileSettings(size, resolution, heights)
 
 
 def _read_surface(sec: Section) -> SurfaceSettings:
     lateral = sec.number("lateral_factor", 1.0, low=0.0, high=5.0)
-    threshold = sec.number("fold_threshold", 0.3, low=-1.0, high=1.0)
+    threshold = sec.number("fold_threshold", None, low=-1.0, high=1.0, optional=True)
     memory = sec.number("foam_memory_s", 0.0, low=0.0, high=60.0)
-    return SurfaceSettings(lateral, threshold, memory)
+    scale = sec.number("whitecap_scale", 1.0, low=0.0, high=10.0)
+    if valid(threshold, scale) and threshold is not None and scale != 1.0:
+        scale = sec.fail(
+            "whitecap_scale", f"`{scale:g}` has no effect with a fold_threshold set (allowed: 1, or fold_threshold null)"
+        )
+    return SurfaceSettings(lateral, threshold, memory, scale)
 
 
 def _read_maps(top: Section) -> Any:

@@ -22,8 +22,10 @@ from typing import TYPE_CHECKING
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
+from . import amplitudes, whitecaps
 from .fields import Fields
 from ..physics.seastate import SeaState
+from ..physics.whitecaps import sea_whitecap_coverage
 from .tile import Tile
 
 if TYPE_CHECKING:
@@ -122,8 +124,11 @@ class Ocean:
     loop_period : float or None
         If given (seconds), every frequency is rounded to a multiple of 2π/T so that
         ``frame(t + T)`` equals ``frame(t)``.
-    fold_threshold : float
-        Jacobian at which foam begins.
+    fold_threshold : float or None
+        Jacobian at which foam begins. None (the default): set from the wind, so that the
+        share of the surface with foam above ½ is the whitecap coverage W(U10) of
+        Monahan & O'Muircheartaigh (1980) times ``whitecap_scale`` (see
+        :mod:`oceanfield.surface.whitecaps`); no foam without a wind-driven component.
     foam_ramp : float
         Jacobian drop below ``fold_threshold`` over which foam rises from 0 to 1.
     foam_memory : float
@@ -134,6 +139,13 @@ class Ocean:
         costs about half a frame (two transforms).
     foam_samples : int
         Past instants sampled when ``foam_memory`` > 0 (1 to 64).
+    whitecap_scale : float
+        Factor on the wind's whitecap coverage when ``fold_threshold`` is None (0 to 10).
+    wave_heights : str
+        ``as_requested`` (default): each half-octave annulus of wavenumbers holds exactly its
+        expected variance, so the tile's Hs is the one asked for whatever the seed;
+        ``random``: freely drawn (Rayleigh) amplitudes, whose tile Hs varies from seed to
+        seed (see :mod:`oceanfield.surface.amplitudes`).
     velocity : bool
         Also compute the surface velocity (two more transforms a frame).
     fft_workers : int or None
@@ -155,12 +167,14 @@ class Ocean:
         seed: int = 0,
         lateral_factor: float = 1.0,
         loop_period: float | None = None,
-        fold_threshold: float = 0.3,
+        fold_threshold: float | None = None,
         foam_ramp: float = 0.3,
         foam_memory: float = 0.0,
         foam_samples: int = 8,
         velocity: bool = False,
         fft_workers: int | None = None,
+        whitecap_scale: float = 1.0,
+        wave_heights: str = "as_requested",
     ) -> None:
         if not isinstance(sea_state, SeaState):
             raise ValueError(f"sea_state: {type(sea_state).__name__} is not allowed; allowed: a SeaState")
@@ -169,7 +183,13 @@ class Ocean:
         if isinstance(seed, bool) or not isinstance(seed, (int, np.integer)) or not 0 <= seed < 2**63:
             raise ValueError(f"seed: {seed!r} is not allowed; allowed: an integer from 0 to 2**63 - 1")
         _check_finite("lateral_factor", lateral_factor, low=0.0)
-        _check_finite("fold_threshold", fold_threshold, low=-1e6)
+        if fold_threshold is not None:
+            _check_finite("fold_threshold", fold_threshold, low=-1e6)
+        _check_finite("whitecap_scale", whitecap_scale, low=0.0)
+        if wave_heights not in amplitudes.WAVE_HEIGHTS:
+            raise ValueError(
+                f"wave_heights: {wave_heights!r} is not allowed; allowed: {', '.join(amplitudes.WAVE_HEIGHTS)}"
+            )
         _check_finite("foam_ramp", foam_ramp, low=0.0, low_open=True)
         _check_finite("foam_memory", foam_memory, low=0.0)
         if isinstance(foam_samples, bool) or not isinstance(foam_samples, (int, np.integer)) or not 1 <= foam_samples <= 64:
@@ -183,7 +203,8 @@ class Ocean:
         self.seed = int(seed)
         self.lateral_factor = float(lateral_factor)
         self.loop_period = None if loop_period is None else float(loop_period)
-        self.fold_threshold = float(fold_threshold)
+        self.wave_heights = wave_heights
+        self.whitecap_scale = float(whitecap_scale)
         self.foam_ramp = float(foam_ramp)
         self.foam_memory = float(foam_memory)
         self.foam_samples = int(foam_samples)
@@ -191,6 +212,7 @@ class Ocean:
         self.fft_workers = fft_workers if fft_workers is not None else (os.cpu_count() or 1)
         self._check_memory()
         self._h0, self._omega, self.lattice_variance, self.loop_info, used = self._build()
+        self.whitecap_coverage, self.fold_threshold = self._foam_threshold(fold_threshold)
         # Rotations are needed only for the q = nx² + ny² that carry energy: slot 0 stands
         # for all others (their amplitudes are zero), slots 1… for the used ones.
         used = np.flatnonzero(used)
@@ -223,6 +245,8 @@ class Ocean:
             lateral_factor=preset.surface.lateral_factor,
             loop_period=preset.time.loop_period_s,
             fold_threshold=preset.surface.fold_threshold,
+            whitecap_scale=preset.surface.whitecap_scale,
+            wave_heights=preset.tile.wave_heights,
             foam_memory=preset.surface.foam_memory_s if foam_memory is None else foam_memory,
             velocity=("velocity" in preset.maps) if velocity is None else velocity,
             fft_workers=fft_workers,
@@ -248,20 +272,36 @@ class Ocean:
         n = tile.resolution
         half = n // 2
         h0 = np.empty((n, n), dtype=np.complex64)
-        area = tile.dk**2
-        variance = 0.0
+        width = amplitudes.feature_width(sea)
+        annuli = int(amplitudes.annulus_index(2 * half * half)) + 1  # corners of the square too
+        target = np.zeros(annuli)
+        realised = np.zeros(annuli)
         used = np.zeros(half * half + 1, dtype=bool)
         for start in range(0, n, _BLOCK_ROWS):
             rows = slice(start, min(start + _BLOCK_ROWS, n))
             ny, nx = tile.wave_indices(rows)
-            ky, kx = tile.wavenumbers(rows)
             carried = tile.carried(ny, nx)
-            psi = np.where(carried, sea.directional_spectrum(kx, ky), 0.0)
-            variance += float(psi.sum()) * area
-            # E|h0|² = Ψ Δk² / 2 (DESIGN convention), with E|ξ|² = 1.
-            h0[rows] = amplitude_noise(self.seed, ny, nx) * np.sqrt(psi * area / 2.0)
-            q = np.broadcast_to(nx * nx + ny * ny, psi.shape)
-            used[q[psi > 0]] = True
+            # E|h0|² = (∫ over the cell Ψ dk)/2 (DESIGN convention), with E|ξ|² = 1.
+            cell = np.where(carried, amplitudes.cell_variance(sea, tile.dk, ny, nx, width=width), 0.0)
+            block = amplitude_noise(self.seed, ny, nx) * np.sqrt(cell / 2.0)
+            q = np.broadcast_to(nx * nx + ny * ny, cell.shape)
+            ring = amplitudes.annulus_index(q)
+            target += np.bincount(ring.ravel(), cell.ravel(), minlength=annuli)
+            realised += np.bincount(ring.ravel(), 2.0 * np.abs(block.ravel()) ** 2, minlength=annuli)
+            h0[rows] = block
+            used[q[cell > 0]] = True
+        if self.wave_heights == "as_requested":
+            scale = amplitudes.annulus_scale(realised, target)
+            realised_sum = 0.0
+            for start in range(0, n, _BLOCK_ROWS):
+                rows = slice(start, min(start + _BLOCK_ROWS, n))
+                ny, nx = tile.wave_indices(rows)
+                h0[rows] *= scale[amplitudes.annulus_index(nx * nx + ny * ny)].astype(np.float32)
+                realised_sum += 2.0 * float(np.sum(np.abs(h0[rows].astype(np.complex128)) ** 2))
+        else:
+            realised_sum = float(realised.sum())
+        variance = float(target.sum())
+        self.realised_variance = realised_sum
         # ω depends on |k| alone: one value per q = nx² + ny² ≤ (N/2)².
         omega = sea.angular_frequency(np.sqrt(np.arange(half * half + 1, dtype=np.float64)) * tile.dk)
         info = None
@@ -277,6 +317,20 @@ class Ocean:
             )
             omega = quantised
         return h0, omega, variance, info, used
+
+    def _foam_threshold(self, explicit: float | None) -> tuple[float | None, float]:
+        """(target whitecap share or None, fold threshold): an explicit threshold as given,
+        else the one that foams the wind's whitecap coverage (see ``whitecaps``)."""
+        if explicit is not None:
+            return None, float(explicit)
+        share = min(sea_whitecap_coverage(self.sea_state) * self.whitecap_scale, 1.0)
+        cov = whitecaps.jacobian_covariance(self._h0, self.tile.dk, self.lateral_factor)
+        return share, whitecaps.fold_threshold_for_coverage(cov, share, self.foam_ramp)
+
+    @property
+    def realised_hs(self) -> float:
+        """Significant wave height 4√(Σ 2|h0|²) the tile holds (time-averaged variance), m."""
+        return 4.0 * math.sqrt(self.realised_variance)
 
     # -- frames ------------------------------------------------------------------------
     def new_buffer(self) -> NDArray[np.complex64]:
