@@ -115,7 +115,7 @@ def build_parser() -> argparse.ArgumentParser:
     scene.add_argument("--render-maps", action="store_true", help="render the map sequences into --maps first")
     _add_shot_arguments(scene, table=False)
 
-    analyze = commands.add_parser("analyze", help="measure a height sequence's spectrum, statistics and wave timing")
+    analyze = commands.add_parser("analyze", help="measure a height sequence's spectrum, statistics and wave timing; of a foam sequence, its foam coverage")
     analyze.add_argument("sequence", help="a folder of frames, a glob, or a pattern with #### for the frame number")
     analyze.add_argument("--tile-size", type=float, default=None, metavar="METRES",
                          help="side of the area the frames cover (default: from oceanfield's EXR header)")

@@ -11,15 +11,17 @@ nothing of synthesis: it never imports ``surface``.
 ``reliability``  which figures a clip's length or tile cannot support, and the clip that would
 ``verdict``      the text verdict and the ``oceanfield analyze`` command
 ``plot``         the report picture (matplotlib, loaded on first use)
+``foam``         the measured foam coverage of a foam sequence
 ===============  ====================================================================
 """
 
 from __future__ import annotations
 
-from . import measure as _measure, reliability as _reliability, timing as _timing, verdict as _verdict
+from . import measure as _measure, reliability as _reliability, timing as _timing, verdict as _verdict, foam as _foam
 from .measure import *  # noqa: F401,F403  (the names in measure.__all__)
 from .reliability import *  # noqa: F401,F403  (the names in reliability.__all__)
 from .timing import *  # noqa: F401,F403  (the names in timing.__all__)
 from .verdict import *  # noqa: F401,F403  (the names in verdict.__all__)
+from .foam import *  # noqa: F401,F403  (the names in foam.__all__)
 
-__all__ = [*_measure.__all__, *_reliability.__all__, *_timing.__all__, *_verdict.__all__]
+__all__ = [*_measure.__all__, *_reliability.__all__, *_timing.__all__, *_verdict.__all__, *_foam.__all__]

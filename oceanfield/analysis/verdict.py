@@ -274,6 +274,10 @@ def run_analyze_command(args: argparse.Namespace) -> int:
         if not report.parent.is_dir() and str(report.parent) != "":
             raise ValueError(f"--report: the folder '{report.parent}' does not exist")
     files = select_frames(expand_sequence(args.sequence), args.frames)
+    if files and args.channel is None:
+        foam_channel = _foam_channel(*read_channels(files[0][1]))
+        if foam_channel is not None:
+            return _analyze_foam(args, files, foam_channel)
     if len(files) < MIN_FRAMES:
         raise ValueError(
             f"sequence: {len(files)} frame{'s' if len(files) != 1 else ''} matched {args.sequence!r}; "
@@ -383,6 +387,36 @@ def run_analyze_command(args: argparse.Namespace) -> int:
             raise ValueError(str(error)) from None
         if not args.json:
             print(f"report written to {written}")
+    return 0
+
+
+def _foam_channel(channels: dict[str, Any], attributes: dict[str, Any]) -> str | None:
+    """The channel of a foam map (``oceanfield.map`` = foam), else None."""
+    if attributes.get("oceanfield.map") != "foam":
+        return None
+    for name in ("Y", "foam.Y"):
+        if name in channels:
+            return name
+    return None
+
+
+def _analyze_foam(args: argparse.Namespace, files: list, channel: str) -> int:
+    """``oceanfield analyze`` on a foam sequence: the measured foam coverage."""
+    from .foam import FoamAccumulator, format_foam_coverage
+
+    accumulator = FoamAccumulator()
+    for _, path in files:
+        channels, _ = read_channels(path)
+        if channel not in channels:
+            raise ValueError(f"sequence: '{path}' has no channel {channel!r}; available: {', '.join(sorted(channels))}")
+        accumulator.add(channels[channel])
+    result = accumulator.finish()
+    if args.json:
+        data = result.to_dict()
+        data["source"] = {"sequence": args.sequence, "files": len(files), "channel": channel}
+        print(json.dumps(data, indent=2))
+    else:
+        print(format_foam_coverage(result, f"{len(files)} files {files[0][1].name} … {files[-1][1].name}, channel {channel}"))
     return 0
 
 

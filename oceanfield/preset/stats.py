@@ -4,8 +4,9 @@ Knows nothing of rendering or files.
 
 Per component and in total: significant wave height, peak and mean periods, peak
 wavelength and phase speed, significant steepness, the equivalent Beaufort force; then
-what the tile captures (the share of the sea's variance the lattice carries) and how much
-of the surface folds.
+what the tile captures (the share of the sea's variance the lattice carries), the Hs the
+tile realises for the preset's seed beside the one asked for, how much of the surface folds,
+and the whitecap share the wind calls for beside the foam the tile shows.
 """
 
 from __future__ import annotations
@@ -15,7 +16,7 @@ from typing import Any
 
 import numpy as np
 
-__all__ = ["sea_report", "format_sea_report", "fold_fraction", "fold_warning"]
+__all__ = ["sea_report", "format_sea_report", "fold_fraction", "surface_shares", "fold_warning"]
 
 _FOLD_SAMPLES = 4  # frames spread over a peak period, averaged for the folded fraction
 #: Folded share above which a preset draws a warning (common practice: beyond about a tenth
@@ -23,8 +24,9 @@ _FOLD_SAMPLES = 4  # frames spread over a peak period, averaged for the folded f
 MAX_FOLDED_SHARE = 0.10
 
 
-def fold_fraction(ocean, *, times: list[float] | None = None) -> float:
-    """Share of the surface whose Jacobian is negative (folded), averaged over ``times``.
+def surface_shares(ocean, *, times: list[float] | None = None) -> tuple[float, float]:
+    """(folded share, foam share): the share of the surface whose Jacobian is negative and
+    the share whose foam is above ½, each averaged over ``times``.
 
     By default a few frames spread over one peak period of the sea.
     """
@@ -32,8 +34,17 @@ def fold_fraction(ocean, *, times: list[float] | None = None) -> float:
         period = ocean.sea_state.statistics().tp
         times = [period * i / _FOLD_SAMPLES for i in range(_FOLD_SAMPLES)]
     buffer = ocean.new_buffer()
-    folded = [float(np.mean(ocean.frame(t, buffer=buffer).jacobian < 0.0)) for t in times]
-    return float(np.mean(folded))
+    folded, foamy = [], []
+    for t in times:
+        fields = ocean.frame(t, buffer=buffer)
+        folded.append(float(np.mean(fields.jacobian < 0.0)))
+        foamy.append(float(np.mean(fields.foam > 0.5)))
+    return float(np.mean(folded)), float(np.mean(foamy))
+
+
+def fold_fraction(ocean, *, times: list[float] | None = None) -> float:
+    """Share of the surface whose Jacobian is negative (folded), averaged over ``times``."""
+    return surface_shares(ocean, times=times)[0]
 
 
 def fold_warning(preset, ocean=None) -> str | None:
@@ -81,6 +92,8 @@ def sea_report(preset) -> dict[str, Any]:
         components.append({"label": settings.label, "spectrum": settings.spectrum, **_row(stats)})
     ocean = Ocean.from_preset(preset, velocity=False, foam_memory=0.0)
     tile = ocean.tile
+    folded, foamy = surface_shares(ocean)
+    threshold = ocean.fold_threshold
     return {
         "preset": preset.name,
         "description": preset.description,
@@ -96,9 +109,18 @@ def sea_report(preset) -> dict[str, Any]:
             # the lattice's Σ Ψ Δk² over the sea's m0: what the tile and resolution capture
             "captured_variance_share": ocean.lattice_variance / total.m0,
             "unresolved_short_wave_share": sea.band_variance(tile.nyquist, math.inf) / total.m0,
+            # the Hs this tile holds for the preset's seed, 4√(Σ 2|h0|²), beside total.hs_m
+            "realised_hs_m": ocean.realised_hs,
+            "wave_heights": ocean.wave_heights,
+            "seed": preset.seed,
         },
-        "folded_surface_share": fold_fraction(ocean),
+        "folded_surface_share": folded,
         "lateral_factor": preset.surface.lateral_factor,
+        # the whitecap share the wind calls for (Monahan & O'Muircheartaigh 1980), None when
+        # the preset sets its own fold threshold; the foam share measured on the same frames
+        "whitecap_coverage": ocean.whitecap_coverage,
+        "foam_surface_share": foamy,
+        "fold_threshold": threshold if math.isfinite(threshold) else None,
     }
 
 
@@ -130,7 +152,25 @@ def format_sea_report(report: dict[str, Any]) -> str:
         f"{tile['shortest_wavelength_m']:.2f} m, below the tile's resolution)"
     )
     lines.append(
+        f"height: Hs {report['total']['hs_m']:.2f} m asked, {tile['realised_hs_m']:.2f} m in this tile "
+        f"(seed {tile['seed']}, wave heights {tile['wave_heights'].replace('_', ' ')})"
+    )
+    lines.append(
         f"folding: {report['folded_surface_share'] * 100:.2f} % of the surface at lateral factor "
         f"{report['lateral_factor']:g}"
     )
+    lines.append(_foam_line(report))
     return "\n".join(lines)
+
+
+def _foam_line(report: dict[str, Any]) -> str:
+    threshold = report["fold_threshold"]
+    shown = f"foam above 0.5 on {report['foam_surface_share'] * 100:.2f} % of the surface"
+    if report["whitecap_coverage"] is None:
+        return f"foam: {shown} (fold threshold {threshold:g} set by the preset)"
+    if threshold is None:
+        return "foam: none (no wind-driven component, or no lateral displacement, to make whitecaps)"
+    return (
+        f"foam: {shown}; the wind calls for whitecaps on {report['whitecap_coverage'] * 100:.2f} % "
+        f"(Monahan & O'Muircheartaigh 1980; fold threshold {threshold:.3f})"
+    )
