@@ -16,16 +16,18 @@ Two steps turn a directional spectrum Ψ(kx, ky) into the variance of each latti
   variance at 256² and 2048².
 * **Variance as asked.** A tile holds few independent waves near its spectral peak, so
   with freely drawn (Rayleigh) amplitudes its variance strays from the one asked for by
-  tens of per cent from seed to seed. :func:`annulus_scale` gives the factor that makes
-  the realised variance of every half-octave annulus of wavenumbers equal its target
-  while keeping the amplitudes' random ratios inside the annulus (Tucker, Challenor &
-  Carter 1984 discuss what fixing amplitudes does to wave groups; see the README).
-  Annuli are half-octaves of the lattice radius |n| = |k|/Δk, i.e. octaves of
-  q = nx² + ny²: annulus j holds 2^j ≤ q < 2^(j+1). Annuli lying wholly inside two
-  lattices of the same tile and seed get the same factor.
+  tens of per cent from seed to seed. :func:`ring_scale` gives the factor that makes the
+  realised variance of every ring of equal |k| (the waves sharing one q = nx² + ny²)
+  equal its target, while keeping the amplitudes' random ratios within the ring (how the
+  energy of one wavelength is shared between directions) and every phase. Any band of
+  wavenumbers is a union of rings, so every band, whatever its edges, holds its target
+  exactly; half-octave annuli would leave bands placed across their edges tens of per
+  cent off. Tucker, Challenor & Carter (1984) discuss what fixing amplitudes does to wave
+  groups (see the README). A ring lying wholly inside two lattices of the same tile and
+  seed (q < (N/2)² for the smaller) gets the same factor in both.
 
 A lattice split into bands of wavenumbers (several tile sizes) uses both per band: the
-cells of each band's own lattice, and the annuli of each band's own modes.
+cells of each band's own lattice, and the rings of each band's own modes.
 
 References
 ----------
@@ -44,10 +46,10 @@ from numpy.typing import ArrayLike, NDArray
 
 from ..physics.seastate import SeaState
 
-__all__ = ["WAVE_HEIGHTS", "cell_variance", "feature_width", "annulus_index", "annulus_scale"]
+__all__ = ["WAVE_HEIGHTS", "cell_variance", "feature_width", "ring_scale"]
 
-#: How a tile's amplitudes are drawn: ``as_requested`` rescales each half-octave annulus
-#: to its target variance; ``random`` keeps the freely drawn (Rayleigh) amplitudes.
+#: How a tile's amplitudes are drawn: ``as_requested`` rescales each ring of equal |k| to
+#: its target variance; ``random`` keeps the freely drawn (Rayleigh) amplitudes.
 WAVE_HEIGHTS = ("as_requested", "random")
 
 #: Relative width of the JONSWAP peak in wavenumber: σ = 0.07 in ω (Hasselmann et al.
@@ -141,15 +143,8 @@ def cell_variance(
     return out
 
 
-def annulus_index(q: ArrayLike) -> NDArray[np.int64]:
-    """Half-octave annulus of each q = nx² + ny²: j with 2^j ≤ q < 2^(j+1) (0 for q = 0)."""
-    _, exponent = np.frexp(np.asarray(q, dtype=np.float64))
-    return np.maximum(exponent.astype(np.int64) - 1, 0)
-
-
-def annulus_scale(realised: ArrayLike, target: ArrayLike) -> NDArray[np.float64]:
-    """Amplitude factor per annulus, √(target / realised) (1 where nothing was realised)."""
+def ring_scale(realised: ArrayLike, target: ArrayLike) -> NDArray[np.float64]:
+    """Amplitude factor per ring, √(target / realised) (1 where nothing was realised)."""
     realised = np.asarray(realised, dtype=np.float64)
     target = np.asarray(target, dtype=np.float64)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        return np.where(realised > 0, np.sqrt(target / np.where(realised > 0, realised, 1.0)), 1.0)
+    return np.where(realised > 0, np.sqrt(target / np.where(realised > 0, realised, 1.0)), 1.0)

@@ -273,10 +273,9 @@ class Ocean:
         half = n // 2
         h0 = np.empty((n, n), dtype=np.complex64)
         width = amplitudes.feature_width(sea)
-        annuli = int(amplitudes.annulus_index(2 * half * half)) + 1  # corners of the square too
-        target = np.zeros(annuli)
-        realised = np.zeros(annuli)
-        used = np.zeros(half * half + 1, dtype=bool)
+        rings = 2 * half * half + 1  # one per q = nx² + ny², corners of the square included
+        target = np.zeros(rings)
+        realised = np.zeros(rings)
         for start in range(0, n, _BLOCK_ROWS):
             rows = slice(start, min(start + _BLOCK_ROWS, n))
             ny, nx = tile.wave_indices(rows)
@@ -284,19 +283,19 @@ class Ocean:
             # E|h0|² = (∫ over the cell Ψ dk)/2 (DESIGN convention), with E|ξ|² = 1.
             cell = np.where(carried, amplitudes.cell_variance(sea, tile.dk, ny, nx, width=width), 0.0)
             block = amplitude_noise(self.seed, ny, nx) * np.sqrt(cell / 2.0)
-            q = np.broadcast_to(nx * nx + ny * ny, cell.shape)
-            ring = amplitudes.annulus_index(q)
-            target += np.bincount(ring.ravel(), cell.ravel(), minlength=annuli)
-            realised += np.bincount(ring.ravel(), 2.0 * np.abs(block.ravel()) ** 2, minlength=annuli)
+            q = np.broadcast_to(nx * nx + ny * ny, cell.shape).ravel()
+            target += np.bincount(q, cell.ravel(), minlength=rings)
+            realised += np.bincount(q, 2.0 * np.abs(block.ravel()) ** 2, minlength=rings)
             h0[rows] = block
-            used[q[cell > 0]] = True
+        used = target[: half * half + 1] > 0
         if self.wave_heights == "as_requested":
-            scale = amplitudes.annulus_scale(realised, target)
+            # Each ring of equal |k| holds exactly its target (see ``amplitudes``).
+            scale = amplitudes.ring_scale(realised, target).astype(np.float32)
             realised_sum = 0.0
             for start in range(0, n, _BLOCK_ROWS):
                 rows = slice(start, min(start + _BLOCK_ROWS, n))
                 ny, nx = tile.wave_indices(rows)
-                h0[rows] *= scale[amplitudes.annulus_index(nx * nx + ny * ny)].astype(np.float32)
+                h0[rows] *= scale[nx * nx + ny * ny]
                 realised_sum += 2.0 * float(np.sum(np.abs(h0[rows].astype(np.complex128)) ** 2))
         else:
             realised_sum = float(realised.sum())
