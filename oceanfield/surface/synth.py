@@ -142,7 +142,7 @@ class Ocean:
     whitecap_scale : float
         Factor on the wind's whitecap coverage when ``fold_threshold`` is None (0 to 10).
     wave_heights : str
-        ``as_requested`` (default): each half-octave annulus of wavenumbers holds exactly its
+        ``as_requested`` (default): the waves of each ring of equal |k| hold exactly their
         expected variance, so the tile's Hs is the one asked for whatever the seed;
         ``random``: freely drawn (Rayleigh) amplitudes, whose tile Hs varies from seed to
         seed (see :mod:`oceanfield.surface.amplitudes`).
@@ -273,7 +273,7 @@ class Ocean:
         half = n // 2
         h0 = np.empty((n, n), dtype=np.complex64)
         width = amplitudes.feature_width(sea)
-        rings = 2 * half * half + 1  # one per q = nx² + ny², corners of the square included
+        rings = half * half + 1  # one per q = nx² + ny² ≤ (N/2)², the carried disc
         target = np.zeros(rings)
         realised = np.zeros(rings)
         for start in range(0, n, _BLOCK_ROWS):
@@ -283,20 +283,21 @@ class Ocean:
             # E|h0|² = (∫ over the cell Ψ dk)/2 (DESIGN convention), with E|ξ|² = 1.
             cell = np.where(carried, amplitudes.cell_variance(sea, tile.dk, ny, nx, width=width), 0.0)
             block = amplitude_noise(self.seed, ny, nx) * np.sqrt(cell / 2.0)
-            q = np.broadcast_to(nx * nx + ny * ny, cell.shape).ravel()
+            q = np.where(carried, nx * nx + ny * ny, 0).ravel()  # waves not carried hold nothing
             target += np.bincount(q, cell.ravel(), minlength=rings)
-            realised += np.bincount(q, 2.0 * np.abs(block.ravel()) ** 2, minlength=rings)
+            realised += np.bincount(q, 2.0 * (block.real.ravel() ** 2 + block.imag.ravel() ** 2), minlength=rings)
             h0[rows] = block
-        used = target[: half * half + 1] > 0
+        used = target > 0
         if self.wave_heights == "as_requested":
             # Each ring of equal |k| holds exactly its target (see ``amplitudes``).
-            scale = amplitudes.ring_scale(realised, target).astype(np.float32)
+            scale = np.append(amplitudes.ring_scale(realised, target), 0.0).astype(np.float32)
             realised_sum = 0.0
             for start in range(0, n, _BLOCK_ROWS):
                 rows = slice(start, min(start + _BLOCK_ROWS, n))
                 ny, nx = tile.wave_indices(rows)
-                h0[rows] *= scale[nx * nx + ny * ny]
-                realised_sum += 2.0 * float(np.sum(np.abs(h0[rows].astype(np.complex128)) ** 2))
+                h0[rows] *= scale[np.minimum(nx * nx + ny * ny, rings)]  # beyond the disc: 0 already
+                values = h0[rows].ravel()
+                realised_sum += 2.0 * float(np.vdot(values, values).real)
         else:
             realised_sum = float(realised.sum())
         variance = float(target.sum())
