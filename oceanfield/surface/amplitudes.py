@@ -120,7 +120,7 @@ def cell_variance(
     # midpoint sub-grid (error below a 1/(2m) share of the jump, of either sign).
     cut = np.zeros(radius.shape, dtype=bool)
     for component in sea.components:
-        if component.suppress_opposing:
+        if getattr(component, "suppress_opposing", False):  # a measured record has no cut-off
             c, s = math.cos(component.direction), math.sin(component.direction)
             cut |= np.abs(nx * c + ny * s) < 0.5 * (abs(c) + abs(s))
     cut &= radius > 0
