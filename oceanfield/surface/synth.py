@@ -296,8 +296,7 @@ class Ocean:
                 rows = slice(start, min(start + _BLOCK_ROWS, n))
                 ny, nx = tile.wave_indices(rows)
                 h0[rows] *= scale[np.minimum(nx * nx + ny * ny, rings)]  # beyond the disc: 0 already
-                values = h0[rows].ravel()
-                realised_sum += 2.0 * float(np.vdot(values, values).real)
+                realised_sum += 2.0 * float(np.square(h0[rows].view(np.float32), dtype=np.float64).sum())
         else:
             realised_sum = float(realised.sum())
         variance = float(target.sum())
