@@ -129,6 +129,9 @@ def test_composite_of_one_band_on_its_own_grid_is_its_frame():
     scale = float(np.abs(frame.height).max())
     assert np.abs(composite.height - frame.height).max() < 1e-5 * scale
     assert np.abs(composite.displacement_x - frame.displacement_x).max() < 1e-5 * scale
+    assert np.abs(composite.jacobian - frame.jacobian).max() < 1e-4
+    assert np.abs(composite.normal - frame.normal).max() < 1e-4
+    assert np.abs(composite.foam - frame.foam).max() < 1e-3
     # a composite twice as wide at the same texel repeats the single tile exactly
     wide = stack.composite(3.0, extent=2 * tile.size, resolution=2 * tile.resolution)
     assert np.abs(wide.height[:32, 32:] - frame.height).max() < 1e-5 * scale

@@ -41,6 +41,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from ..physics.seastate import SeaState
+from .fields import Fields
 from .synth import Ocean
 from .tile import Tile
 
@@ -51,7 +52,6 @@ __all__ = [
     "layout_bands",
     "band_moments",
     "fourier_sum",
-    "CompositeFields",
 ]
 
 #: Tile-size factors of bands 1, 2, …: square roots of primes over their integer part,
@@ -277,22 +277,6 @@ def fourier_sum(
     return along(along(c, origin[0], 1), origin[1], 0)
 
 
-@dataclass(frozen=True)
-class CompositeFields:
-    """The bands summed onto one grid: height, lateral displacement and height slopes.
-
-    Arrays (count, count), float64, metres (slopes dimensionless), rows y, columns x.
-    """
-
-    time: float
-    spacing: float
-    height: NDArray[np.float64]
-    displacement_x: NDArray[np.float64]
-    displacement_y: NDArray[np.float64]
-    slope_x: NDArray[np.float64]
-    slope_y: NDArray[np.float64]
-
-
 class BandStack:
     """A sea as several bands (see the module notes); each band an :class:`Ocean`.
 
@@ -345,21 +329,24 @@ class BandStack:
 
     def composite(
         self, t: float, *, extent: float, resolution: int, origin: tuple[float, float] = (0.0, 0.0)
-    ) -> CompositeFields:
+    ) -> Fields:
         """The bands summed at time ``t`` on a ``resolution``² grid ``extent`` metres wide.
 
         Exact Fourier sums (:func:`fourier_sum`) of every band's waves that the grid can
-        hold: those with |kx| and |ky| below the grid's Nyquist π·resolution/extent.
-        Shorter waves are left out, not aliased. Lateral displacement follows the synthesiser's
-        convention D = λ Σ i(k/|k|)ĥ e^{ik·x}.
+        hold: those with |kx| and |ky| below the grid's Nyquist π·resolution/extent (shorter
+        waves are left out, not aliased). Height, lateral displacement, their derivatives and
+        so the Jacobian, the displaced surface's normal and foam follow the synthesiser's
+        conventions (D = λ Σ i(k/|k|)ĥ e^{ik·x}); each band's own lateral factor and foam
+        settings apply. Returns :class:`Fields` (float32) of the composite grid.
         """
         if isinstance(resolution, bool) or not isinstance(resolution, (int, np.integer)) or resolution < 2:
             raise ValueError(f"resolution: {resolution!r} is not allowed; allowed: an integer >= 2")
-        if not (isinstance(extent, (int, float)) and math.isfinite(extent) and extent > 0):
+        if isinstance(extent, bool) or not isinstance(extent, (int, float)) or not math.isfinite(extent) or extent <= 0:
             raise ValueError(f"extent: {extent!r} is not allowed; allowed: a finite length > 0 metres")
         spacing = extent / resolution
         nyquist = math.pi / spacing
-        total = {name: np.zeros((resolution, resolution)) for name in ("h", "dx", "dy", "sx", "sy")}
+        names = ("h", "dx", "dy", "sx", "sy", "dxx", "dyy", "dxy")
+        total = {name: np.zeros((resolution, resolution)) for name in names}
         for index, ocean in enumerate(self.oceans):
             tile = ocean.tile
             ky, kx = tile.wavenumbers()
@@ -368,19 +355,37 @@ class BandStack:
                 continue
             spectrum = np.where(keep, self._spectrum(index, t), 0.0)
             k = np.hypot(kx, ky)
-            unit_x = np.divide(kx, k, out=np.zeros_like(k), where=k > 0)
-            unit_y = np.divide(ky, k, out=np.zeros_like(k), where=k > 0)
+            inverse_k = np.divide(1.0, k, out=np.zeros_like(k), where=k > 0)
             lam = ocean.lateral_factor
-            for name, factor in (
-                ("h", 1.0),
-                ("dx", 1j * lam * unit_x),
-                ("dy", 1j * lam * unit_y),
-                ("sx", 1j * kx),
-                ("sy", 1j * ky),
-            ):
-                total[name] += fourier_sum(spectrum * factor, tile.dk, spacing, resolution, origin).real
-        return CompositeFields(
-            float(t), spacing, total["h"], total["dx"], total["dy"], total["sx"], total["sy"]
+            factors = {
+                "h": 1.0,
+                "dx": 1j * lam * kx * inverse_k,
+                "dy": 1j * lam * ky * inverse_k,
+                "sx": 1j * kx,
+                "sy": 1j * ky,
+                "dxx": -lam * kx * kx * inverse_k,
+                "dyy": -lam * ky * ky * inverse_k,
+                "dxy": -lam * kx * ky * inverse_k,
+            }
+            for name in names:
+                total[name] += fourier_sum(spectrum * factors[name], tile.dk, spacing, resolution, origin).real
+        jxx, jyy, jxy = 1.0 + total["dxx"], 1.0 + total["dyy"], total["dxy"]
+        sx, sy = total["sx"], total["sy"]
+        jacobian = jxx * jyy - jxy * jxy
+        # (∂P/∂x) × (∂P/∂y) for P = (x + Dx, y + Dy, h), as the synthesiser's surface kernel
+        normal = np.stack([jxy * sy - sx * jyy, sx * jxy - jxx * sy, jacobian], axis=-1)
+        normal /= np.linalg.norm(normal, axis=-1, keepdims=True)
+        first = self.oceans[0]
+        foam = np.clip((first.fold_threshold - jacobian) / first.foam_ramp, 0.0, 1.0)
+        f32 = lambda a: np.ascontiguousarray(a, dtype=np.float32)  # noqa: E731
+        return Fields(
+            time=float(t),
+            height=f32(total["h"]),
+            displacement_x=f32(total["dx"]),
+            displacement_y=f32(total["dy"]),
+            jacobian=f32(jacobian),
+            normal=f32(normal),
+            foam=f32(foam),
         )
 
     # -- repetition ---------------------------------------------------------------------
