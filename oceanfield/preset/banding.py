@@ -30,6 +30,7 @@ __all__ = [
     "band_map_names",
     "BandedFrame",
     "BandRenderer",
+    "band_texels",
     "SHORT_WAVES_NEED_TENSION_M",
 ]
 
@@ -192,6 +193,16 @@ def band_map_names(preset) -> list[tuple[str, int | None, str]]:
     if preset.bands.composite_extent_m is not None:
         names.extend((f"composite_{name}", None, name) for name in preset.maps if name in _COMPOSITE_MAPS)
     return names
+
+
+def band_texels(preset) -> list[tuple[str, int]]:
+    """(map, texels) of every banded file of one frame (for sizing a writer's memory)."""
+    bands = preset_bands(preset)
+    out = []
+    for _, band, name in band_map_names(preset):
+        n = preset.bands.composite_resolution if band is None else bands[band].tile.resolution
+        out.append((name, n * n))
+    return out
 
 
 @dataclass(frozen=True)
