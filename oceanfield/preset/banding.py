@@ -103,6 +103,15 @@ def read_bands(sec: Section, *, tile_written: set[str], maps: Any, multilayer: A
                     short = tile.fail("shortest_wave_m", f"`{short:g}` is not shorter than longest_wave_m `{longest:g}`")
                 read.append(BandTileSettings(size, resolution, longest, short))
             tiles = tuple(read)
+            if all(valid(t.size_m) and valid(t.resolution) and valid(t.longest_wave_m) and valid(t.shortest_wave_m)
+                   for t in tiles):
+                spans = sorted((t.shortest_wave_m or 0.0, t.longest_wave_m or math.inf, i) for i, t in enumerate(tiles))
+                for (short_a, long_a, a), (short_b, long_b, b) in zip(spans[:-1], spans[1:]):
+                    if short_b < long_a:
+                        tiles = sec.fail("tiles", f"tiles {a} and {b} carry overlapping wavelengths "
+                                         f"({short_a:g}–{long_a:g} m and {short_b:g}–{long_b:g} m); "
+                                         "allowed: ranges that do not overlap, so no wave is counted twice")
+                        break
     if not all(valid(v) for v in (reach, shortest, max_resolution, extent, composite_resolution, tiles)):
         return BAD
     if (reach is None) != (shortest is None):
