@@ -226,15 +226,15 @@ class BandedFrame:
 
 
 class BandRenderer:
-    """What the render job asks of a synthesiser, for a band stack: ``frame(t)`` and
-    ``new_buffer()`` (a frame of a stack allocates its own memory, so the buffer is None)."""
+    """What the render job asks of a synthesiser, for a band stack: ``frame(t, buffer=)`` and
+    ``new_buffer()`` (a list of one buffer per band)."""
 
     def __init__(self, preset, *, fft_workers: int | None = None) -> None:
         self.preset = preset
         self.stack = band_stack(preset, fft_workers=fft_workers)
 
     def new_buffer(self):
-        return None
+        return self.stack.new_buffers()
 
     def frame(self, t: float, *, buffer=None) -> BandedFrame:
         settings = self.preset.bands
@@ -242,7 +242,7 @@ class BandRenderer:
         if settings.composite_extent_m is not None:
             composite = self.stack.composite(t, extent=settings.composite_extent_m,
                                              resolution=settings.composite_resolution)
-        return BandedFrame(float(t), tuple(self.stack.frames(t)), composite,
+        return BandedFrame(float(t), tuple(self.stack.frames(t, buffers=buffer)), composite,
                            tuple(b.tile.size for b in self.stack.bands), settings.composite_extent_m)
 
 

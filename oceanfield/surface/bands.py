@@ -57,7 +57,7 @@ __all__ = [
 #: Tile-size factors of bands 1, 2, …: square roots of primes over their integer part,
 #: numbers far from simple fractions of each other (any small-integer relation between
 #: two band periods would make the sum repeat at that common multiple).
-_IRRATIONAL_FACTORS = tuple(math.sqrt(p) / math.floor(math.sqrt(p)) for p in (2, 7, 13, 5, 11, 19, 23, 29, 31, 37))
+_IRRATIONAL_FACTORS = tuple(math.sqrt(p) / math.floor(math.sqrt(p)) for p in (2, 7, 13, 5, 11, 19, 23, 29, 31, 37, 41, 43, 47, 53, 59))
 #: Whole waves across a band's tile at its lowest wavenumber: fewer and the band's longest
 #: waves sit on a coarse lattice of directions and the lattice's variance sum drifts from
 #: the spectrum's integral (at 8, by 1.5 % for a band on a sharp peak; measured).
@@ -67,7 +67,7 @@ _LOWEST_WAVE_INDEX = 16
 #: share, so the shares bound the composite's autocorrelation where a band repeats.
 MAX_SLOPE_SHARE = 0.15
 MAX_HEIGHT_SHARE = 0.15
-_MAX_BANDS = 12
+_MAX_BANDS = 1 + len(_IRRATIONAL_FACTORS)
 _SIMPLE_DENOMINATOR = 16
 _RATIO_MARGIN = 0.01
 _SLIVER = 1.5  # a last band spanning less than this ratio of wavenumbers joins the one before
@@ -311,9 +311,16 @@ class BandStack:
             for i, band in enumerate(bands)
         ]
 
-    def frames(self, t: float) -> list:
-        """Each band's :class:`Fields` at time ``t`` (a pure function of t)."""
-        return [ocean.frame(t) for ocean in self.oceans]
+    def new_buffers(self) -> list:
+        """One buffer per band for :meth:`frames` to fill (see :meth:`Ocean.new_buffer`)."""
+        return [ocean.new_buffer() for ocean in self.oceans]
+
+    def frames(self, t: float, *, buffers: list | None = None) -> list:
+        """Each band's :class:`Fields` at time ``t`` (a pure function of t), filling
+        ``buffers`` (from :meth:`new_buffers`) when given."""
+        if buffers is None:
+            return [ocean.frame(t) for ocean in self.oceans]
+        return [ocean.frame(t, buffer=buffer) for ocean, buffer in zip(self.oceans, buffers)]
 
     def moments(self) -> list[tuple[float, float]]:
         """Each band's (variance m², mean-square slope) in expectation (:func:`band_moments`)."""
