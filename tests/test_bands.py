@@ -151,3 +151,22 @@ def test_composite_does_not_repeat_within_the_reach():
     single = BandStack(sea, [layout.bands[1]], seed=4)
     value, _ = single.autocorrelation(layout.bands[1].tile.size, 3)
     assert value[0, 1] == pytest.approx(1.0, abs=1e-9)  # one tile: 1.0 at its period
+
+
+def test_analyzer_times_a_composite_sequence_right():
+    """The analyzer on a non-periodic composite of two bands finds g_eff/g = 1 ± 0.01 (the
+    issue's figure): the bands keep each wave's deep-water frequency ω² = gk (Stewart 2008)."""
+    from oceanfield.analysis.measure import analyze_heights
+    from oceanfield.physics.constants import GRAVITY
+    from oceanfield.physics.seastate import height_period
+
+    sea = SeaState((height_period(1.0, 4.0, spread=math.radians(25)),))
+    wavelength = GRAVITY * 4.0**2 / (2 * math.pi)
+    extent = 16 * wavelength
+    bands = [Band(Tile(2 * extent, 128), 0.0, 0.45), Band(Tile(extent * math.sqrt(7) / 8, 64), 0.45, 2.0)]
+    stack = BandStack(sea, bands, seed=11, fft_workers=1)
+    fps = 3.0
+    heights = np.stack([stack.composite(i / fps, extent=extent, resolution=96).height for i in range(96)])
+    result = analyze_heights(heights, extent, fps)
+    assert not result.periodic
+    assert result.dispersion.g_ratio == pytest.approx(1.0, abs=0.01)
