@@ -68,6 +68,7 @@ _LOWEST_WAVE_INDEX = 16
 MAX_SLOPE_SHARE = 0.15
 MAX_HEIGHT_SHARE = 0.15
 _MAX_BANDS = 1 + len(_IRRATIONAL_FACTORS)
+_SERIAL_TEXELS = 256 * 256
 _SIMPLE_DENOMINATOR = 16
 _RATIO_MARGIN = 0.01
 _SLIVER = 1.5  # a last band spanning less than this ratio of wavenumbers joins the one before
@@ -306,10 +307,14 @@ class BandStack:
         self.sea_state = sea_state
         self.bands = bands
         self.seed = seed
-        self.oceans = [
-            Ocean(sea_state, band.tile, seed=seed, band=i, wavenumber_range=(band.k_low, band.k_high), **options)
-            for i, band in enumerate(bands)
-        ]
+        self.oceans = []
+        for i, band in enumerate(bands):
+            settings = dict(options)
+            if band.tile.resolution**2 < _SERIAL_TEXELS:
+                settings["fft_workers"] = 1  # see frames(): small bands run on one thread
+            self.oceans.append(
+                Ocean(sea_state, band.tile, seed=seed, band=i, wavenumber_range=(band.k_low, band.k_high), **settings)
+            )
 
     def new_buffers(self) -> list:
         """One buffer per band for :meth:`frames` to fill (see :meth:`Ocean.new_buffer`)."""
@@ -317,10 +322,28 @@ class BandStack:
 
     def frames(self, t: float, *, buffers: list | None = None) -> list:
         """Each band's :class:`Fields` at time ``t`` (a pure function of t), filling
-        ``buffers`` (from :meth:`new_buffers`) when given."""
-        if buffers is None:
-            return [ocean.frame(t) for ocean in self.oceans]
-        return [ocean.frame(t, buffer=buffer) for ocean, buffer in zip(self.oceans, buffers)]
+        ``buffers`` (from :meth:`new_buffers`) when given.
+
+        Bands under 256² texels run their kernels on one thread: each parallel kernel
+        costs a thread hand-over, which outweighs the work on a small tile (and on a busy
+        machine can cost a scheduler slice). The kernels work texel by texel, so the
+        result is the same bits either way.
+        """
+        import numba
+
+        buffers = [None] * len(self.oceans) if buffers is None else buffers
+        threads = numba.get_num_threads()
+        out = []
+        for ocean, buffer in zip(self.oceans, buffers):
+            small = ocean.tile.resolution**2 < _SERIAL_TEXELS
+            if small:
+                numba.set_num_threads(1)
+            try:
+                out.append(ocean.frame(t, buffer=buffer))
+            finally:
+                if small:
+                    numba.set_num_threads(threads)
+        return out
 
     def moments(self) -> list[tuple[float, float]]:
         """Each band's (variance m², mean-square slope) in expectation (:func:`band_moments`)."""
