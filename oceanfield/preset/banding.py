@@ -73,7 +73,8 @@ NO_BANDS = BandSettings()
 
 
 def read_bands(sec: Section, *, tile_written: set[str], maps: Any, multilayer: Any) -> Any:
-    """Read and check the ``bands`` section (``tile_written``: the keys the tile section holds)."""
+    """Read and check the ``bands`` section (``tile_written``: the tile keys written with
+    values other than their defaults)."""
     reach = sec.number("reach_m", None, low=1.0, high=1.0e5, optional=True)
     shortest = sec.number("shortest_wave_m", None, low=1.0e-3, high=1.0e4, optional=True)
     max_resolution = sec.number("max_resolution", _DEFAULT_MAX_RESOLUTION, low=16, high=16384, whole=True)

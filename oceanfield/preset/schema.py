@@ -557,7 +557,10 @@ def _build_preset(tree: Node, errors: list[str], path: Path, allow_outside_outpu
     time = _read_time(top.section("time"))
     output = _read_output(top.section("output"), maps, allow_outside_output)
     scene = _read_scene(top.section("scene"))
-    bands = read_bands(top.section("bands"), tile_written=set(tile_section.items), maps=maps,
+    # tile keys written with values other than the defaults (a dumped preset writes them all)
+    tile_written = {key for key in tile_section.items
+                    if valid(tile) and getattr(tile, str(key), None) != getattr(_DEFAULT_TILE, str(key), None)}
+    bands = read_bands(top.section("bands"), tile_written=tile_written, maps=maps,
                        multilayer=output.multilayer if valid(output) else None)
     context.report_unknown_keys()
     if valid(bands) and valid(sea) and bands.active and "surface_tension_npm" not in sea_section.items:
@@ -735,9 +738,12 @@ def _read_record_component(sec: Section) -> Any:
                              record)
 
 
+_DEFAULT_TILE = TileSettings(256.0, 512)
+
+
 def _read_tile(sec: Section) -> TileSettings:
-    size = sec.number("size_m", 256.0, low=0.01, high=100_000.0)
-    resolution = sec.number("resolution", 512, low=16, high=16384, whole=True)
+    size = sec.number("size_m", _DEFAULT_TILE.size_m, low=0.01, high=100_000.0)
+    resolution = sec.number("resolution", _DEFAULT_TILE.resolution, low=16, high=16384, whole=True)
     if valid(resolution) and resolution % 2:
         resolution = sec.fail("resolution", f"`{resolution}` is odd (allowed: an even whole number)")
     return TileSettings(size, resolution)

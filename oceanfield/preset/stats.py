@@ -40,6 +40,13 @@ def fold_warning(preset, ocean=None) -> str | None:
     """A warning when the lateral factor folds more than 10 % of the surface, else None."""
     if preset.surface.lateral_factor == 0:
         return None
+    if ocean is None and preset.bands.active:  # the folding happens in band 0, the long waves
+        from .banding import preset_bands
+        from ..surface.synth import Ocean
+
+        band = preset_bands(preset)[0]
+        ocean = Ocean(preset.sea_state(), band.tile, seed=preset.seed, lateral_factor=preset.surface.lateral_factor,
+                      fold_threshold=preset.surface.fold_threshold, wavenumber_range=(band.k_low, band.k_high))
     if ocean is None:
         from ..surface.synth import Ocean
 
