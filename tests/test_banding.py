@@ -103,6 +103,7 @@ tiles:
 
 
 def test_render_writes_each_band_and_the_composite_identically_however_split(tmp_path):
+    """One run, two chunks and two worker processes write the same bytes (DESIGN: determinism)."""
     preset = load_preset(_write(tmp_path, SMALL))
     whole = plan_render(preset, root=tmp_path / "whole")
     summary = render(whole, workers=1)
@@ -118,7 +119,9 @@ def test_render_writes_each_band_and_the_composite_identically_however_split(tmp
     split = tmp_path / "split"
     for chunk in ("1/2", "2/2"):
         assert render(plan_render(preset, root=split, chunk=chunk), workers=1).ok
+    assert render(plan_render(preset, root=tmp_path / "workers"), workers=2).ok
     for frame in preset.time.frames:
         for name, path in whole.files(frame).items():
-            other = plan_render(preset, root=split).files(frame)[name]
-            assert path.read_bytes() == other.read_bytes()
+            for root in (split, tmp_path / "workers"):
+                other = plan_render(preset, root=root).files(frame)[name]
+                assert path.read_bytes() == other.read_bytes()

@@ -254,28 +254,28 @@ def fourier_sum(
 ) -> NDArray[np.complex128]:
     """Σ c(k) e^{ik·x} exactly on a regular grid of ``count``² points, by the chirp z-transform.
 
-    ``coefficients`` is an (N, N) array in FFT layout (index n ↦ k = n·dk, rows ky, columns
-    kx); the grid is x = origin_x + j·spacing, y = origin_y + i·spacing. Unlike an inverse
-    FFT the grid need not match the lattice: any spacing, any extent. Returns (count, count).
+    ``coefficients`` is an (..., N, N) array in FFT layout (index n ↦ k = n·dk, rows ky,
+    columns kx; leading axes are separate sums); the grid is x = origin_x + j·spacing,
+    y = origin_y + i·spacing. Unlike an inverse FFT the grid need not match the lattice:
+    any spacing, any extent. Returns (..., count, count).
     """
     from scipy.signal import czt
 
-    c = np.fft.fftshift(np.asarray(coefficients, dtype=np.complex128))
-    n = c.shape[0]
+    c = np.fft.fftshift(np.asarray(coefficients, dtype=np.complex128), axes=(-2, -1))
+    n = c.shape[-1]
     half = n // 2
     j = np.arange(count)
 
     def along(array: NDArray[np.complex128], start: float, axis: int) -> NDArray[np.complex128]:
         # Σ_m c_m e^{i(m − N/2)dk(x0 + jΔ)}: scipy's X_j = Σ c_m a^−m w^{mj} with a = e^{−i dk x0},
-        # w = e^{i dk Δ}, then the
-        # centring phase e^{−i(N/2)dk x_j}.
+        # w = e^{i dk Δ}, then the centring phase e^{−i(N/2)dk x_j}.
         out = czt(array, count, w=np.exp(1j * dk * spacing), a=np.exp(-1j * dk * start), axis=axis)
         phase = np.exp(-1j * half * dk * (start + j * spacing))
-        shape = [1, 1]
+        shape = [1] * out.ndim
         shape[axis] = count
         return out * phase.reshape(shape)
 
-    return along(along(c, origin[0], 1), origin[1], 0)
+    return along(along(c, origin[0], -1), origin[1], -2)
 
 
 class BandStack:
@@ -397,8 +397,13 @@ class BandStack:
                 "dyy": -lam * ky * ky * inverse_k,
                 "dxy": -lam * kx * ky * inverse_k,
             }
-            for name in names:
-                total[name] += fourier_sum(spectrum * factors[name], tile.dk, spacing, resolution, origin).real
+            # Every field is real (its spectrum is Hermitian), so two ride in one complex
+            # sum, a + ib, as the synthesiser packs its transforms.
+            packed = np.stack([spectrum * (factors[a] + 1j * factors[b]) for a, b in zip(names[0::2], names[1::2])])
+            sums = fourier_sum(packed, tile.dk, spacing, resolution, origin)
+            for index_pair, (a, b) in enumerate(zip(names[0::2], names[1::2])):
+                total[a] += sums[index_pair].real
+                total[b] += sums[index_pair].imag
         jxx, jyy, jxy = 1.0 + total["dxx"], 1.0 + total["dyy"], total["dxy"]
         sx, sy = total["sx"], total["sy"]
         jacobian = jxx * jyy - jxy * jxy
