@@ -125,3 +125,17 @@ def test_render_writes_each_band_and_the_composite_identically_however_split(tmp
             for root in (split, tmp_path / "workers"):
                 other = plan_render(preset, root=root).files(frame)[name]
                 assert path.read_bytes() == other.read_bytes()
+
+
+def test_preview_shows_the_composite_over_the_reach(tmp_path):
+    import matplotlib.pyplot as plt
+
+    from oceanfield.preset.preview import preview_figure
+
+    preset = load_preset(_write(tmp_path, SMALL))
+    figure = preview_figure(preset)
+    title = figure._suptitle.get_text()
+    assert "bands summed over 60 m" in title
+    top = figure.axes[0].images[0]
+    assert top.get_extent()[1] == pytest.approx(60.0)  # the whole reach, in metres
+    plt.close(figure)

@@ -318,6 +318,16 @@ def _figures_panel(axes, preset, stats) -> None:
         ("peak wavelengths across", f"{size / stats.peak_wavelength:.2g}"),
         ("image rows", "row 0 is y = 0 (drawn at the bottom here)"),
     ]
+    if preset.bands.active:  # the tile section stands for nothing here: say what the bands are
+        from .banding import preset_bands
+
+        bands = preset_bands(preset)
+        shortest = 2.0 * math.pi / max(min(b.k_high, b.tile.nyquist) for b in bands)
+        rows[6:8] = [
+            ("bands", f"{len(bands)}: {length_text(bands[0].tile.size)} at {bands[0].tile.resolution}² "
+                      f"down to {length_text(bands[-1].tile.size)}"),
+            ("waves carried", f"{length_text(bands[0].tile.size)} to {length_text(shortest)}"),
+        ]
     axes.axis("off")
     text = "\n".join(f"{name:<28}{value}" for name, value in rows)
     axes.text(0.0, 1.0, text, family="monospace", fontsize=9, va="top", ha="left", transform=axes.transAxes)
