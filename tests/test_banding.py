@@ -139,3 +139,14 @@ def test_preview_shows_the_composite_over_the_reach(tmp_path):
     top = figure.axes[0].images[0]
     assert top.get_extent()[1] == pytest.approx(60.0)  # the whole reach, in metres
     plt.close(figure)
+
+
+def test_flipbook_of_a_banded_preset(tmp_path):
+    import imageio.v3 as iio
+
+    from oceanfield.preset.preview import write_flipbook
+
+    preset = load_preset(_write(tmp_path, SMALL))
+    path = write_flipbook(preset, [1, 2], out=tmp_path / "clip.gif")
+    frames = iio.imread(path)
+    assert frames.shape[0] == 2 and frames.shape[1] >= 384

@@ -366,18 +366,32 @@ def write_flipbook(preset, frames, *, out: str | Path | None = None) -> Path:
     else:
         options = dict(duration=1000.0 / preset.time.fps, loop=0)
 
-    ocean = Ocean.from_preset(preset, velocity=False)
-    stats = ocean.sea_state.statistics()
-    texels, _ = _window(preset, ocean.sea_state)
-    buffer = ocean.new_buffer()
+    if preset.bands.active:
+        # The bands summed over the reach (exact sums, a few hundred texels a side).
+        from .banding import band_stack
+
+        stack = band_stack(preset, foam_memory=0.0)
+        stats = stack.sea_state.statistics()
+        texels = _FLIPBOOK_MIN_PIXELS
+        reach = preset.bands.reach_m or preset.bands.composite_extent_m or stack.bands[0].tile.size
+
+        def lit(frame: int):
+            fields = stack.composite(preset.time.frame_time(frame), extent=reach, resolution=texels)
+            return fields.normal, fields.foam
+    else:
+        ocean = Ocean.from_preset(preset, velocity=False)
+        stats = ocean.sea_state.statistics()
+        texels, _ = _window(preset, ocean.sea_state)
+        buffer = ocean.new_buffer()
+
+        def lit(frame: int):
+            fields = ocean.frame(preset.time.frame_time(frame), buffer=buffer)
+            return fields.normal[:texels, :texels], fields.foam[:texels, :texels]
+
     sun = stats.mean_direction + math.pi
     elevation = math.radians(_SUN_ELEVATION_DEG)
     sun_vector = np.array([math.cos(elevation) * math.cos(sun), math.cos(elevation) * math.sin(sun),
                            math.sin(elevation)])
-
-    def lit(frame: int):
-        fields = ocean.frame(preset.time.frame_time(frame), buffer=buffer)
-        return fields.normal[:texels, :texels], fields.foam[:texels, :texels]
 
     # One stretch for the clip, from its first, middle and last frames: no flicker, and no
     # need to hold every frame's normals.
