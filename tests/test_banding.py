@@ -158,3 +158,12 @@ def test_flipbook_of_a_banded_preset(tmp_path):
     path = write_flipbook(preset, [1, 2], out=tmp_path / "clip.gif")
     frames = iio.imread(path)
     assert frames.shape[0] == 2 and frames.shape[1] >= 384
+
+
+def test_probe_refuses_a_banded_preset_in_one_line(tmp_path, capsys):
+    from oceanfield.cli import main
+
+    path = _write(tmp_path, SMALL)
+    assert main(["probe", str(path), "--at", "1,2", "--frames", "1-1"]) == 2
+    err = capsys.readouterr().err
+    assert "bands: probe, float and scene do not take a banded preset yet" in err and err.count("\n") == 1
