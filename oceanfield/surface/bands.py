@@ -249,8 +249,33 @@ def band_moments(sea: SeaState, band: Band) -> tuple[float, float]:
     return variance, slope
 
 
+def _chirp_z(x: NDArray[np.complex128], count: int, theta: float, phi: float, axis: int,
+             workers: int | None) -> NDArray[np.complex128]:
+    """X_j = Σ_m x_m e^{i(φ + jθ)m}, j < count, along ``axis``: Bluestein's chirp z-transform.
+
+    mj = (m² + j² − (j − m)²)/2 turns the sum into a convolution with the chirp e^{−iθn²/2},
+    done with FFTs of a fast length ≥ N + count − 1 (scipy.fft, on ``workers`` threads).
+    """
+    import scipy.fft
+
+    x = np.moveaxis(x, axis, -1)
+    n = x.shape[-1]
+    index = np.arange(max(n, count), dtype=np.float64)
+    chirp = np.exp(0.5j * theta * index**2)
+    length = scipy.fft.next_fast_len(n + count - 1)
+    kernel = np.zeros(length, dtype=np.complex128)
+    kernel[:count] = np.conj(chirp[:count])
+    kernel[length - n + 1:] = np.conj(chirp[1:n][::-1])
+    weighted = x * (np.exp(1j * phi * index[:n]) * chirp[:n])
+    spectrum = scipy.fft.fft(weighted, length, axis=-1, workers=workers)
+    spectrum *= scipy.fft.fft(kernel)
+    out = scipy.fft.ifft(spectrum, axis=-1, workers=workers, overwrite_x=True)[..., :count] * chirp[:count]
+    return np.moveaxis(out, -1, axis)
+
+
 def fourier_sum(
-    coefficients: NDArray[np.complexfloating], dk: float, spacing: float, count: int, origin: tuple[float, float] = (0.0, 0.0)
+    coefficients: NDArray[np.complexfloating], dk: float, spacing: float, count: int,
+    origin: tuple[float, float] = (0.0, 0.0), *, workers: int | None = None,
 ) -> NDArray[np.complex128]:
     """Σ c(k) e^{ik·x} exactly on a regular grid of ``count``² points, by the chirp z-transform.
 
@@ -259,17 +284,15 @@ def fourier_sum(
     y = origin_y + i·spacing. Unlike an inverse FFT the grid need not match the lattice:
     any spacing, any extent. Returns (..., count, count).
     """
-    from scipy.signal import czt
-
     c = np.fft.fftshift(np.asarray(coefficients, dtype=np.complex128), axes=(-2, -1))
     n = c.shape[-1]
     half = n // 2
     j = np.arange(count)
 
     def along(array: NDArray[np.complex128], start: float, axis: int) -> NDArray[np.complex128]:
-        # Σ_m c_m e^{i(m − N/2)dk(x0 + jΔ)}: scipy's X_j = Σ c_m a^−m w^{mj} with a = e^{−i dk x0},
-        # w = e^{i dk Δ}, then the centring phase e^{−i(N/2)dk x_j}.
-        out = czt(array, count, w=np.exp(1j * dk * spacing), a=np.exp(-1j * dk * start), axis=axis)
+        # Σ_m c_m e^{i(m − N/2)dk(x0 + jΔ)}: the z-transform over m = 0…N−1, then the
+        # centring phase e^{−i(N/2)dk x_j}.
+        out = _chirp_z(array, count, dk * spacing, dk * start, axis, workers)
         phase = np.exp(-1j * half * dk * (start + j * spacing))
         shape = [1] * out.ndim
         shape[axis] = count
@@ -400,7 +423,7 @@ class BandStack:
             # Every field is real (its spectrum is Hermitian), so two ride in one complex
             # sum, a + ib, as the synthesiser packs its transforms.
             packed = np.stack([spectrum * (factors[a] + 1j * factors[b]) for a, b in zip(names[0::2], names[1::2])])
-            sums = fourier_sum(packed, tile.dk, spacing, resolution, origin)
+            sums = fourier_sum(packed, tile.dk, spacing, resolution, origin, workers=ocean.fft_workers)
             for index_pair, (a, b) in enumerate(zip(names[0::2], names[1::2])):
                 total[a] += sums[index_pair].real
                 total[b] += sums[index_pair].imag
