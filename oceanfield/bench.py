@@ -97,6 +97,63 @@ def frame_benchmark(resolution: int, workers: int, repeat: int) -> dict[str, flo
     }
 
 
+def band_benchmark(reach: float, resolution: int, composite: int, workers: int, repeat: int) -> dict[str, float]:
+    """Time a band stack's frame against the bare inverse FFTs of all its bands, and the
+    composite (exact sums onto one map) against the bare FFTs of a map of its size."""
+    import scipy.fft
+
+    from .physics.seastate import SeaState, wind_sea
+    from .surface.bands import BandStack, layout_bands
+
+    sea = SeaState((wind_sea(10.0, spectrum="elfouhaily", spreading="elfouhaily", suppress_opposing=True),),
+                   surface_tension=0.0728)
+    layout = layout_bands(sea, reach=reach, shortest_wavelength=0.01, resolution=resolution,
+                          max_resolution=2 * resolution)
+    stack = BandStack(sea, layout.bands, seed=1, fft_workers=workers)
+    buffers = stack.new_buffers()
+    bare = []
+    for band in layout.bands:
+        array = np.zeros((4, band.tile.resolution, band.tile.resolution), dtype=np.complex64)
+        array[:, 1, 1] = 1.0
+        bare.append(array)
+    counter = iter(range(10**9))
+
+    def stack_frame() -> None:
+        stack.frames(0.04 * next(counter), buffers=buffers)
+
+    def bare_ffts() -> None:
+        for array in bare:
+            scipy.fft.ifft2(array, axes=(-2, -1), norm="forward", overwrite_x=True, workers=workers)
+
+    square = np.zeros((4, composite, composite), dtype=np.complex64)
+    square[:, 1, 1] = 1.0
+
+    def composite_frame() -> None:
+        stack.composite(0.04 * next(counter), extent=reach, resolution=composite)
+
+    def composite_ffts() -> None:
+        scipy.fft.ifft2(square, axes=(-2, -1), norm="forward", overwrite_x=True, workers=workers)
+
+    stack_frame()
+    bare_ffts()
+    frame_times, fft_times = [], []
+    for _ in range(repeat):  # interleaved, so drift in machine load hits both alike
+        frame_times.append(time_call(stack_frame, repeat=1, warmup=0))
+        fft_times.append(time_call(bare_ffts, repeat=1, warmup=0))
+    composite_time = time_call(composite_frame, repeat=max(1, repeat // 3))
+    square_time = time_call(composite_ffts, repeat=max(1, repeat // 3))
+    frame_time, fft_time = statistics.median(frame_times), statistics.median(fft_times)
+    return {
+        "bands": len(layout.bands),
+        "texels": sum(b.tile.resolution**2 for b in layout.bands),
+        "frame_s": frame_time,
+        "fft_s": fft_time,
+        "ratio": frame_time / fft_time,
+        "composite_s": composite_time,
+        "composite_ratio": composite_time / square_time,
+    }
+
+
 def render_benchmark(resolution: int, frames: int, cores: int) -> dict[str, float]:
     """A whole render against its floors: bare FFTs plus bare OpenEXR writes of the same data.
 
@@ -197,6 +254,9 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--render-size", type=int, default=1024, help="resolution of the end-to-end render")
     parser.add_argument("--analyze-frames", type=int, default=240, help="frames the analyzer streams (0 = skip)")
     parser.add_argument("--analyze-size", type=int, default=512, help="resolution of the analyzed frames")
+    parser.add_argument("--bands-reach", type=float, default=2000.0, help="reach in metres of the band stack (0 = skip)")
+    parser.add_argument("--bands-size", type=int, default=512, help="resolution of band 0")
+    parser.add_argument("--bands-composite", type=int, default=1024, help="texels per side of the composite map")
     args = parser.parse_args(argv)
 
     import numba
@@ -216,6 +276,14 @@ def main(argv: list[str] | None = None) -> int:
     print("new-buffer ratio: frame allocating fresh memory each time (page faults included).")
     print("Targets: ratio <= 1.3 at N = 1024 and 2048; <= 48 bytes per texel (numpy allocations,")
     print("traced from before the Ocean is built to the end of its first frame).")
+    if args.bands_reach > 0:
+        row = band_benchmark(args.bands_reach, args.bands_size, args.bands_composite, args.workers, args.repeat)
+        print(f"\nBand stack: reach {args.bands_reach:g} m down to 1 cm ripples, {row['bands']} bands, "
+              f"{row['texels'] / 1e6:.2f} M texels")
+        print(f"  stack frame {row['frame_s'] * 1e3:.1f} ms, bare FFTs of all bands {row['fft_s'] * 1e3:.1f} ms: "
+              f"ratio {row['ratio']:.3f} (target <= 1.3)")
+        print(f"  composite {args.bands_composite}² (exact sums) {row['composite_s'] * 1e3:.1f} ms: "
+              f"{row['composite_ratio']:.1f}x the bare FFTs of one {args.bands_composite}² frame")
     if args.render_frames > 0:
         row = render_benchmark(args.render_size, args.render_frames, args.workers)
         print(f"\nEnd to end: {args.render_frames} frames at {args.render_size}², displacement + normal + foam, ZIP half EXR")

@@ -16,6 +16,7 @@ def test_benchmark_prints_frame_render_and_analyzer_figures(capsys):
         "--sizes", "32,64", "--repeat", "1", "--workers", "1",
         "--render-frames", "2", "--render-size", "32",
         "--analyze-frames", "16", "--analyze-size", "32",
+        "--bands-reach", "40", "--bands-size", "64", "--bands-composite", "32",
     ])
     assert code == 0
     out = capsys.readouterr().out
@@ -25,3 +26,5 @@ def test_benchmark_prints_frame_render_and_analyzer_figures(capsys):
         assert all(float(value) > 0 for value in row[1:])
     assert re.search(r"1 worker [0-9.]+ s: ratio to floors [0-9.]+", out)
     assert re.search(r"[0-9.]+ ms per frame streamed", out)
+    band = re.search(r"bare FFTs of all bands ([0-9.]+) ms: ratio ([0-9.]+)", out)
+    assert band and float(band.group(1)) > 0 and float(band.group(2)) > 0

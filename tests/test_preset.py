@@ -321,7 +321,8 @@ _KNOWN_KEYS = sorted(
         "towards_deg", "spreading", "spread_deg", "suppress_opposing", "small_wave_cutoff_m", "size_m",
         "resolution", "lateral_factor", "fold_threshold", "fps", "first_frame", "last_frame", "loop_period_s",
         "time_offset_s", "folder", "pattern", "format", "precision", "precision_per_map", "compression",
-        "multilayer", "metres_per_unit", "up_axis", *MAPS,
+        "multilayer", "metres_per_unit", "up_axis", "bands", "reach_m", "shortest_wave_m", "max_resolution",
+        "tiles", "composite_extent_m", "composite_resolution", *MAPS,
     }
 )
 _WORDS = ["deep", "jonswap", "tma", "phillips", "cos2s", "mitsuyasu", "exr", "png", "half", "y", "z",

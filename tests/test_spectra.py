@@ -315,5 +315,5 @@ def test_spectra_finite_and_non_negative(omega, peak, alpha, gamma, depth, wind,
 
 def test_registry_lists_every_spectrum():
     """One registry names every model (STYLE: one entry per published formula)."""
-    assert set(spectra.SPECTRA) == {"jonswap", "pierson_moskowitz", "tma", "phillips"}
+    assert set(spectra.SPECTRA) == {"jonswap", "pierson_moskowitz", "tma", "phillips", "elfouhaily"}
     assert spectra.SPECTRA["tma"] is spectra.tma

@@ -263,12 +263,12 @@ class MeasuredComponent:
 
     def spectral_density(
         self, omega: NDArray[np.float64], k: NDArray[np.float64] | None = None, depth: float = np.inf,
-        gravity: float = 0.0,
+        gravity: float = 0.0, group_speed: NDArray[np.float64] | None = None,
     ) -> NDArray[np.float64]:
         """S(ω) = E(f)/2π in m²·s/rad at angular frequencies ``omega`` (rad/s).
 
-        ``k``, ``depth`` and ``gravity`` are accepted for the sea state's interface; a
-        record's spectrum is the one measured, whatever the depth.
+        ``k``, ``depth``, ``gravity`` and ``group_speed`` are accepted for the sea state's
+        interface; a record's spectrum is the one measured, whatever the depth.
         """
         f = np.asarray(omega, dtype=np.float64) / _TWO_PI
         low, high = self.edges
@@ -281,11 +281,13 @@ class MeasuredComponent:
             value = np.where(f > high, tail, value)
         return value / _TWO_PI
 
-    def directional_density(self, theta: ArrayLike, omega: ArrayLike, gravity: float = 0.0) -> NDArray[np.float64]:
+    def directional_density(
+        self, theta: ArrayLike, omega: ArrayLike, gravity: float = 0.0, k: ArrayLike | None = None
+    ) -> NDArray[np.float64]:
         """D(θ; ω) in 1/rad, θ the absolute direction of travel in radians.
 
         Bilinear in (f, θ) on the table, periodic in θ; below the first and above the
-        last measured frequency the end rows hold. ``gravity`` is accepted for the sea
+        last measured frequency the end rows hold. ``gravity`` and ``k`` are accepted for the sea
         state's interface.
         """
         theta = np.asarray(theta, dtype=np.float64)

@@ -29,7 +29,7 @@ from scipy import integrate, optimize
 from . import spectra
 from .constants import GRAVITY, SEAWATER_DENSITY
 from .dispersion import angular_frequency, check_depth, group_velocity, phase_velocity, wavenumber
-from .spreading import SPREADING, cos2s_exponent, spreading, wrap_angle
+from .spreading import SPREADING, cos2s_exponent, elfouhaily_delta, spreading, wrap_angle
 
 __all__ = [
     "BEAUFORT",
@@ -186,15 +186,36 @@ class Component:
         _check_number("direction", self.direction, -1.0e6, 1.0e6)
         if self.wind_speed is not None:
             _check_number("wind_speed", self.wind_speed, 0.0, _MAX_WIND)
-        if self.spectrum == "phillips" and self.wind_speed is None:
-            raise ValueError("wind_speed: None is not allowed for the phillips spectrum; allowed: > 0 m/s")
+        if self.spectrum in ("phillips", "elfouhaily") and self.wind_speed is None:
+            raise ValueError(f"wind_speed: None is not allowed for the {self.spectrum} spectrum; allowed: > 0 m/s")
+        if self.spreading == "elfouhaily" and self.wind_speed is None:
+            raise ValueError("wind_speed: None is not allowed for the elfouhaily spreading; allowed: > 0 m/s")
 
     def spectral_density(
-        self, omega: NDArray[np.float64], k: NDArray[np.float64], depth: float, gravity: float
+        self,
+        omega: NDArray[np.float64],
+        k: NDArray[np.float64],
+        depth: float,
+        gravity: float,
+        group_speed: NDArray[np.float64] | None = None,
     ) -> NDArray[np.float64]:
-        """S(ω) in m²·s/rad at angular frequencies ``omega`` whose wavenumbers are ``k``."""
+        """S(ω) in m²·s/rad at angular frequencies ``omega`` whose wavenumbers are ``k``.
+
+        ``group_speed`` dω/dk (m/s) at ``k`` converts a wavenumber spectrum (``elfouhaily``)
+        to S(ω) = S(k)/c_g; without it deep-water gravity waves are assumed.
+        """
         name = self.spectrum
-        if name == "phillips":
+        if name == "elfouhaily":
+            assert self.wind_speed is not None
+            k = np.asarray(k, dtype=np.float64)
+            kk = np.where(k > 0, k, 1.0)
+            if group_speed is None:
+                group_speed = 0.5 * np.sqrt(gravity / kk)
+            value = spectra.elfouhaily(
+                kk, wind_speed=self.wind_speed, inverse_wave_age=self.inverse_wave_age(gravity), gravity=gravity
+            ) / np.where(k > 0, group_speed, 1.0)
+            value = np.where((k > 0) & (np.asarray(omega) > 0), value, 0.0)
+        elif name == "phillips":
             assert self.wind_speed is not None
             value = spectra.phillips(omega, wind_speed=self.wind_speed, alpha=self.alpha, gravity=gravity)
         elif name == "pierson_moskowitz":
@@ -219,8 +240,17 @@ class Component:
             return DEFAULT_INVERSE_WAVE_AGE
         return self.wind_speed * self.peak_frequency / gravity
 
-    def directional_density(self, theta: ArrayLike, omega: ArrayLike, gravity: float) -> NDArray[np.float64]:
-        """D(θ; ω) in 1/rad, θ the absolute direction of travel in radians."""
+    def directional_density(
+        self, theta: ArrayLike, omega: ArrayLike, gravity: float, k: ArrayLike | None = None
+    ) -> NDArray[np.float64]:
+        """D(θ; ω) in 1/rad, θ the absolute direction of travel in radians.
+
+        ``k`` (rad/m) of each ω is needed by the ``elfouhaily`` spreading only; without it
+        deep-water gravity waves are assumed (k = ω²/g).
+        """
+        delta = None
+        if self.spreading == "elfouhaily":
+            delta = self.elfouhaily_delta(np.asarray(omega) ** 2 / gravity if k is None else k, gravity)
         return spreading(
             self.spreading,
             np.asarray(theta) - self.direction,
@@ -228,7 +258,20 @@ class Component:
             s=self.spread_s,
             inverse_wave_age=self.inverse_wave_age(gravity),
             suppress_opposing=self.suppress_opposing,
+            delta=delta,
         )
+
+    def elfouhaily_delta(self, k: ArrayLike, gravity: float) -> NDArray[np.float64]:
+        """Δ(k) of the unified spectrum's spreading for this component's wind and wave age."""
+        assert self.wind_speed is not None
+        k = np.asarray(k, dtype=np.float64)
+        kk = np.where(k > 0, k, 1.0)
+        omega_c = self.inverse_wave_age(gravity)
+        c = spectra.elfouhaily_phase_speed(kk, gravity=gravity)
+        c_p = self.wind_speed / omega_c
+        friction = spectra.elfouhaily_friction_velocity(self.wind_speed, omega_c, gravity=gravity)
+        c_m = spectra.ELFOUHAILY_MINIMUM_PHASE_SPEED
+        return elfouhaily_delta(c / c_p, friction / c_m, c_m / c)
 
 
 @dataclass(frozen=True)
@@ -315,13 +358,15 @@ class SeaState:
         """S(ω) of one component in m²·s/rad."""
         omega = np.asarray(omega, dtype=np.float64)
         k = self.wavenumber(np.maximum(omega, 0.0))
-        return self.components[index].spectral_density(omega, k, self.depth, self.gravity)
+        speed = self.group_velocity(np.where(k > 0, k, 1.0))
+        return self.components[index].spectral_density(omega, k, self.depth, self.gravity, speed)
 
     def frequency_spectrum(self, omega: ArrayLike) -> NDArray[np.float64]:
         """Total S(ω) in m²·s/rad, the sum over components."""
         omega = np.asarray(omega, dtype=np.float64)
         k = self.wavenumber(np.maximum(omega, 0.0))
-        return sum(c.spectral_density(omega, k, self.depth, self.gravity) for c in self.components)
+        speed = self.group_velocity(np.where(k > 0, k, 1.0))
+        return sum(c.spectral_density(omega, k, self.depth, self.gravity, speed) for c in self.components)
 
     def directional_spectrum(self, kx: ArrayLike, ky: ArrayLike) -> NDArray[np.float64]:
         """Ψ(kx, ky) in m⁴ (m² per (rad/m)²): Σ S(ω)·D(θ; ω)·(dω/dk)/k, 0 at k = 0.
@@ -335,12 +380,13 @@ class SeaState:
         mask = k > 0
         kk = np.where(mask, k, 1.0)
         omega = self.angular_frequency(kk)
-        jacobian = self.group_velocity(kk) / kk
+        speed = self.group_velocity(kk)
+        jacobian = speed / kk
         theta = np.arctan2(ky, kx)
         total = np.zeros(np.broadcast_shapes(kx.shape, ky.shape))
         for component in self.components:
-            density = component.spectral_density(omega, kk, self.depth, self.gravity)
-            total += density * component.directional_density(theta, omega, self.gravity)
+            density = component.spectral_density(omega, kk, self.depth, self.gravity, speed)
+            total += density * component.directional_density(theta, omega, self.gravity, kk)
         return np.where(mask, total * jacobian, 0.0)
 
     # -- moments ---------------------------------------------------------------------
@@ -384,6 +430,23 @@ class SeaState:
         w_high = float(self.angular_frequency(k_high)) if np.isfinite(k_high) else np.inf
         return self.moment(0, w_low, w_high)
 
+    def slope_variance(self, k_low: float, k_high: float, *, panels: int = 1200) -> float:
+        """Mean-square slope ∫ k² F(k) dk of the wavenumbers between ``k_low`` and ``k_high`` rad/m.
+
+        F(k) = S(ω(k))·c_g(k) is the omnidirectional wavenumber spectrum (∫F dk = m0);
+        composite Gauss–Legendre in ln k, ``panels`` panels of 8 nodes. Dimensionless.
+        """
+        if not (0.0 < k_low < k_high < np.inf):
+            raise ValueError(f"k_low, k_high: ({k_low!r}, {k_high!r}) is not allowed; allowed: 0 < k_low < k_high < inf")
+        edges = np.linspace(math.log(k_low), math.log(k_high), panels + 1)
+        mid = 0.5 * (edges[1:] + edges[:-1])
+        half = 0.5 * (edges[1:] - edges[:-1])
+        u = (mid[:, None] + half[:, None] * _GAUSS_NODES[None, :]).ravel()
+        weights = (half[:, None] * _GAUSS_WEIGHTS[None, :]).ravel()
+        k = np.exp(u)
+        density = self.frequency_spectrum(self.angular_frequency(k)) * self.group_velocity(k)
+        return float(np.sum(weights * k**3 * density))  # dk = k du
+
     def peak_frequency(self) -> float:
         """ωp of the total spectrum in rad/s: the global maximum of S(ω)."""
         candidates = [c.peak_frequency for c in self.components]
@@ -412,7 +475,7 @@ class SeaState:
             omega = np.geomspace(min(0.2 * wp, breaks[0]), max(20.0 * wp, breaks[-1]), 2000)
         theta = np.linspace(-np.pi, np.pi, 2049)[:-1] + np.pi / 2048 + component.direction
         density = self.component_spectrum(index, omega)
-        d = component.directional_density(theta[None, :], omega[:, None], self.gravity)
+        d = component.directional_density(theta[None, :], omega[:, None], self.gravity, self.wavenumber(omega)[:, None])
         dtheta = 2.0 * np.pi / theta.size
         cos_mean = (d * np.cos(theta)[None, :]).sum(axis=1) * dtheta
         sin_mean = (d * np.sin(theta)[None, :]).sum(axis=1) * dtheta
@@ -530,7 +593,9 @@ def wind_sea(
     and the fully developed sea is returned (common practice: seas saturate).
 
     ``spectrum`` chooses the shape: ``jonswap`` (default), ``pierson_moskowitz``,
-    ``tma`` (JONSWAP × depth factor at ``depth``) or ``phillips`` (Tessendorf's form).
+    ``tma`` (JONSWAP × depth factor at ``depth``), ``phillips`` (Tessendorf's form) or
+    ``elfouhaily`` (the unified long- and short-wave spectrum of Elfouhaily et al. 1997,
+    whose own fetch law sets the wave age; deep water: its short waves need no depth).
     ``spread`` (radians) sets the cos-2s exponent when ``spreading`` is ``cos2s``.
     """
     wind_speed = _check_number("wind_speed", wind_speed, 0.0, _MAX_WIND)
@@ -549,6 +614,18 @@ def wind_sea(
     )
     if spectrum not in spectra.SPECTRA:
         raise ValueError(f"spectrum: {spectrum!r} is not a model; allowed: {', '.join(_SPECTRUM_NAMES)}")
+    if spectrum == "elfouhaily":
+        # Elfouhaily et al. (1997): the wave age Ωc = U10/c_p sets the peak, c_p = g/ωp.
+        if fetch is not None:
+            fetch = _check_number("fetch", fetch, 0.0, _MAX_FETCH)
+        omega_c = spectra.elfouhaily_inverse_wave_age(wind_speed, fetch, gravity=gravity)
+        return Component(
+            "elfouhaily",
+            gravity * omega_c / wind_speed,
+            spectra.elfouhaily_alpha_p(omega_c),
+            gamma=spectra.elfouhaily_gamma(omega_c),
+            **common,
+        )
     if spectrum == "phillips":
         return Component(
             "phillips",
@@ -608,10 +685,10 @@ def height_period(
     gamma = _check_number("gamma", gamma, 1.0, 10.0, low_open=False)
     if spectrum not in spectra.SPECTRA:
         raise ValueError(f"spectrum: {spectrum!r} is not a model; allowed: {', '.join(_SPECTRUM_NAMES)}")
-    if spectrum == "phillips":
+    if spectrum in ("phillips", "elfouhaily"):
         raise ValueError(
-            "spectrum: 'phillips' cannot be sized by height and period; "
-            "allowed: jonswap, pierson_moskowitz, tma (or size phillips by wind speed)"
+            f"spectrum: {spectrum!r} cannot be sized by height and period; "
+            f"allowed: jonswap, pierson_moskowitz, tma (or size {spectrum} by wind speed)"
         )
     if wind_speed is not None:
         wind_speed = _check_number("wind_speed", wind_speed, 0.0, _MAX_WIND)

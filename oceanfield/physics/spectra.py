@@ -19,10 +19,15 @@ Phillips, O. M. (1958). The equilibrium range in the spectrum of wind-generated 
 *J. Fluid Mech.* 4, 426–434.
 Tessendorf, J. (2001). Simulating Ocean Water. SIGGRAPH course notes (Phillips form).
 Stewart, R. H. (2008). *Introduction to Physical Oceanography*, eqs 16.28–16.38.
+Elfouhaily, T., Chapron, B., Katsaros, K. & Vandemark, D. (1997). A unified directional
+spectrum for long and short wind-driven waves. *JGR* 102(C7), 15781–15796.
+Donelan, M. A., Dobson, F. W., Smith, S. D. & Anderson, R. J. (1993). On the dependence of
+sea surface roughness on wave development. *JPO* 23, 2143–2149 (roughness length).
 """
 
 from __future__ import annotations
 
+import math
 from typing import Callable
 
 import numpy as np
@@ -47,6 +52,20 @@ __all__ = [
     "phillips",
     "phillips_peak_frequency",
     "phillips_wavenumber",
+    "ELFOUHAILY_DEVELOPED_INVERSE_WAVE_AGE",
+    "ELFOUHAILY_MINIMUM_PHASE_SPEED",
+    "ELFOUHAILY_MINIMUM_WAVENUMBER",
+    "elfouhaily",
+    "elfouhaily_inverse_wave_age",
+    "elfouhaily_peak_wavenumber",
+    "elfouhaily_friction_velocity",
+    "elfouhaily_phase_speed",
+    "elfouhaily_alpha_p",
+    "elfouhaily_alpha_m",
+    "elfouhaily_gamma",
+    "elfouhaily_sigma",
+    "elfouhaily_long_wave_curvature",
+    "elfouhaily_short_wave_curvature",
 ]
 
 #: Phillips' equilibrium-range constant α (Pierson & Moskowitz 1964: 8.1e-3).
@@ -344,10 +363,213 @@ def phillips_wavenumber(
     return np.where(mask, value, 0.0)
 
 
-#: The frequency-spectrum models by preset name.
+# -- the unified long- and short-wave spectrum (Elfouhaily et al. 1997) --------------------
+# Equation numbers below are those the paper's users cite (from memory): the spectrum and
+# long-wave curvature §3 (eqs 30–37), the short-wave curvature §4 (eqs 40–44), the
+# spreading §5 (eqs 49, 57; see spreading.py).
+
+#: Inverse wave age U10/c_p of a fully developed sea in the unified spectrum (Elfouhaily
+#: et al. 1997, §3: Ωc = 0.84 at infinite fetch).
+ELFOUHAILY_DEVELOPED_INVERSE_WAVE_AGE: float = 0.84
+#: Phase speed at the gravity–capillary minimum, c_m = 0.23 m/s (Elfouhaily et al. 1997, §4).
+ELFOUHAILY_MINIMUM_PHASE_SPEED: float = 0.23
+#: Wavenumber of the phase-speed minimum, k_m = 370 rad/m (Elfouhaily et al. 1997, §4).
+ELFOUHAILY_MINIMUM_WAVENUMBER: float = 370.0
+#: Dimensionless fetch scale X0 = 2.2e4 of the Ωc fetch law (Elfouhaily et al. 1997, eq. 37).
+_ELFOUHAILY_FETCH_SCALE: float = 2.2e4
+#: von Kármán constant (common practice: 0.40).
+VON_KARMAN: float = 0.40
+#: Charnock-type roughness z0 = 3.7e-5 (U10²/g)(U10/c_p)^0.9 (Donelan et al. 1993, as
+#: used by Elfouhaily et al. 1997, eq. 66; from memory).
+_ROUGHNESS_COEFFICIENT: float = 3.7e-5
+_ROUGHNESS_EXPONENT: float = 0.9
+_WIND_HEIGHT: float = 10.0  # m, the anemometer height of U10
+
+
+def elfouhaily_inverse_wave_age(wind_speed: float, fetch: float | None = None, *, gravity: float = GRAVITY) -> float:
+    """Inverse wave age Ωc = U10/c_p of a wind sea (Elfouhaily et al., 1997).
+
+    Ωc = 0.84 tanh[(X/X0)^0.4]^−0.75 with X = g·x/U10² and X0 = 2.2e4; ``fetch`` x in
+    metres, ``None`` for a fully developed sea (Ωc = 0.84). ``wind_speed`` in m/s at 10 m.
+
+    References
+    ----------
+    Elfouhaily et al. (1997), eq. 37.
+    """
+    if fetch is None:
+        return ELFOUHAILY_DEVELOPED_INVERSE_WAVE_AGE
+    x = gravity * fetch / wind_speed**2
+    return ELFOUHAILY_DEVELOPED_INVERSE_WAVE_AGE * math.tanh((x / _ELFOUHAILY_FETCH_SCALE) ** 0.4) ** -0.75
+
+
+def elfouhaily_peak_wavenumber(wind_speed: float, inverse_wave_age: float, *, gravity: float = GRAVITY) -> float:
+    """Peak wavenumber kp = k0·Ωc² in rad/m, k0 = g/U10² (Elfouhaily et al., 1997, §3).
+
+    Deep-water gravity waves at the peak: c_p = √(g/kp) = U10/Ωc.
+    """
+    return gravity / wind_speed**2 * inverse_wave_age**2
+
+
+def elfouhaily_friction_velocity(wind_speed: float, inverse_wave_age: float, *, gravity: float = GRAVITY) -> float:
+    """Friction velocity u* in m/s from U10 through a wave-age-dependent roughness.
+
+    u* = κ U10 / ln(10 m / z0), z0 = 3.7e-5 (U10²/g) Ωc^0.9 (a neutral logarithmic wind
+    profile with the roughness of Donelan et al. 1993). This is the drag law the unified
+    spectrum's paper uses itself (from memory); other implementations use a fixed drag
+    coefficient instead, which gives u* within a few per cent at 5–15 m/s.
+
+    References
+    ----------
+    Elfouhaily et al. (1997), eq. 66 (from memory); Donelan et al. (1993).
+    """
+    z0 = _ROUGHNESS_COEFFICIENT * wind_speed**2 / gravity * inverse_wave_age**_ROUGHNESS_EXPONENT
+    return VON_KARMAN * wind_speed / math.log(_WIND_HEIGHT / z0)
+
+
+def elfouhaily_phase_speed(
+    k: ArrayLike, *, gravity: float = GRAVITY, minimum_wavenumber: float = ELFOUHAILY_MINIMUM_WAVENUMBER
+) -> NDArray[np.float64]:
+    """Deep-water gravity–capillary phase speed c = √((g/k)(1 + (k/k_m)²)) in m/s.
+
+    ``k`` in rad/m (> 0). The form the unified spectrum is written with (Elfouhaily et al.
+    1997, §2), equal to the dispersion relation with surface tension T/ρ = g/k_m².
+    """
+    k = np.asarray(k, dtype=np.float64)
+    return np.sqrt(gravity / k * (1.0 + (k / minimum_wavenumber) ** 2))
+
+
+def elfouhaily_alpha_p(inverse_wave_age: float) -> float:
+    """Generalised Phillips–Kitaigorodskii equilibrium parameter α_p = 6e-3 Ωc^0.55.
+
+    References
+    ----------
+    Elfouhaily et al. (1997), eq. 34.
+    """
+    return 6.0e-3 * inverse_wave_age**0.55
+
+
+def elfouhaily_alpha_m(friction_velocity: float, *, minimum_phase_speed: float = ELFOUHAILY_MINIMUM_PHASE_SPEED) -> float:
+    """Short-wave equilibrium parameter α_m from u*/c_m.
+
+    α_m = 0.01 [1 + ln(u*/c_m)] for u* ≤ c_m, 0.01 [1 + 3 ln(u*/c_m)] above.
+    ``friction_velocity`` in m/s. It sets the level of the curvature's high-k plateau.
+
+    References
+    ----------
+    Elfouhaily et al. (1997), eq. 44.
+    """
+    ratio = friction_velocity / minimum_phase_speed
+    return 0.01 * (1.0 + (1.0 if ratio <= 1.0 else 3.0) * math.log(ratio))
+
+
+def elfouhaily_gamma(inverse_wave_age: float) -> float:
+    """Peak enhancement γ: 1.7 for 0.84 ≤ Ωc < 1, 1.7 + 6 log10 Ωc for 1 ≤ Ωc < 5.
+
+    References
+    ----------
+    Elfouhaily et al. (1997), eq. 3.
+    """
+    return 1.7 if inverse_wave_age < 1.0 else 1.7 + 6.0 * math.log10(inverse_wave_age)
+
+
+def elfouhaily_sigma(inverse_wave_age: float) -> float:
+    """Peak width σ = 0.08 (1 + 4 Ωc⁻³) (Elfouhaily et al., 1997, eq. 3)."""
+    return 0.08 * (1.0 + 4.0 * inverse_wave_age**-3)
+
+
+def elfouhaily_long_wave_curvature(
+    k: ArrayLike, *, wind_speed: float, inverse_wave_age: float, gravity: float = GRAVITY
+) -> NDArray[np.float64]:
+    """Long-wave curvature spectrum B_l(k) = ½ α_p (c_p/c) F_p (Elfouhaily et al., 1997).
+
+    F_p = L_PM · J_p · exp[−(Ωc/√10)(√(k/kp) − 1)], L_PM = exp[−(5/4)(kp/k)²],
+    J_p = γ^Γ, Γ = exp[−(√(k/kp) − 1)² / (2σ²)]. ``k`` in rad/m; dimensionless; 0 at k ≤ 0.
+
+    References
+    ----------
+    Elfouhaily et al. (1997), eqs 31–34 (and eq. 3 for γ, σ).
+    """
+    k = np.asarray(k, dtype=np.float64)
+    mask = k > 0
+    kk = np.where(mask, k, 1.0)
+    kp = elfouhaily_peak_wavenumber(wind_speed, inverse_wave_age, gravity=gravity)
+    root = np.sqrt(kk / kp)
+    with np.errstate(under="ignore", over="ignore"):
+        l_pm = np.exp(-1.25 * (kp / kk) ** 2)
+        big_gamma = np.exp(-((root - 1.0) ** 2) / (2.0 * elfouhaily_sigma(inverse_wave_age) ** 2))
+        j_p = elfouhaily_gamma(inverse_wave_age) ** big_gamma
+        f_p = l_pm * j_p * np.exp(-inverse_wave_age / math.sqrt(10.0) * (root - 1.0))
+    c_p = elfouhaily_phase_speed(kp, gravity=gravity)
+    c = elfouhaily_phase_speed(kk, gravity=gravity)
+    return np.where(mask, 0.5 * elfouhaily_alpha_p(inverse_wave_age) * c_p / c * f_p, 0.0)
+
+
+def elfouhaily_short_wave_curvature(
+    k: ArrayLike, *, wind_speed: float, inverse_wave_age: float, gravity: float = GRAVITY
+) -> NDArray[np.float64]:
+    """Short-wave curvature spectrum B_h(k) = ½ α_m (c_m/c) F_m (Elfouhaily et al., 1997).
+
+    F_m = L_PM · exp[−¼(k/k_m − 1)²]. ``k`` in rad/m; dimensionless; 0 at k ≤ 0.
+
+    The factor L_PM = exp[−(5/4)(kp/k)²] is our choice where implementations differ:
+    without it B_h·k⁻³ grows like k^−2.5 towards k = 0 and the variance diverges, so the
+    spectrum has no finite Hs; with it the long-wave variance is unchanged to 1e-3.
+
+    References
+    ----------
+    Elfouhaily et al. (1997), eqs 40–44.
+    """
+    k = np.asarray(k, dtype=np.float64)
+    mask = k > 0
+    kk = np.where(mask, k, 1.0)
+    kp = elfouhaily_peak_wavenumber(wind_speed, inverse_wave_age, gravity=gravity)
+    friction = elfouhaily_friction_velocity(wind_speed, inverse_wave_age, gravity=gravity)
+    with np.errstate(under="ignore", over="ignore"):
+        l_pm = np.exp(-1.25 * (kp / kk) ** 2)
+        f_m = l_pm * np.exp(-0.25 * (kk / ELFOUHAILY_MINIMUM_WAVENUMBER - 1.0) ** 2)
+    c = elfouhaily_phase_speed(kk, gravity=gravity)
+    return np.where(mask, 0.5 * elfouhaily_alpha_m(friction) * ELFOUHAILY_MINIMUM_PHASE_SPEED / c * f_m, 0.0)
+
+
+def elfouhaily(
+    k: ArrayLike, *, wind_speed: float, inverse_wave_age: float = ELFOUHAILY_DEVELOPED_INVERSE_WAVE_AGE,
+    gravity: float = GRAVITY,
+) -> NDArray[np.float64]:
+    """Unified omnidirectional wavenumber spectrum (Elfouhaily, Chapron, Katsaros & Vandemark, 1997).
+
+    S(k) = k⁻³ [B_l(k) + B_h(k)], in m³/rad (m² per rad/m), so that ∫S dk = m0 and
+    ∫k²S dk is the mean-square slope. Unlike the other models of this module it is a
+    *wavenumber* spectrum: convert with S(ω) = S(k)/c_g.
+
+    Parameters
+    ----------
+    k : array_like
+        Wavenumber in rad/m.
+    wind_speed : float
+        U10 in m/s.
+    inverse_wave_age : float
+        Ωc = U10/c_p (0.84 fully developed; see :func:`elfouhaily_inverse_wave_age`).
+    gravity : float
+        m/s².
+
+    References
+    ----------
+    Elfouhaily et al. (1997), eq. 30 (with eqs 31–44).
+    """
+    k = np.asarray(k, dtype=np.float64)
+    mask = k > 0
+    kk = np.where(mask, k, 1.0)
+    common = dict(wind_speed=wind_speed, inverse_wave_age=inverse_wave_age, gravity=gravity)
+    curvature = elfouhaily_long_wave_curvature(kk, **common) + elfouhaily_short_wave_curvature(kk, **common)
+    return np.where(mask, curvature / kk**3, 0.0)
+
+
+#: The spectrum models by preset name: frequency spectra S(ω), except ``elfouhaily``, a
+#: wavenumber spectrum S(k) (see :func:`elfouhaily`).
 SPECTRA: dict[str, Callable[..., NDArray[np.float64]]] = {
     "jonswap": jonswap,
     "pierson_moskowitz": pierson_moskowitz,
     "tma": tma,
     "phillips": phillips,
+    "elfouhaily": elfouhaily,
 }

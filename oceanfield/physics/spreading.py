@@ -17,6 +17,8 @@ during JONSWAP 1973. *JPO* 10, 1264–1280.
 Donelan, M. A., Hamilton, J. & Hui, W. H. (1985). Directional spectra of wind-generated
 waves. *Phil. Trans. R. Soc. A* 315, 509–562.
 Banner, M. L. (1990). Equilibrium spectra of wind waves. *JPO* 20, 966–984.
+Elfouhaily, T., Chapron, B., Katsaros, K. & Vandemark, D. (1997). A unified directional
+spectrum for long and short wind-driven waves. *JGR* 102(C7), 15781–15796.
 Kuik, A. J., van Vledder, G. Ph. & Holthuijsen, L. H. (1988). A method for the routine
 analysis of pitch-and-roll buoy wave data. *JPO* 18, 1020–1034.
 """
@@ -42,6 +44,8 @@ __all__ = [
     "hasselmann_exponent",
     "donelan_banner",
     "donelan_banner_beta",
+    "elfouhaily_delta",
+    "elfouhaily_spreading",
     "spreading",
 ]
 
@@ -180,6 +184,41 @@ def donelan_banner(theta: ArrayLike, ratio: ArrayLike) -> NDArray[np.float64]:
     return beta / (2.0 * np.tanh(beta * np.pi)) / np.cosh(beta * theta) ** 2
 
 
+def elfouhaily_delta(
+    c_over_cp: ArrayLike, friction_over_cm: float, cm_over_c: ArrayLike
+) -> NDArray[np.float64]:
+    """Upwind–crosswind ratio Δ(k) of the unified spectrum's spreading (Elfouhaily et al., 1997).
+
+    Δ = tanh[a0 + a_p (c/c_p)^2.5 + a_m (c_m/c)^2.5], a0 = ln 2 / 4, a_p = 4,
+    a_m = 0.13 u*/c_m. Arguments are the dimensionless ratios of phase speeds c (of each
+    wavenumber), c_p (at the peak), c_m (at the gravity–capillary minimum) and u*/c_m.
+
+    References
+    ----------
+    Elfouhaily et al. (1997), eq. 57 (from memory).
+    """
+    c_over_cp = np.asarray(c_over_cp, dtype=np.float64)
+    cm_over_c = np.asarray(cm_over_c, dtype=np.float64)
+    a0 = np.log(2.0) / 4.0
+    a_m = 0.13 * friction_over_cm
+    return np.tanh(a0 + 4.0 * c_over_cp**2.5 + a_m * cm_over_c**2.5)
+
+
+def elfouhaily_spreading(theta: ArrayLike, delta: ArrayLike) -> NDArray[np.float64]:
+    """Spreading of the unified spectrum, Φ = (1/2π)[1 + Δ cos 2θ] (Elfouhaily et al., 1997).
+
+    Centrosymmetric: as much energy runs against the mean direction as with it (use
+    ``suppress_opposing`` for waves that all run one way). Integrates to 1 for any
+    |Δ| ≤ 1. ``theta`` in radians from the mean; returns 1/rad.
+
+    References
+    ----------
+    Elfouhaily et al. (1997), eq. 49 (from memory).
+    """
+    theta = np.asarray(theta, dtype=np.float64)
+    return (1.0 + np.asarray(delta, dtype=np.float64) * np.cos(2.0 * theta)) / (2.0 * np.pi)
+
+
 def _forward_fraction_sech2(beta: NDArray[np.float64]) -> NDArray[np.float64]:
     return np.tanh(beta * np.pi / 2.0) / np.tanh(beta * np.pi)
 
@@ -191,6 +230,7 @@ SPREADING: dict[str, str] = {
     "mitsuyasu": "cos-2s with s(ω/ωp) from Mitsuyasu et al. (1975)",
     "hasselmann": "cos-2s with s(ω/ωp) from Hasselmann et al. (1980)",
     "donelan_banner": "sech² from Donelan et al. (1985), Banner (1990) above 1.6 ωp",
+    "elfouhaily": "1 + Δ(k) cos 2θ of the unified spectrum (Elfouhaily et al. 1997); needs the wind",
 }
 
 
@@ -202,6 +242,7 @@ def spreading(
     s: float = 10.0,
     inverse_wave_age: float = DEFAULT_INVERSE_WAVE_AGE,
     suppress_opposing: bool = False,
+    delta: ArrayLike | None = None,
 ) -> NDArray[np.float64]:
     """Evaluate the spreading model ``name`` at θ (radians from the mean) and ω/ωp.
 
@@ -220,6 +261,8 @@ def spreading(
     suppress_opposing : bool
         Drop the energy running more than 90° from the mean direction and rescale the
         rest so D still integrates to 1 (common practice for a wind sea).
+    delta : array_like or None
+        Δ(k) of the ``elfouhaily`` model (see :func:`elfouhaily_delta`), broadcastable.
 
     Returns
     -------
@@ -230,7 +273,12 @@ def spreading(
         raise ValueError(f"spreading: {name!r} is not a model; allowed: {', '.join(SPREADING)}")
     theta = wrap_angle(theta)
     ratio = np.asarray(ratio, dtype=np.float64)
-    if name == "donelan_banner":
+    if name == "elfouhaily":
+        if delta is None:
+            raise ValueError("delta: None is not allowed for the elfouhaily spreading; allowed: Δ(k) in [-1, 1]")
+        value = elfouhaily_spreading(theta, delta) + np.zeros_like(ratio)
+        forward = np.asarray(0.5)
+    elif name == "donelan_banner":
         beta = donelan_banner_beta(ratio)
         value = donelan_banner(theta, ratio)
         forward = _forward_fraction_sech2(beta)

@@ -30,6 +30,7 @@ _SKY = np.array([0.55, 0.68, 0.80])
 _FOAM = np.array([0.90, 0.92, 0.93])
 _SUN_DIRECTION = np.array([0.0, 0.94, 0.34])  # low sun ahead of the viewer: glitter path
 _VIEW_DIRECTION = np.array([0.0, -0.87, 0.50])  # a camera 30° above the horizon looking toward +y
+_PREVIEW_COMPOSITE_TEXELS = 768  # the composite of a banded preset, summed exactly on this grid
 _WATER_REFLECTANCE = 0.02  # Fresnel reflectance of water at normal incidence, (n−1)²/(n+1)², n = 1.33
 _SUN_ELEVATION_DEG = 25.0  # the top view's low sun (demo look): slopes facing it light up
 #: The top view shows at most this many mean wavelengths (of the mean period Tm02) across:
@@ -174,29 +175,43 @@ def preview_figure(preset, *, frame: int | None = None):
 
     frame = _checked_frame(preset.time.first_frame if frame is None else frame)
     sea = to_sea_state(preset)
-    ocean = Ocean.from_preset(preset, velocity=False)
     t = preset.time.frame_time(frame)
-    fields = ocean.frame(t)
     stats = sea.statistics()
-    size = preset.tile.size_m
+    if preset.bands.active:
+        # The bands summed over the declared reach, where repetition would show.
+        from .banding import band_stack
+
+        stack = band_stack(preset, foam_memory=0.0)
+        size = preset.bands.reach_m or preset.bands.composite_extent_m or stack.bands[0].tile.size
+        fields = stack.composite(t, extent=size, resolution=_PREVIEW_COMPOSITE_TEXELS)
+        carried = (stack.bands[0].tile.dk, max(min(b.k_high, b.tile.nyquist) for b in stack.bands),
+                   "periods the bands carry")
+        what = f"{len(stack.bands)} bands summed over {length_text(size)} at {_PREVIEW_COMPOSITE_TEXELS}²"
+        texels, across = _PREVIEW_COMPOSITE_TEXELS, size
+        part = f"the bands summed over {length_text(size)}"
+    else:
+        ocean = Ocean.from_preset(preset, velocity=False)
+        fields = ocean.frame(t)
+        size = preset.tile.size_m
+        carried = (ocean.tile.dk, ocean.tile.nyquist, "periods the tile carries")
+        what = f"tile {length_text(size)} at {preset.tile.resolution}²"
+        texels, across = _window(preset, sea)
+        part = "the whole tile" if texels == preset.tile.resolution else f"a {length_text(across)} corner of the tile"
     unit, factor = _unit_for(size)
     extent = (0.0, size * factor, 0.0, size * factor)
 
     figure = plt.figure(figsize=(16, 10), dpi=100)
     figure.suptitle(
         f"{preset.name}: {preset.description}\nframe {frame} (t = {t:.2f} s), Hs {length_text(stats.hs)}, "
-        f"Tp {stats.tp:.3g} s, peak wavelength {length_text(stats.peak_wavelength)}, tile {length_text(size)} at "
-        f"{preset.tile.resolution}²",
+        f"Tp {stats.tp:.3g} s, peak wavelength {length_text(stats.peak_wavelength)}, {what}",
         fontsize=10,
     )
 
-    texels, across = _window(preset, sea)
     top_axes = figure.add_subplot(2, 3, 1)
     picture = shade_top(fields.normal[:texels, :texels], fields.foam[:texels, :texels],
                         sun_azimuth=stats.mean_direction + math.pi)
     top_axes.imshow(picture, origin="lower", extent=(0.0, across * factor, 0.0, across * factor),
                     interpolation="bilinear")
-    part = "the whole tile" if texels == preset.tile.resolution else f"a {length_text(across)} corner of the tile"
     top_axes.set_title(f"top view, low sun facing the waves: {part}", fontsize=9)
     top_axes.set_xlabel(f"x ({unit})")
     top_axes.set_ylabel(f"y ({unit})")
@@ -217,7 +232,7 @@ def preview_figure(preset, *, frame: int | None = None):
     foam_axes.set_title(f"foam, top view: {covered:.1%} of the surface above 0.5", fontsize=10)
     foam_axes.set_xlabel(f"x ({unit})")
 
-    _spectrum_panel(figure.add_subplot(2, 3, 4), preset, sea, ocean)
+    _spectrum_panel(figure.add_subplot(2, 3, 4), preset, sea, carried)
     _direction_panel(figure.add_subplot(2, 3, 5, projection="polar"), sea, stats)
     _figures_panel(figure.add_subplot(2, 3, 6), preset, stats)
 
@@ -225,8 +240,9 @@ def preview_figure(preset, *, frame: int | None = None):
     return figure
 
 
-def _spectrum_panel(axes, preset, sea, ocean) -> None:
-    """S(ω) of each component and the total, against period, with wavelength above."""
+def _spectrum_panel(axes, preset, sea, carried) -> None:
+    """S(ω) of each component and the total, against period, with wavelength above;
+    ``carried`` = (lowest k, highest k, label) of the waves the tile or bands carry."""
     peaks = [c.peak_frequency for c in sea.components]
     omega = np.geomspace(min(peaks) * 0.3, max(peaks) * 8.0, 600)
     period = 2.0 * math.pi / omega
@@ -234,9 +250,9 @@ def _spectrum_panel(axes, preset, sea, ocean) -> None:
         axes.plot(period, sea.component_spectrum(index, omega), lw=1.2, label=settings.label or settings.spectrum)
     if len(sea.components) > 1:
         axes.plot(period, sea.frequency_spectrum(omega), "k", lw=1.8, label="total")
-    longest = 2.0 * math.pi / float(sea.angular_frequency(ocean.tile.dk))
-    shortest = 2.0 * math.pi / float(sea.angular_frequency(ocean.tile.nyquist))
-    axes.axvspan(shortest, longest, color="0.9", zorder=0, label="periods the tile carries")
+    longest = 2.0 * math.pi / float(sea.angular_frequency(carried[0]))
+    shortest = 2.0 * math.pi / float(sea.angular_frequency(carried[1]))
+    axes.axvspan(shortest, longest, color="0.9", zorder=0, label=carried[2])
     axes.set_xscale("log")
     axes.set_yscale("log")
     top = float(sea.frequency_spectrum(omega).max())
@@ -302,6 +318,16 @@ def _figures_panel(axes, preset, stats) -> None:
         ("peak wavelengths across", f"{size / stats.peak_wavelength:.2g}"),
         ("image rows", "row 0 is y = 0 (drawn at the bottom here)"),
     ]
+    if preset.bands.active:  # the tile section stands for nothing here: say what the bands are
+        from .banding import preset_bands
+
+        bands = preset_bands(preset)
+        shortest = 2.0 * math.pi / max(min(b.k_high, b.tile.nyquist) for b in bands)
+        rows[6:8] = [
+            ("bands", f"{len(bands)}: {length_text(bands[0].tile.size)} at {bands[0].tile.resolution}² "
+                      f"down to {length_text(bands[-1].tile.size)}"),
+            ("waves carried", f"{length_text(bands[0].tile.size)} to {length_text(shortest)}"),
+        ]
     axes.axis("off")
     text = "\n".join(f"{name:<28}{value}" for name, value in rows)
     axes.text(0.0, 1.0, text, family="monospace", fontsize=9, va="top", ha="left", transform=axes.transAxes)
@@ -340,18 +366,32 @@ def write_flipbook(preset, frames, *, out: str | Path | None = None) -> Path:
     else:
         options = dict(duration=1000.0 / preset.time.fps, loop=0)
 
-    ocean = Ocean.from_preset(preset, velocity=False)
-    stats = ocean.sea_state.statistics()
-    texels, _ = _window(preset, ocean.sea_state)
-    buffer = ocean.new_buffer()
+    if preset.bands.active:
+        # The bands summed over the reach (exact sums, a few hundred texels a side).
+        from .banding import band_stack
+
+        stack = band_stack(preset, foam_memory=0.0)
+        stats = stack.sea_state.statistics()
+        texels = _FLIPBOOK_MIN_PIXELS
+        reach = preset.bands.reach_m or preset.bands.composite_extent_m or stack.bands[0].tile.size
+
+        def lit(frame: int):
+            fields = stack.composite(preset.time.frame_time(frame), extent=reach, resolution=texels)
+            return fields.normal, fields.foam
+    else:
+        ocean = Ocean.from_preset(preset, velocity=False)
+        stats = ocean.sea_state.statistics()
+        texels, _ = _window(preset, ocean.sea_state)
+        buffer = ocean.new_buffer()
+
+        def lit(frame: int):
+            fields = ocean.frame(preset.time.frame_time(frame), buffer=buffer)
+            return fields.normal[:texels, :texels], fields.foam[:texels, :texels]
+
     sun = stats.mean_direction + math.pi
     elevation = math.radians(_SUN_ELEVATION_DEG)
     sun_vector = np.array([math.cos(elevation) * math.cos(sun), math.cos(elevation) * math.sin(sun),
                            math.sin(elevation)])
-
-    def lit(frame: int):
-        fields = ocean.frame(preset.time.frame_time(frame), buffer=buffer)
-        return fields.normal[:texels, :texels], fields.foam[:texels, :texels]
 
     # One stretch for the clip, from its first, middle and last frames: no flicker, and no
     # need to hold every frame's normals.

@@ -47,7 +47,8 @@ from ._yamltree import (
     read_tree,
     valid,
 )
-from ..physics.constants import GRAVITY, SEAWATER_DENSITY
+from .banding import NO_BANDS, SHORT_WAVES_NEED_TENSION_M, BandSettings, read_bands
+from ..physics.constants import GRAVITY, SEAWATER_DENSITY, SURFACE_TENSION
 from ..surface.amplitudes import WAVE_HEIGHTS
 from ..surface.maps import MAPS, UP_AXES
 from ..physics.seastate import Component, SeaState, beaufort_sea, height_period, wind_sea
@@ -238,6 +239,7 @@ class Preset:
     time: TimeSettings
     output: OutputSettings
     scene: SceneSettings
+    bands: BandSettings = NO_BANDS
     name: str = field(default="", compare=False)
     source: Path | None = field(default=None, compare=False)
 
@@ -442,6 +444,8 @@ def preset_hash(preset: Preset) -> str:
     for component in tree["sea"]["components"]:  # a record counts by its contents, not its path
         if component.get("record"):
             del component["record"]["file"]
+    if not preset.bands.active and preset.bands == NO_BANDS:
+        del tree["bands"]  # a single tile hashes as it did before bands existed
     canonical = json.dumps(tree, sort_keys=True, separators=(",", ":"), allow_nan=False)
     return hashlib.sha256(canonical.encode("utf-8")).hexdigest()
 
@@ -549,20 +553,33 @@ def _build_preset(tree: Node, errors: list[str], path: Path, allow_outside_outpu
     top.asked.append("extends")  # read before merging; listed so typos of it get a suggestion
     description = top.text("description", "")
     seed = top.number("seed", 0, low=0, high=_MAX_SEED, whole=True)
-    sea = _read_sea(top.section("sea"), component_sections)
-    tile = _read_tile(top.section("tile"))
+    sea_section = top.section("sea")
+    sea = _read_sea(sea_section, component_sections)
+    tile_section = top.section("tile")
+    tile = _read_tile(tile_section)
     surface = _read_surface(top.section("surface"))
     maps = _read_maps(top)
     time = _read_time(top.section("time"))
     output = _read_output(top.section("output"), maps, allow_outside_output)
     scene = _read_scene(top.section("scene"))
+    # tile keys written with values other than the defaults (a dumped preset writes them all)
+    tile_written = {key for key in tile_section.items
+                    if valid(tile) and getattr(tile, str(key), None) != getattr(_DEFAULT_TILE, str(key), None)}
+    bands = read_bands(top.section("bands"), tile_written=tile_written, maps=maps,
+                       multilayer=output.multilayer if valid(output) else None)
     context.report_unknown_keys()
+    if valid(bands) and valid(sea) and bands.active and "surface_tension_npm" not in sea_section.items:
+        # Bands reaching ripples shorter than ~10 cm: clean water's surface tension by default.
+        shortest = bands.shortest_wave_m if bands.reach_m is not None else min(
+            (t.shortest_wave_m or 2.0 * t.size_m / t.resolution) for t in bands.tiles)
+        if shortest < SHORT_WAVES_NEED_TENSION_M:
+            sea = replace(sea, surface_tension_npm=SURFACE_TENSION)
     if not errors:
         _check_physics(sea, component_sections, scene.north_deg)
     if errors:
         return None
     return Preset(
-        description, seed, sea, tile, surface, maps, time, output, scene, name=path.stem, source=path.resolve()
+        description, seed, sea, tile, surface, maps, time, output, scene, bands, name=path.stem, source=path.resolve()
     )
 
 
@@ -726,9 +743,12 @@ def _read_record_component(sec: Section) -> Any:
                              record)
 
 
+_DEFAULT_TILE = TileSettings(256.0, 512)
+
+
 def _read_tile(sec: Section) -> TileSettings:
-    size = sec.number("size_m", 256.0, low=0.01, high=100_000.0)
-    resolution = sec.number("resolution", 512, low=16, high=16384, whole=True)
+    size = sec.number("size_m", _DEFAULT_TILE.size_m, low=0.01, high=100_000.0)
+    resolution = sec.number("resolution", _DEFAULT_TILE.resolution, low=16, high=16384, whole=True)
     if valid(resolution) and resolution % 2:
         resolution = sec.fail("resolution", f"`{resolution}` is odd (allowed: an even whole number)")
     heights = sec.choice("wave_heights", "as_requested", WAVE_HEIGHTS)

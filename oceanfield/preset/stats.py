@@ -51,6 +51,13 @@ def fold_warning(preset, ocean=None) -> str | None:
     """A warning when the lateral factor folds more than 10 % of the surface, else None."""
     if preset.surface.lateral_factor == 0:
         return None
+    if ocean is None and preset.bands.active:  # the folding happens in band 0, the long waves
+        from .banding import preset_bands
+        from ..surface.synth import Ocean
+
+        band = preset_bands(preset)[0]
+        ocean = Ocean(preset.sea_state(), band.tile, seed=preset.seed, lateral_factor=preset.surface.lateral_factor,
+                      fold_threshold=preset.surface.fold_threshold, wavenumber_range=(band.k_low, band.k_high))
     if ocean is None:
         from ..surface.synth import Ocean
 
@@ -85,15 +92,28 @@ def sea_report(preset) -> dict[str, Any]:
     from .schema import to_sea_state
     from ..surface.synth import Ocean
 
+    from .banding import band_stack
+
     sea = to_sea_state(preset)
     total = sea.statistics()
     components = []
     for settings, stats in zip(preset.sea.components, sea.component_statistics()):
         components.append({"label": settings.label, "spectrum": settings.spectrum, **_row(stats)})
-    ocean = Ocean.from_preset(preset, velocity=False, foam_memory=0.0)
+    if preset.bands.active:
+        stack = band_stack(preset, foam_memory=0.0)
+        oceans = stack.oceans
+    else:
+        oceans = [Ocean.from_preset(preset, velocity=False, foam_memory=0.0)]
+    ocean = oceans[0]
     tile = ocean.tile
     folded, foamy = surface_shares(ocean)
     threshold = ocean.fold_threshold
+    banding = _band_rows(sea, oceans, preset)
+    captured = ocean.lattice_variance / total.m0
+    shortest = 2.0 * math.pi / tile.nyquist
+    if preset.bands.active:  # what all the bands capture, down to the last band's shortest wave
+        captured = (banding["hs_m"] / 4.0) ** 2 / total.m0
+        shortest = 2.0 * math.pi / banding["bands"][-1]["k_high_radpm"]
     return {
         "preset": preset.name,
         "description": preset.description,
@@ -104,13 +124,13 @@ def sea_report(preset) -> dict[str, Any]:
             "size_m": tile.size,
             "resolution": tile.resolution,
             "texel_m": tile.spacing,
-            "shortest_wavelength_m": 2.0 * math.pi / tile.nyquist,
+            "shortest_wavelength_m": shortest,
             "tile_over_peak_wavelength": tile.size / total.peak_wavelength,
-            # the lattice's Σ Ψ Δk² over the sea's m0: what the tile and resolution capture
-            "captured_variance_share": ocean.lattice_variance / total.m0,
-            "unresolved_short_wave_share": sea.band_variance(tile.nyquist, math.inf) / total.m0,
-            # the Hs this tile holds for the preset's seed, 4√(Σ 2|h0|²), beside total.hs_m
-            "realised_hs_m": ocean.realised_hs,
+            # the lattice's Σ Ψ Δk² over the sea's m0: what the tile (or the bands) capture
+            "captured_variance_share": captured,
+            "unresolved_short_wave_share": sea.band_variance(2.0 * math.pi / shortest, math.inf) / total.m0,
+            # the Hs the tile (all its bands) holds for the preset's seed, 4√(Σ 2|h0|²), beside total.hs_m
+            "realised_hs_m": 4.0 * math.sqrt(sum(o.realised_variance for o in oceans)),
             "wave_heights": ocean.wave_heights,
             "seed": preset.seed,
         },
@@ -121,7 +141,50 @@ def sea_report(preset) -> dict[str, Any]:
         "whitecap_coverage": ocean.whitecap_coverage,
         "foam_surface_share": foamy,
         "fold_threshold": threshold if math.isfinite(threshold) else None,
+        **banding,
     }
+
+
+def _band_rows(sea, oceans, preset) -> dict[str, Any]:
+    """Each band's (or the single tile's) share: size, resolution, wavenumbers, Hs and
+    mean-square slope from its lattice sums; the totals; Cox & Munk's clean-surface slope
+    for the strongest wind (Cox & Munk 1954: 0.003 + 5.12e-3 U, U at 12.5 m taken as U10;
+    the total fit from memory, its up- and cross-wind parts confirmed)."""
+    from ..surface.bands import Band, band_moments
+
+    rows = []
+    variance = slope = 0.0
+    for ocean in oceans:
+        low, high = ocean.wavenumber_range or (0.0, math.inf)
+        band = Band(ocean.tile, low, high)
+        v, s = band_moments(sea, band)
+        variance += v
+        slope += s
+        rows.append({
+            "size_m": ocean.tile.size,
+            "resolution": ocean.tile.resolution,
+            "k_low_radpm": max(low, ocean.tile.dk),
+            "k_high_radpm": min(high, ocean.tile.nyquist),
+            "hs_m": 4.0 * math.sqrt(v),
+            "mean_square_slope": s,
+        })
+    winds = [c.wind_speed for c in sea.components if c.wind_speed]
+    out: dict[str, Any] = {
+        "hs_m": 4.0 * math.sqrt(variance),
+        "mean_square_slope": slope,
+        "cox_munk_mean_square_slope": 0.003 + 5.12e-3 * max(winds) if winds else None,
+        "bands": rows if preset.bands.active else [],
+    }
+    if preset.bands.active:
+        settings = preset.bands
+        out["band_layout"] = {
+            "reach_m": settings.reach_m,
+            "shortest_wave_m": settings.shortest_wave_m,
+            "chosen": settings.reach_m is not None,
+            "composite_extent_m": settings.composite_extent_m,
+            "surface_tension_npm": preset.sea.surface_tension_npm,
+        }
+    return out
 
 
 def format_sea_report(report: dict[str, Any]) -> str:
@@ -143,13 +206,14 @@ def format_sea_report(report: dict[str, Any]) -> str:
         )
     tile = report["tile"]
     lines.append(
-        f"tile: {tile['size_m']:g} m at {tile['resolution']}² ({tile['texel_m'] * 100:.1f} cm texels, "
+        f"{'band 0' if report.get('bands') else 'tile'}: {tile['size_m']:g} m at {tile['resolution']}² ({tile['texel_m'] * 100:.1f} cm texels, "
         f"{tile['tile_over_peak_wavelength']:.1f} peak wavelengths across)"
     )
+    where = "the bands'" if report.get("bands") else "the tile's"
     lines.append(
         f"captured: {tile['captured_variance_share'] * 100:.1f} % of the sea's variance "
         f"({tile['unresolved_short_wave_share'] * 100:.1f} % is in waves shorter than "
-        f"{tile['shortest_wavelength_m']:.2f} m, below the tile's resolution)"
+        f"{tile['shortest_wavelength_m']:.3g} m, below {where} resolution)"
     )
     lines.append(
         f"height: Hs {report['total']['hs_m']:.2f} m asked, {tile['realised_hs_m']:.2f} m in this tile "
@@ -160,6 +224,22 @@ def format_sea_report(report: dict[str, Any]) -> str:
         f"{report['lateral_factor']:g}"
     )
     lines.append(_foam_line(report))
+    if report.get("bands"):
+        layout = report["band_layout"]
+        how = (f"chosen for a reach of {layout['reach_m']:g} m down to {layout['shortest_wave_m']:g} m waves"
+               if layout["chosen"] else "as listed")
+        lines.append(f"bands ({how}; every wave in exactly one band):")
+        lines.append(f"  {'band':>4} {'size m':>10} {'texels':>7} {'λ from m':>10} {'λ to m':>9} {'Hs m':>8} {'mss':>8}")
+        for index, band in enumerate(report["bands"]):
+            lines.append(
+                f"  {index:>4} {band['size_m']:>10.4g} {band['resolution']:>7d} "
+                f"{2 * math.pi / band['k_low_radpm']:>10.4g} {2 * math.pi / band['k_high_radpm']:>9.3g} "
+                f"{band['hs_m']:>8.3g} {band['mean_square_slope']:>8.4f}"
+            )
+    slope_line = f"slopes: mean-square slope {report['mean_square_slope']:.4f}, Hs carried {report['hs_m']:.3g} m"
+    if report.get("cox_munk_mean_square_slope") is not None:
+        slope_line += f" (sun-glitter measurements, Cox & Munk 1954: {report['cox_munk_mean_square_slope']:.4f})"
+    lines.append(slope_line)
     return "\n".join(lines)
 
 

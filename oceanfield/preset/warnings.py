@@ -45,6 +45,14 @@ def preset_warnings(preset: Preset, *, sea_state: SeaState | None = None) -> lis
     """
     sea_state = to_sea_state(preset) if sea_state is None else sea_state
     sea, tile = preset.sea, preset.tile
+    if preset.bands.active:
+        # Band 0's tile and the shortest wave the bands carry stand for the tile.
+        from .banding import preset_bands
+
+        bands = preset_bands(preset, sea_state)
+        size = bands[0].tile.size
+        shortest_k = max(min(b.k_high, b.tile.nyquist) for b in bands)
+        tile = replace(tile, size_m=size, resolution=max(2, round(shortest_k * size / math.pi)))
     warnings = []
     total_variance = sea_state.band_variance(0.0, math.inf)
 

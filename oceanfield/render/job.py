@@ -143,13 +143,13 @@ _OCEANS: dict[tuple[str, int], Any] = {}
 
 
 def _cached_ocean(plan: RenderPlan, threads: int):
-    """The plan's Ocean, kept for the next group of frames this process renders (Dask tasks)."""
-    from ..surface.synth import Ocean
+    """The plan's Ocean (or band stack), kept for the next group of frames this process renders (Dask tasks)."""
+    from ..preset.banding import synthesizer
 
     key = (plan.hash, threads)
     if key not in _OCEANS:
         _OCEANS.clear()  # one at a time: an Ocean holds 12 bytes a texel
-        _OCEANS[key] = Ocean.from_preset(plan.preset, fft_workers=threads)
+        _OCEANS[key] = synthesizer(plan.preset, fft_workers=threads)
     return _OCEANS[key]
 
 

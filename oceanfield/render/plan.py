@@ -103,9 +103,17 @@ class RenderPlan:
         return self.root / self.preset.output.folder.format(preset=self.preset.name, map="", ext="")
 
     def files(self, frame: int) -> dict[str, Path]:
-        """Map name (or ``layers``) → file of one frame."""
+        """Map name (or ``layers``) → file of one frame.
+
+        A banded preset writes each band's maps as ``band<b>_<map>`` and, with a composite,
+        ``composite_<map>`` (see ``preset.banding``), each its own sequence.
+        """
         output = self.preset.output
         names = list(self.preset.maps)
+        if self.preset.bands.active:
+            from ..preset.banding import band_map_names
+
+            names = [name for name, _, _ in band_map_names(self.preset)]
         if output.multilayer and output.format == "exr":
             names.append(LAYERS_MAP)
         return {name: self.root / output.relative_path(self.preset.name, name, frame) for name in names}

@@ -173,6 +173,11 @@ def _frames_and_times(preset, frames_text: str | None) -> tuple[list[int], np.nd
 def _ocean(preset):
     from ..surface.synth import Ocean
 
+    if preset.bands.active:  # a single tile's sums would describe a sea the render does not show
+        raise ValueError(
+            "bands: probe, float and scene do not take a banded preset yet; allowed: a single-tile "
+            "preset (leave the bands section out)"
+        )
     return Ocean.from_preset(preset, velocity=False, foam_memory=0.0)
 
 

@@ -61,18 +61,19 @@ class FrameResult:
 # -- one frame's files -------------------------------------------------------------------------
 
 
-def _attributes(plan: RenderPlan, frame: int, map_name: str) -> dict[str, Any]:
+def _attributes(plan: RenderPlan, frame: int, map_name: str, tile_size: float | None = None) -> dict[str, Any]:
     from .. import __version__
 
     preset = plan.preset
     p = ATTRIBUTE_PREFIX
+    size = preset.tile.size_m if tile_size is None else tile_size
     return {
         f"{p}version": __version__,
         f"{p}map": map_name,
         f"{p}frame": int(frame),
         f"{p}time_s": float(preset.time.frame_time(frame)),
         f"{p}fps": float(preset.time.fps),
-        f"{p}tile_size": float(preset.tile.size_m / preset.scene.metres_per_unit),
+        f"{p}tile_size": float(size / preset.scene.metres_per_unit),
         f"{p}metres_per_unit": float(preset.scene.metres_per_unit),
         f"{p}up_axis": preset.scene.up_axis,
         f"{p}seed": int(preset.seed) if preset.seed < 2**31 else str(preset.seed),
@@ -124,7 +125,11 @@ def encode_frame(plan: RenderPlan, frame: int, fields, png_scales: dict[str, flo
     preset = plan.preset
     output, scene = preset.output, preset.scene
     jobs = []
-    for name, path in plan.files(frame).items():
+    banded = _banded_fields(plan, fields)
+    for file_name, path in plan.files(frame).items():
+        name, tile_size = file_name, None
+        if banded is not None:  # band<b>_<map> or composite_<map>: that band's fields and size
+            fields, name, tile_size = banded[file_name]
         if output.format == "exr":
             if name == LAYERS_MAP:
                 channels = layered_channels(fields, preset.maps, metres_per_unit=scene.metres_per_unit,
@@ -133,7 +138,10 @@ def encode_frame(plan: RenderPlan, frame: int, fields, png_scales: dict[str, flo
             else:
                 channels = map_channels(fields, name, metres_per_unit=scene.metres_per_unit, up_axis=scene.up_axis)
                 pixels = {c: to_pixels(c, a, output.precision_for(name)) for c, a in channels.items()}
-            jobs.append(FileJob("exr", path, pixels, output.compression, _attributes(plan, frame, name)))
+            attributes = _attributes(plan, frame, name, tile_size)
+            if banded is not None:
+                attributes[f"{ATTRIBUTE_PREFIX}band"] = file_name.split("_")[0]  # band<b> or composite
+            jobs.append(FileJob("exr", path, pixels, output.compression, attributes))
         else:
             channels = map_channels(fields, name, metres_per_unit=scene.metres_per_unit, up_axis=scene.up_axis)
             arrays = list(channels.values())
@@ -141,6 +149,21 @@ def encode_frame(plan: RenderPlan, frame: int, fields, png_scales: dict[str, flo
             scales = png_scales if png_scales is not None else _png_scales(preset)
             jobs.append(FileJob("png", path, {"": array}, value_range=_png_range(plan, name, scales)))
     return jobs
+
+
+def _banded_fields(plan: RenderPlan, frame_fields) -> dict[str, tuple[Any, str, float]] | None:
+    """For a banded preset: file map name → (that band's fields, map, tile size in metres)."""
+    if not plan.preset.bands.active:
+        return None
+    from ..preset.banding import band_map_names
+
+    out = {}
+    for file_name, band, name in band_map_names(plan.preset):
+        if band is None:
+            out[file_name] = (frame_fields.composite, name, frame_fields.composite_extent)
+        else:
+            out[file_name] = (frame_fields.bands[band], name, frame_fields.sizes[band])
+    return out
 
 
 def write_jobs(jobs: Iterable[FileJob]) -> list[Path]:
@@ -175,6 +198,10 @@ def _arena_bytes(plan: RenderPlan) -> int:
     channels = sum(per_map[m] for m in plan.preset.maps)
     if plan.preset.output.multilayer and plan.preset.output.format == "exr":
         channels *= 2
+    if plan.preset.bands.active:
+        from ..preset.banding import band_texels
+
+        return sum(per_map[name] * 4 * texels for name, texels in band_texels(plan.preset))
     return channels * 4 * plan.preset.tile.resolution**2
 
 

@@ -48,6 +48,7 @@ _FOAM_WINDOW = 3.0  # lingering foam looks back three e-folding times (5 % of it
 _GOLDEN = np.uint64(0x9E3779B97F4A7C15)
 _MIX1 = np.uint64(0xBF58476D1CE4E5B9)
 _MIX2 = np.uint64(0x94D049BB133111EB)
+_BAND_SALT = np.uint64(0xB5AD4ECEDA1CE2A9)  # any odd constant: separates band streams from band 0
 
 
 def _mix(z: NDArray[np.uint64]) -> NDArray[np.uint64]:
@@ -58,17 +59,21 @@ def _mix(z: NDArray[np.uint64]) -> NDArray[np.uint64]:
         return z ^ (z >> np.uint64(31))
 
 
-def amplitude_noise(seed: int, ny: ArrayLike, nx: ArrayLike) -> NDArray[np.complex128]:
-    """Standard complex Gaussian noise (E|ξ|² = 1) keyed by (seed, ny, nx) alone.
+def amplitude_noise(seed: int, ny: ArrayLike, nx: ArrayLike, band: int = 0) -> NDArray[np.complex128]:
+    """Standard complex Gaussian noise (E|ξ|² = 1) keyed by (seed, band, ny, nx) alone.
 
     Each wave index hashes to two 53-bit uniforms (splitmix64), turned into a complex
     Gaussian by the Box–Muller transform. The same index gives the same number at any
     resolution, so a preview and a final of one seed share their long waves exactly.
+    Band 0 is the stream of a single tile; band b > 0 mixes b into the key first, so each
+    band of a stack draws its own stream and changing one band leaves the others as they were.
     """
     ny = np.asarray(ny, dtype=np.int64)
     nx = np.asarray(nx, dtype=np.int64)
     ny, nx = np.broadcast_arrays(ny, nx)
     key = _mix(np.full(ny.shape, seed, dtype=np.uint64))
+    if band:
+        key = _mix(key ^ (_BAND_SALT + np.uint64(band)))
     key = _mix(key ^ nx.astype(np.uint64))
     key = _mix(key ^ ny.astype(np.uint64))
     scale = 1.0 / float(1 << 53)
@@ -150,6 +155,12 @@ class Ocean:
         Also compute the surface velocity (two more transforms a frame).
     fft_workers : int or None
         Threads for the FFTs (None: all cores).
+    band : int
+        Which amplitude stream to draw (0 to 255): 0 is a single tile's, each band of a
+        stack (``surface.bands``) has its own.
+    wavenumber_range : (float, float) or None
+        Carry only the waves with k_low ≤ |k| < k_high (rad/m; k_high may be ``inf``), so
+        that the bands of a stack share out the spectrum without overlap. None: all.
 
     Examples
     --------
@@ -175,6 +186,8 @@ class Ocean:
         fft_workers: int | None = None,
         whitecap_scale: float = 1.0,
         wave_heights: str = "as_requested",
+        band: int = 0,
+        wavenumber_range: tuple[float, float] | None = None,
     ) -> None:
         if not isinstance(sea_state, SeaState):
             raise ValueError(f"sea_state: {type(sea_state).__name__} is not allowed; allowed: a SeaState")
@@ -198,6 +211,17 @@ class Ocean:
             _check_finite("loop_period", loop_period, low=0.0, low_open=True)
         if fft_workers is not None and (isinstance(fft_workers, bool) or not isinstance(fft_workers, int) or fft_workers < 1):
             raise ValueError(f"fft_workers: {fft_workers!r} is not allowed; allowed: an integer >= 1 or None")
+        if isinstance(band, bool) or not isinstance(band, (int, np.integer)) or not 0 <= band <= 255:
+            raise ValueError(f"band: {band!r} is not allowed; allowed: an integer from 0 to 255")
+        if wavenumber_range is not None:
+            low, high = (float(v) for v in wavenumber_range)
+            if not (0.0 <= low < high) or math.isnan(high):
+                raise ValueError(
+                    f"wavenumber_range: {wavenumber_range!r} is not allowed; allowed: (k_low, k_high) with 0 <= k_low < k_high"
+                )
+            wavenumber_range = (low, high)
+        self.band = int(band)
+        self.wavenumber_range = wavenumber_range
         self.sea_state = sea_state
         self.tile = tile
         self.seed = int(seed)
@@ -279,10 +303,10 @@ class Ocean:
         for start in range(0, n, _BLOCK_ROWS):
             rows = slice(start, min(start + _BLOCK_ROWS, n))
             ny, nx = tile.wave_indices(rows)
-            carried = tile.carried(ny, nx)
+            carried = tile.carried(ny, nx) & self._in_range(ny, nx)
             # E|h0|² = (∫ over the cell Ψ dk)/2 (DESIGN convention), with E|ξ|² = 1.
             cell = np.where(carried, amplitudes.cell_variance(sea, tile.dk, ny, nx, width=width), 0.0)
-            block = amplitude_noise(self.seed, ny, nx) * np.sqrt(cell / 2.0)
+            block = amplitude_noise(self.seed, ny, nx, self.band) * np.sqrt(cell / 2.0)
             q = np.where(carried, nx * nx + ny * ny, 0).ravel()  # waves not carried hold nothing
             target += np.bincount(q, cell.ravel(), minlength=rings)
             realised += np.bincount(q, 2.0 * (block.real.ravel() ** 2 + block.imag.ravel() ** 2), minlength=rings)
@@ -330,6 +354,14 @@ class Ocean:
     def realised_hs(self) -> float:
         """Significant wave height 4√(Σ 2|h0|²) the tile holds (time-averaged variance), m."""
         return 4.0 * math.sqrt(self.realised_variance)
+
+    def _in_range(self, ny: NDArray[np.int64], nx: NDArray[np.int64]) -> NDArray[np.bool_] | bool:
+        """Which wave indices lie in ``wavenumber_range`` (compared as |k|², no square roots)."""
+        if self.wavenumber_range is None:
+            return True
+        low, high = self.wavenumber_range
+        k2 = (nx * nx + ny * ny) * self.tile.dk**2
+        return (k2 >= low * low) & (k2 < high * high)
 
     # -- frames ------------------------------------------------------------------------
     def new_buffer(self) -> NDArray[np.complex64]:

@@ -1,0 +1,538 @@
+"""Bands: one sea synthesised as several periodic tiles of different sizes and resolutions.
+
+Knows nothing of presets or files.
+
+A single tile repeats at its own period and carries no wave shorter than two texels. A
+:class:`BandStack` shares the spectrum out between bands: band b is an :class:`Ocean` on its
+own tile that carries only the waves with k_b ≤ |k| < k_{b+1}, so every wave of the
+spectrum is synthesised by exactly one band (the weights are 1 in one band and 0 in the
+others at every k) and no variance is counted twice. Each band draws its own amplitude
+stream, keyed by (seed, band, nx, ny): band 0 is bit-identical to a single tile of the
+same size, resolution and seed, and changing one band leaves the others as they were.
+
+The tile sizes stand in ratios far from simple fractions (each carries a factor of an
+irrational number), so the sum of the bands does not repeat within the declared extent:
+a band repeats at its own period, but at those shifts the other bands, which carry the
+rest of the variance, do not.
+
+:func:`layout_bands` chooses the bands from two numbers: the farthest distance that must
+look right (band 0's tile, which never repeats within it) and the shortest wave wanted
+near the camera; it splits the range so that no band carries more than a set share of the
+height variance or of the mean-square slope, which is what keeps the composite's
+autocorrelation low where a band repeats.
+
+:meth:`BandStack.composite` sums the bands onto one large map by exact Fourier sums,
+evaluated with the chirp z-transform (Rabiner, Schafer & Rader 1969) on any grid: only
+the waves the composite's grid can hold (|kx|, |ky| below its Nyquist) are summed.
+
+References
+----------
+Rabiner, L. R., Schafer, R. W. & Rader, C. M. (1969). The chirp z-transform algorithm.
+*IEEE Trans. Audio Electroacoust.* 17(2), 86–92.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import Sequence
+
+import numpy as np
+from numpy.typing import NDArray
+
+from ..physics.seastate import SeaState
+from .fields import Fields
+from .synth import Ocean
+from .tile import Tile
+
+__all__ = [
+    "Band",
+    "BandStack",
+    "BandLayout",
+    "layout_bands",
+    "band_moments",
+    "fourier_sum",
+]
+
+#: Tile-size factors of bands 1, 2, …: square roots of primes over their integer part,
+#: numbers far from simple fractions of each other (any small-integer relation between
+#: two band periods would make the sum repeat at that common multiple).
+_IRRATIONAL_FACTORS = tuple(math.sqrt(p) / math.floor(math.sqrt(p)) for p in (2, 7, 13, 5, 11, 19, 23, 29, 31, 37, 41, 43, 47, 53, 59))
+#: Whole waves across a band's tile at its lowest wavenumber: fewer and the band's longest
+#: waves sit on a coarse lattice of directions and the lattice's variance sum drifts from
+#: the spectrum's integral (at 8, by 1.5 % for a band on a sharp peak; measured).
+_LOWEST_WAVE_INDEX = 16
+#: The most a band may carry of the mean-square slope, or (bands after the first) of the
+#: height variance: a band repeats at its own period with autocorrelation equal to its
+#: share, so the shares bound the composite's autocorrelation where a band repeats.
+MAX_SLOPE_SHARE = 0.15
+MAX_HEIGHT_SHARE = 0.15
+_MAX_BANDS = 1 + len(_IRRATIONAL_FACTORS)
+_SERIAL_TEXELS = 256 * 256
+_SIMPLE_DENOMINATOR = 16
+_RATIO_MARGIN = 0.01
+_SLIVER = 1.5  # a last band spanning less than this ratio of wavenumbers joins the one before
+
+
+@dataclass(frozen=True)
+class Band:
+    """One band: a tile and the wavenumbers k_low ≤ |k| < k_high (rad/m) it carries."""
+
+    tile: Tile
+    k_low: float
+    k_high: float
+
+    def __post_init__(self) -> None:
+        if not (0.0 <= self.k_low < self.k_high) or math.isnan(self.k_high):
+            raise ValueError(
+                f"band wavenumbers: ({self.k_low!r}, {self.k_high!r}) is not allowed; allowed: 0 <= k_low < k_high"
+            )
+
+
+@dataclass(frozen=True)
+class BandLayout:
+    """What :func:`layout_bands` chose, and from what."""
+
+    bands: tuple[Band, ...]
+    reach: float
+    shortest_wavelength: float
+
+
+def _next_even_fast(n: int) -> int:
+    from scipy.fft import next_fast_len
+
+    n = max(int(n), 16)
+    while True:
+        n = next_fast_len(n)
+        if n % 2 == 0:
+            return n
+        n += 1
+
+
+def _near_coincidence(size: float, other: float) -> bool:
+    """Whether q periods of the larger tile come within 1 % of the smaller tile's period of
+    a whole number of its periods, for some q ≤ 16: |q·r − p| < 0.01, r the size ratio."""
+    ratio = max(size, other) / min(size, other)
+    for q in range(1, _SIMPLE_DENOMINATOR + 1):
+        if abs(q * ratio - round(q * ratio)) < _RATIO_MARGIN:
+            return True
+    return False
+
+
+def _away_from_simple_ratios(size: float, others: Sequence[float]) -> float:
+    """``size``, grown in steps of 0.1 % until no other size is a near coincidence with it
+    (:func:`_near_coincidence`); growing keeps at least 16 of the band's longest waves across."""
+    for _ in range(1000):
+        if not any(_near_coincidence(size, other) for other in others):
+            return size
+        size *= 1.001
+    return size
+
+
+def _cumulative(sea: SeaState, k: NDArray[np.float64]) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+    """Cumulative variance and mean-square slope from k[0] up to each k (trapezoid in ln k)."""
+    density = sea.frequency_spectrum(sea.angular_frequency(k)) * sea.group_velocity(k) * k  # per ln k
+    u = np.log(k)
+    du = np.diff(u)
+    variance = np.concatenate([[0.0], np.cumsum(0.5 * (density[1:] + density[:-1]) * du)])
+    slope_density = density * k * k
+    slope = np.concatenate([[0.0], np.cumsum(0.5 * (slope_density[1:] + slope_density[:-1]) * du)])
+    return variance, slope
+
+
+def layout_bands(
+    sea: SeaState,
+    *,
+    reach: float,
+    shortest_wavelength: float,
+    resolution: int = 512,
+    max_resolution: int = 2048,
+) -> BandLayout:
+    """Choose bands for a shot: tiles, resolutions and wavenumber ranges.
+
+    Band 0 is a tile twice ``reach`` wide at ``resolution`` (so no two points within the
+    reach of each other are one of its periods apart), raised towards ``max_resolution``
+    until at most 7.5 % of the variance lies beyond its Nyquist; it carries every wave from its longest up to its Nyquist circle or
+    less. Each further band starts where the one before stops, with a tile whose longest
+    wave fits 8 times across it, times a factor far from a simple fraction (√2, √7/2, …),
+    and ends where it would carry more than 15 % of the mean-square slope (15 % of the
+    height variance) of the covered range, or at its resolution's Nyquist circle
+    (``max_resolution`` texels at most), or at 2π/``shortest_wavelength``.
+
+    Parameters
+    ----------
+    sea : SeaState
+        The sea whose spectrum is shared out.
+    reach : float
+        The farthest distance in metres that must look right: the side of the square over
+        which nothing may repeat (band 0's tile is twice as wide).
+    shortest_wavelength : float
+        The shortest wave in metres the bands must carry.
+    resolution : int
+        Texels per side of band 0 (even, ≥ 16).
+    max_resolution : int
+        The largest resolution a later band may take.
+    """
+    for name, value in (("reach", reach), ("shortest_wavelength", shortest_wavelength)):
+        if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value) or value <= 0:
+            raise ValueError(f"{name}: {value!r} is not allowed; allowed: a finite length > 0 metres")
+    first = Tile(2.0 * float(reach), resolution)
+    k_end = 2.0 * math.pi / shortest_wavelength
+    if k_end <= 2.0 * first.dk:
+        raise ValueError(
+            f"shortest_wavelength: {shortest_wavelength!r} is not allowed; allowed: shorter than the reach ({reach:g} m)"
+        )
+    k = np.geomspace(first.dk * 0.5, k_end, 20000)
+    variance, slope = _cumulative(sea, k)
+    total_slope, total_variance = slope[-1], variance[-1]
+    # Band 0 carries the peak: raise its resolution (up to max_resolution) until what lies
+    # beyond its Nyquist is at most half a later band's allowed share of the variance.
+    while first.resolution < max_resolution and first.nyquist < k_end and (
+        total_variance - np.interp(first.nyquist, k, variance) > 0.5 * MAX_HEIGHT_SHARE * total_variance
+    ):
+        first = Tile(first.size, min(max_resolution, _next_even_fast(first.resolution + 2)))
+
+    def limit(k_low: float, cap: float, height_too: bool) -> float:
+        """The highest k ≤ cap such that [k_low, k) holds at most the allowed shares."""
+        start = np.searchsorted(k, k_low)
+        s0, v0 = np.interp(k_low, k, slope), np.interp(k_low, k, variance)
+        ok = (slope - s0 <= MAX_SLOPE_SHARE * total_slope) & (k <= cap)
+        if height_too:
+            ok &= variance - v0 <= MAX_HEIGHT_SHARE * total_variance
+        ok[:start] = True
+        bad = np.flatnonzero(~ok)
+        return cap if bad.size == 0 else max(float(k[bad[0] - 1]), k_low * 1.1)
+
+    bands: list[Band] = []
+    k_high = min(limit(0.0, min(first.nyquist, k_end), False), first.nyquist, k_end)
+    bands.append(Band(first, 0.0, k_high))
+    index = 1
+    while bands[-1].k_high < k_end:
+        if index >= _MAX_BANDS:
+            raise ValueError(
+                f"shortest_wavelength: {shortest_wavelength!r} needs more than {_MAX_BANDS} bands from a reach of "
+                f"{reach:g} m; allowed: a longer shortest wavelength, a higher resolution or a shorter reach"
+            )
+        k_low = bands[-1].k_high
+        size = 2.0 * math.pi * _LOWEST_WAVE_INDEX / k_low * _IRRATIONAL_FACTORS[index - 1]
+        size = _away_from_simple_ratios(size, [b.tile.size for b in bands])
+        cap = min(math.pi * max_resolution / size, k_end)
+        k_top = min(limit(k_low, cap, True), cap)
+        if k_top * _SLIVER > k_end:  # no band of a sliver at the end: this one reaches it
+            k_top = min(k_end, math.pi * max_resolution / size)
+        n = _next_even_fast(math.ceil(k_top * size / math.pi))
+        tile = Tile(size, n)
+        k_top = min(k_top, tile.nyquist)
+        bands.append(Band(tile, k_low, k_top))
+        index += 1
+    return BandLayout(tuple(bands), float(reach), float(shortest_wavelength))
+
+
+def band_moments(sea: SeaState, band: Band) -> tuple[float, float]:
+    """(variance in m², mean-square slope) the band's lattice carries in expectation.
+
+    Σ ∫cell Ψ dk and Σ |k|² ∫cell Ψ dk (the cell integral as the amplitudes take it, see
+    ``amplitudes.cell_variance``; |k| at the cell's centre) over the band's carried wave
+    indices (its tile's lattice, k_low ≤ |k| < k_high), a block of rows at a time.
+    """
+    from .amplitudes import cell_variance, feature_width
+
+    tile = band.tile
+    width = feature_width(sea)
+    variance = slope = 0.0
+    for start in range(0, tile.resolution, 256):
+        rows = slice(start, min(start + 256, tile.resolution))
+        ny, nx = tile.wave_indices(rows)
+        ky, kx = tile.wavenumbers(rows)
+        k2 = kx * kx + ky * ky
+        carried = tile.carried(ny, nx) & (k2 >= band.k_low**2) & (k2 < band.k_high**2)
+        cell = np.where(carried, cell_variance(sea, tile.dk, ny, nx, width=width), 0.0)
+        variance += float(cell.sum())
+        slope += float((cell * k2).sum())
+    return variance, slope
+
+
+def _chirp_z(x: NDArray[np.complex128], count: int, theta: float, phi: float, axis: int,
+             workers: int | None) -> NDArray[np.complex128]:
+    """X_j = Σ_m x_m e^{i(φ + jθ)m}, j < count, along ``axis``: Bluestein's chirp z-transform.
+
+    mj = (m² + j² − (j − m)²)/2 turns the sum into a convolution with the chirp e^{−iθn²/2},
+    done with FFTs of a fast length ≥ N + count − 1 (scipy.fft, on ``workers`` threads).
+    """
+    import scipy.fft
+
+    x = np.moveaxis(x, axis, -1)
+    n = x.shape[-1]
+    index = np.arange(max(n, count), dtype=np.float64)
+    chirp = np.exp(0.5j * theta * index**2)
+    length = scipy.fft.next_fast_len(n + count - 1)
+    kernel = np.zeros(length, dtype=np.complex128)
+    kernel[:count] = np.conj(chirp[:count])
+    kernel[length - n + 1:] = np.conj(chirp[1:n][::-1])
+    weighted = x * (np.exp(1j * phi * index[:n]) * chirp[:n])
+    spectrum = scipy.fft.fft(weighted, length, axis=-1, workers=workers)
+    spectrum *= scipy.fft.fft(kernel)
+    out = scipy.fft.ifft(spectrum, axis=-1, workers=workers, overwrite_x=True)[..., :count] * chirp[:count]
+    return np.moveaxis(out, -1, axis)
+
+
+def fourier_sum(
+    coefficients: NDArray[np.complexfloating], dk: float, spacing: float, count: int,
+    origin: tuple[float, float] = (0.0, 0.0), *, workers: int | None = None,
+) -> NDArray[np.complex128]:
+    """Σ c(k) e^{ik·x} exactly on a regular grid of ``count``² points, by the chirp z-transform.
+
+    ``coefficients`` is an (..., N, N) array in FFT layout (index n ↦ k = n·dk, rows ky,
+    columns kx; leading axes are separate sums); the grid is x = origin_x + j·spacing,
+    y = origin_y + i·spacing. Unlike an inverse FFT the grid need not match the lattice:
+    any spacing, any extent. Returns (..., count, count).
+    """
+    c = np.fft.fftshift(np.asarray(coefficients, dtype=np.complex128), axes=(-2, -1))
+    n = c.shape[-1]
+    half = n // 2
+    j = np.arange(count)
+
+    def along(array: NDArray[np.complex128], start: float, axis: int) -> NDArray[np.complex128]:
+        # Σ_m c_m e^{i(m − N/2)dk(x0 + jΔ)}: the z-transform over m = 0…N−1, then the
+        # centring phase e^{−i(N/2)dk x_j}.
+        out = _chirp_z(array, count, dk * spacing, dk * start, axis, workers)
+        phase = np.exp(-1j * half * dk * (start + j * spacing))
+        shape = [1] * out.ndim
+        shape[axis] = count
+        return out * phase.reshape(shape)
+
+    return along(along(c, origin[0], -1), origin[1], -2)
+
+
+class BandStack:
+    """A sea as several bands (see the module notes); each band an :class:`Ocean`.
+
+    Parameters
+    ----------
+    sea_state : SeaState
+    bands : sequence of Band
+        Disjoint wavenumber ranges (checked), in any order of size.
+    seed : int
+        The seed every band's stream is keyed by, with the band's index.
+    **options
+        Passed to every band's :class:`Ocean` (``lateral_factor``, ``loop_period``,
+        ``fold_threshold``, ``foam_ramp``, ``fft_workers``, ``velocity``, ``foam_memory``).
+    """
+
+    def __init__(self, sea_state: SeaState, bands: Sequence[Band], *, seed: int = 0, **options) -> None:
+        bands = tuple(bands)
+        if not bands or not all(isinstance(b, Band) for b in bands):
+            raise ValueError("bands: an empty or mixed list is not allowed; allowed: one or more Band")
+        ordered = sorted(bands, key=lambda b: b.k_low)
+        for a, b in zip(ordered[:-1], ordered[1:]):
+            if b.k_low < a.k_high:
+                raise ValueError(
+                    f"bands: wavenumber ranges [{a.k_low:g}, {a.k_high:g}) and [{b.k_low:g}, {b.k_high:g}) rad/m "
+                    "overlap; allowed: disjoint ranges, so no wave is counted twice"
+                )
+        self.sea_state = sea_state
+        self.bands = bands
+        self.seed = seed
+        self.oceans = []
+        for i, band in enumerate(bands):
+            settings = dict(options)
+            if band.tile.resolution**2 < _SERIAL_TEXELS:
+                settings["fft_workers"] = 1  # see frames(): small bands run on one thread
+            self.oceans.append(
+                Ocean(sea_state, band.tile, seed=seed, band=i, wavenumber_range=(band.k_low, band.k_high), **settings)
+            )
+        if options.get("fold_threshold") is None:
+            self._share_whitecaps()
+
+    def _share_whitecaps(self) -> None:
+        """One fold threshold for every band, calibrated on the summed sea.
+
+        Each band alone would foam the wind's whitecap share on its own Jacobian; the
+        surface an artist sees is the sum, whose Jacobian gathers the bands' (independent)
+        derivative variances. So the threshold is chosen once from the summed covariance
+        (see ``whitecaps``) and given to every band: the composite's foam then covers the
+        wind's share, and each band's own foam map shows its part of it.
+        """
+        from . import whitecaps
+
+        first = self.oceans[0]
+        if first.whitecap_coverage is None:
+            return
+        cov = sum(whitecaps.jacobian_covariance(o.amplitudes, o.tile.dk, o.lateral_factor) for o in self.oceans)
+        threshold = whitecaps.fold_threshold_for_coverage(cov, first.whitecap_coverage, first.foam_ramp)
+        for ocean in self.oceans:
+            ocean.fold_threshold = threshold
+
+    def new_buffers(self) -> list:
+        """One buffer per band for :meth:`frames` to fill (see :meth:`Ocean.new_buffer`)."""
+        return [ocean.new_buffer() for ocean in self.oceans]
+
+    def frames(self, t: float, *, buffers: list | None = None) -> list:
+        """Each band's :class:`Fields` at time ``t`` (a pure function of t), filling
+        ``buffers`` (from :meth:`new_buffers`) when given.
+
+        Bands under 256² texels run their kernels on one thread: each parallel kernel
+        costs a thread hand-over, which outweighs the work on a small tile (and on a busy
+        machine can cost a scheduler slice). The kernels work texel by texel, so the
+        result is the same bits either way.
+        """
+        import numba
+
+        buffers = [None] * len(self.oceans) if buffers is None else buffers
+        threads = numba.get_num_threads()
+        out = []
+        for ocean, buffer in zip(self.oceans, buffers):
+            small = ocean.tile.resolution**2 < _SERIAL_TEXELS
+            if small:
+                numba.set_num_threads(1)
+            try:
+                out.append(ocean.frame(t, buffer=buffer))
+            finally:
+                if small:
+                    numba.set_num_threads(threads)
+        return out
+
+    def moments(self) -> list[tuple[float, float]]:
+        """Each band's (variance m², mean-square slope) in expectation (:func:`band_moments`)."""
+        return [band_moments(self.sea_state, band) for band in self.bands]
+
+    def _spectrum(self, index: int, t: float) -> NDArray[np.complex128]:
+        """ĥ(k, t) = h0(k)e^{−iωt} + conj(h0(−k))e^{+iωt} of one band, FFT layout."""
+        ocean = self.oceans[index]
+        h0 = ocean.amplitudes.astype(np.complex128)
+        mirror = np.roll(h0[::-1, ::-1], 1, axis=(0, 1))  # h0(−k)
+        rotation = np.exp(-1j * ocean.frequencies * t)
+        return h0 * rotation + np.conj(mirror) * np.conj(rotation)
+
+    def composite(
+        self, t: float, *, extent: float, resolution: int, origin: tuple[float, float] = (0.0, 0.0)
+    ) -> Fields:
+        """The bands summed at time ``t`` on a ``resolution``² grid ``extent`` metres wide.
+
+        Exact Fourier sums (:func:`fourier_sum`) of every band's waves that the grid can
+        hold: those with |kx| and |ky| below the grid's Nyquist π·resolution/extent (shorter
+        waves are left out, not aliased). Height, lateral displacement, their derivatives and
+        so the Jacobian, the displaced surface's normal and foam follow the synthesiser's
+        conventions (D = λ Σ i(k/|k|)ĥ e^{ik·x}); each band's own lateral factor and foam
+        settings apply. Returns :class:`Fields` (float32) of the composite grid.
+        """
+        if isinstance(resolution, bool) or not isinstance(resolution, (int, np.integer)) or resolution < 2:
+            raise ValueError(f"resolution: {resolution!r} is not allowed; allowed: an integer >= 2")
+        if isinstance(extent, bool) or not isinstance(extent, (int, float)) or not math.isfinite(extent) or extent <= 0:
+            raise ValueError(f"extent: {extent!r} is not allowed; allowed: a finite length > 0 metres")
+        spacing = extent / resolution
+        nyquist = math.pi / spacing
+        names = ("h", "dx", "dy", "sx", "sy", "dxx", "dyy", "dxy")
+        total = {name: np.zeros((resolution, resolution)) for name in names}
+        for index, ocean in enumerate(self.oceans):
+            tile = ocean.tile
+            ky, kx = tile.wavenumbers()
+            keep = (np.abs(kx) < nyquist) & (np.abs(ky) < nyquist)
+            if not keep.any():
+                continue
+            spectrum = np.where(keep, self._spectrum(index, t), 0.0)
+            k = np.hypot(kx, ky)
+            inverse_k = np.divide(1.0, k, out=np.zeros_like(k), where=k > 0)
+            lam = ocean.lateral_factor
+            factors = {
+                "h": 1.0,
+                "dx": 1j * lam * kx * inverse_k,
+                "dy": 1j * lam * ky * inverse_k,
+                "sx": 1j * kx,
+                "sy": 1j * ky,
+                "dxx": -lam * kx * kx * inverse_k,
+                "dyy": -lam * ky * ky * inverse_k,
+                "dxy": -lam * kx * ky * inverse_k,
+            }
+            # Every field is real (its spectrum is Hermitian), so two ride in one complex
+            # sum, a + ib, as the synthesiser packs its transforms.
+            packed = np.stack([spectrum * (factors[a] + 1j * factors[b]) for a, b in zip(names[0::2], names[1::2])])
+            sums = fourier_sum(packed, tile.dk, spacing, resolution, origin, workers=ocean.fft_workers)
+            for index_pair, (a, b) in enumerate(zip(names[0::2], names[1::2])):
+                total[a] += sums[index_pair].real
+                total[b] += sums[index_pair].imag
+        jxx, jyy, jxy = 1.0 + total["dxx"], 1.0 + total["dyy"], total["dxy"]
+        sx, sy = total["sx"], total["sy"]
+        jacobian = jxx * jyy - jxy * jxy
+        # (∂P/∂x) × (∂P/∂y) for P = (x + Dx, y + Dy, h), as the synthesiser's surface kernel
+        normal = np.stack([jxy * sy - sx * jyy, sx * jxy - jxx * sy, jacobian], axis=-1)
+        normal /= np.linalg.norm(normal, axis=-1, keepdims=True)
+        first = self.oceans[0]
+        foam = np.clip((first.fold_threshold - jacobian) / first.foam_ramp, 0.0, 1.0)
+        f32 = lambda a: np.ascontiguousarray(a, dtype=np.float32)  # noqa: E731
+        return Fields(
+            time=float(t),
+            height=f32(total["h"]),
+            displacement_x=f32(total["dx"]),
+            displacement_y=f32(total["dy"]),
+            jacobian=f32(jacobian),
+            normal=f32(normal),
+            foam=f32(foam),
+        )
+
+    # -- repetition ---------------------------------------------------------------------
+    def autocorrelation(
+        self,
+        spacing: float,
+        count: int,
+        *,
+        origin: tuple[float, float] = (0.0, 0.0),
+        slope: bool = False,
+    ) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+        """The composite's autocorrelation on a grid of shifts, and what a sea that never
+        repeats would show there.
+
+        Shifts (sx, sy) = origin + (j, i)·spacing, 0 ≤ i, j < count, in metres. Each band's
+        realised autocovariance Σ P(k) cos(k·s), P = |h0(k)|² + |h0(−k)|² (the time average
+        of |ĥ(k, t)|²; times |k|² for the slope vector with ``slope``) is an exact Fourier
+        sum (:func:`fourier_sum`); the bands are independent, so the composite's is their
+        sum over the total. The second array keeps each band's term only inside its own
+        central period (|sx|, |sy| < half its tile): the same spectrum where nothing repeats.
+        """
+        terms = []
+        for ocean in self.oceans:
+            h0 = ocean.amplitudes.astype(np.complex128)
+            mirror = np.roll(h0[::-1, ::-1], 1, axis=(0, 1))
+            power = np.abs(h0) ** 2 + np.abs(mirror) ** 2
+            if slope:
+                ky, kx = ocean.tile.wavenumbers()
+                power = power * (kx * kx + ky * ky)
+            terms.append((float(power.sum()), ocean.tile, power))
+        total = sum(t[0] for t in terms)
+        value = np.zeros((count, count))
+        natural = np.zeros((count, count))
+        sx = origin[0] + np.arange(count) * spacing
+        sy = origin[1] + np.arange(count) * spacing
+        for _, tile, power in terms:
+            term = fourier_sum(power, tile.dk, spacing, count, origin).real / total
+            value += term
+            inside = (np.abs(sy)[:, None] < tile.size / 2) & (np.abs(sx)[None, :] < tile.size / 2)
+            natural += np.where(inside, term, 0.0)
+        return value, natural
+
+    def repetition(self, extent: float, *, slope: bool = False, count: int = 256,
+                   decorrelated: float = 0.1) -> dict[str, float]:
+        """How much the composite repeats within ``extent`` metres (a square from the origin).
+
+        Shifts: a regular grid over the extent (``count``² shifts) and, for every band but
+        the largest, the lattice of its own periods (i, j)·L_b up to ``count`` periods each
+        way or the extent, where that band repeats exactly. Returns the largest composite
+        autocorrelation at the shifts where a sea that never repeats has decorrelated (its
+        autocorrelation below ``decorrelated``), the largest excess over that sea at any
+        non-zero shift, and the number of shifts looked at.
+        """
+        worst = excess = 0.0
+        looked = 0
+        grids = [(extent / count, count)]
+        for ocean in self.oceans:
+            if ocean.tile.size < extent:
+                grids.append((ocean.tile.size, int(min(count, math.floor(extent / ocean.tile.size) + 1))))
+        for spacing, n in grids:
+            value, natural = self.autocorrelation(spacing, n, slope=slope)
+            value[0, 0] = natural[0, 0] = 0.0  # the zero shift
+            looked += n * n - 1
+            quiet = natural < decorrelated
+            if quiet.any():
+                worst = max(worst, float(value[quiet].max()))
+            excess = max(excess, float((value - natural).max()))
+        return {"max_where_decorrelated": worst, "max_excess": excess, "shifts": looked}
