@@ -10,9 +10,12 @@ inside the commands that need them, so ``oceanfield --help`` is instant.
 from __future__ import annotations
 
 import argparse
+import contextlib
 import json
 import math
+import signal
 import sys
+import threading
 from typing import Sequence
 
 __all__ = ["build_parser", "main"]
@@ -144,13 +147,41 @@ def main(argv: Sequence[str] | None = None) -> int:
     args = parser.parse_args(argv)
     handler = _COMMANDS[args.command]
     try:
-        return handler(args)
+        with _terminate_interrupts():
+            return handler(args)
     except UserError as error:
         return _fail(str(error))
     except ValueError as error:  # validation at a public boundary: the user's input
         return _fail(str(error))
-    except KeyboardInterrupt:
-        return _fail("interrupted")
+    except KeyboardInterrupt as error:  # Ctrl-C, or SIGTERM (see _terminate_interrupts)
+        signum = getattr(error, "signum", signal.SIGINT)
+        print(f"{_PROG}: {'interrupted (Ctrl-C)' if signum == signal.SIGINT else 'stopped by SIGTERM'}",
+              file=sys.stderr)
+        return 128 + signum  # the shell's convention: 130 for SIGINT, 143 for SIGTERM
+
+
+class _Terminated(KeyboardInterrupt):
+    """SIGTERM, turned into an exception so a command stops as cleanly as on Ctrl-C."""
+
+    signum = signal.SIGTERM
+
+
+@contextlib.contextmanager
+def _terminate_interrupts():
+    """While a command runs in the main thread, SIGTERM raises :class:`_Terminated`."""
+    if threading.current_thread() is not threading.main_thread():
+        yield
+        return
+
+    def handler(signum, frame) -> None:  # noqa: ARG001 - a signal handler's signature
+        signal.signal(signal.SIGTERM, signal.SIG_IGN)  # once: let the command clean up
+        raise _Terminated
+
+    previous = signal.signal(signal.SIGTERM, handler)
+    try:
+        yield
+    finally:
+        signal.signal(signal.SIGTERM, previous)
 
 
 # -- commands ------------------------------------------------------------------------------

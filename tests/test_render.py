@@ -349,12 +349,12 @@ def test_dask_cluster_renders_the_same_files(tmp_path, preset_file):
 _ORIGINAL_DASK_FRAMES = render_module._dask_frames
 
 
-def _dask_frames_failing_on_1001(plan, frames, threads, overwrite):
+def _dask_frames_failing_on_1001(plan, frames, threads, overwrite, stop_event=None):
     """A cluster task that dies for the group holding frame 1001, and dies last."""
     if 1001 in frames:
         time.sleep(1.0)
         raise RuntimeError("simulated worker crash")
-    return _ORIGINAL_DASK_FRAMES(plan, frames, threads, overwrite)
+    return _ORIGINAL_DASK_FRAMES(plan, frames, threads, overwrite, stop_event)
 
 
 def test_a_failed_cluster_task_fails_its_own_frames(tmp_path, preset_file, monkeypatch):

@@ -15,6 +15,7 @@ from oceanfield.io.exr import (
     exr_is_complete,
     read_exr,
     read_exr_attributes,
+    set_encoder_threads,
     to_pixels,
     write_exr,
 )
@@ -38,6 +39,7 @@ __all__ = [
     "read_png16",
     "read_table",
     "remove_stale_temporaries",
+    "set_encoder_threads",
     "sidecar_path",
     "to_pixels",
     "write_exr",

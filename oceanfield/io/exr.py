@@ -70,6 +70,7 @@ __all__ = [
     "read_exr_attributes",
     "to_pixels",
     "exr_is_complete",
+    "set_encoder_threads",
 ]
 
 #: Compression names `write_exr` accepts, mapped to the binding's values.
@@ -109,6 +110,21 @@ _NOT_PLAIN_SCANLINE = 0x200 | 0x800 | 0x1000  # tiled, deep ("non-image"), multi
 #: Scan lines in one chunk, by the compression byte stored in the file.
 _LINES_PER_CHUNK = {0: 1, 1: 1, 2: 1, 3: 16, 4: 32, 5: 16, 6: 32, 7: 32, 8: 32, 9: 256}
 _HEADER_READ = 1 << 20  # bytes read to parse the header; larger headers skip the check
+
+
+def set_encoder_threads(count: int) -> int:
+    """Compress and decompress on ``count`` threads of the binding's process-wide pool.
+
+    The OpenEXR binding (3.4 and later) releases Python's lock while it reads or writes
+    and splits a file's chunks over this pool; 0 or 1 means the calling thread alone.
+    Files come out byte-identical whatever the count (chunks are compressed
+    independently and stored in order). Returns the count set.
+    """
+    if isinstance(count, bool) or not isinstance(count, int) or count < 0:
+        raise ValueError(f"count: {count!r} is not allowed; allowed: an integer >= 0")
+    if OpenEXR.global_thread_count() != count:
+        OpenEXR.set_global_thread_count(count)
+    return count
 
 
 def write_exr(

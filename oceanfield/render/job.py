@@ -25,26 +25,19 @@ import json
 import os
 import queue
 import re
+import signal
 import sys
 import threading
 import time
+from contextlib import contextmanager
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Callable, Iterable, Sequence
 
 from .plan import MANIFEST_NAME, RenderPlan, frame_is_complete, parse_frames, plan_render
-from .writing import (
-    _WRITER_PROCESS_TEXELS,
-    FrameResult,
-    _arena_bytes,
-    _png_scales,
-    _ProcessSink,
-    _ThreadSink,
-    encode_frame,
-    write_jobs,
-)
+from .writing import FrameResult, _png_scales, _ThreadSink, encode_frame, write_jobs
 
-__all__ = ["RenderSummary", "render", "run_render_command"]
+__all__ = ["RenderInterrupted", "RenderSummary", "default_workers", "render", "run_render_command"]
 
 
 # -- running ---------------------------------------------------------------------------------
@@ -82,15 +75,16 @@ def _set_threads(threads: int) -> None:
 
 
 def _render_frames(plan: RenderPlan, frames: Iterable[int], *, threads: int, overwrite: bool,
-                   report: Callable[[FrameResult], None]) -> None:
+                   report: Callable[[FrameResult], None],
+                   should_stop: Callable[[], bool] | None = None) -> None:
     """Render ``frames`` in this process, overlapping each frame's compute with the last's writes.
 
     The compute side synthesises a frame and encodes its files (scene axes and units,
-    half floats); a writer only hands the encoded channels to the file libraries, so a
-    frame costs about max(compute, write), not their sum. The OpenEXR binding holds
-    Python's lock while it compresses, so a writer *thread* overlaps poorly: on jobs large
-    enough to repay its start the writer is a separate process that reads the encoded
-    channels from shared memory.
+    half floats); a writer thread only hands the encoded channels to the file libraries,
+    which release Python's lock and compress on ``threads`` threads, so a frame costs
+    about max(compute, write), not their sum. ``should_stop`` is asked before each frame
+    (a cluster's stop flag); an exception here (an interrupt) waits only for the file
+    being written, never for queued frames.
     """
     todo = []
     for frame in frames:
@@ -100,7 +94,6 @@ def _render_frames(plan: RenderPlan, frames: Iterable[int], *, threads: int, ove
             todo.append(frame)
     if not todo:
         return
-    n = plan.preset.tile.resolution
     scales = _png_scales(plan.preset) if plan.preset.output.format == "png" else None
     stop: list[FrameResult] = []  # the first fatal failure, if any
 
@@ -109,12 +102,14 @@ def _render_frames(plan: RenderPlan, frames: Iterable[int], *, threads: int, ove
             stop.append(result)
         report(result)
 
-    sink = None
-    if len(todo) * n * n >= _WRITER_PROCESS_TEXELS:
-        sink = _ProcessSink.start(_arena_bytes(plan), watch)
-    if sink is None:
-        sink = _ThreadSink(watch, write_jobs)  # looked up here: replacing render.write_jobs reaches it
+    if plan.preset.output.format == "exr":
+        from ..io.exr import set_encoder_threads
+
+        set_encoder_threads(threads)
+    if should_stop is not None and should_stop():
+        return
     _set_threads(threads)
+    sink = _ThreadSink(watch, write_jobs)  # looked up here: replacing job.write_jobs reaches it
     done: set[int] = set()
     try:
         ocean = _cached_ocean(plan, threads)
@@ -122,6 +117,8 @@ def _render_frames(plan: RenderPlan, frames: Iterable[int], *, threads: int, ove
         for frame in todo:
             if stop:  # the disk is full or read-only: no later frame can be written
                 break
+            if should_stop is not None and should_stop():
+                return
             done.add(frame)
             started = time.perf_counter()
             fields = ocean.frame(plan.preset.time.frame_time(frame), buffer=buffer)
@@ -131,8 +128,10 @@ def _render_frames(plan: RenderPlan, frames: Iterable[int], *, threads: int, ove
                 report(FrameResult(frame, "failed", time.perf_counter() - started, str(error)))
                 continue
             sink.submit(frame, jobs, started)
-    finally:
-        sink.close()
+    except BaseException:
+        sink.close(abort=True)
+        raise
+    sink.close()
     if stop:
         for frame in todo:
             if frame not in done:
@@ -153,25 +152,45 @@ def _cached_ocean(plan: RenderPlan, threads: int):
     return _OCEANS[key]
 
 
+class _WorkerStopped(Exception):
+    """A local worker process was told to stop (SIGTERM from the render that started it)."""
+
+
+def _stop_worker(signum, frame) -> None:  # noqa: ARG001 - a signal handler's signature
+    signal.signal(signal.SIGTERM, signal.SIG_IGN)  # once is enough: finish cleaning up
+    raise _WorkerStopped
+
+
 def _process_worker(plan: RenderPlan, frames: list[int], threads: int, overwrite: bool, events) -> None:
     """A local worker process: render its frames, sending each result as it happens.
 
-    It stops by itself if the process that started it goes away (a killed render must
-    not leave workers writing on behind its back).
+    Ctrl-C at a terminal reaches every process of the group: a worker ignores SIGINT and
+    stops when the render that started it sends SIGTERM, after the file it is writing
+    (quietly: the render prints the one line). It also stops by itself if that render
+    goes away (a killed render must not leave workers writing on behind its back).
     """
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    signal.signal(signal.SIGTERM, _stop_worker)
     parent = os.getppid()
-
-    def report(result: FrameResult) -> None:
-        if os.getppid() != parent:
-            raise SystemExit(1)
-        events.put(result)
-
-    _render_frames(plan, frames, threads=threads, overwrite=overwrite, report=report)
+    try:
+        _render_frames(plan, frames, threads=threads, overwrite=overwrite, report=events.put,
+                       should_stop=lambda: os.getppid() != parent)
+    except _WorkerStopped:
+        pass
 
 
-def _dask_frames(plan: RenderPlan, frames: list[int], threads: int, overwrite: bool) -> list[FrameResult]:
+def _dask_frames(plan: RenderPlan, frames: list[int], threads: int, overwrite: bool,
+                 stop_event: str | None = None) -> list[FrameResult]:
+    """A cluster task: render a group of frames; stop between frames once ``stop_event`` is set."""
+    should_stop = None
+    if stop_event is not None:
+        from distributed import Event
+
+        event = Event(stop_event)
+        should_stop = event.is_set
     results: list[FrameResult] = []
-    _render_frames(plan, frames, threads=threads, overwrite=overwrite, report=results.append)
+    _render_frames(plan, frames, threads=threads, overwrite=overwrite, report=results.append,
+                   should_stop=should_stop)
     return results
 
 
@@ -179,6 +198,58 @@ def _groups(frames: Sequence[int], count: int) -> list[list[int]]:
     """Split frames into ``count`` contiguous groups of near-equal size (none empty)."""
     count = max(1, min(count, len(frames)))
     return [list(frames[i * len(frames) // count:(i + 1) * len(frames) // count]) for i in range(count)]
+
+
+class RenderInterrupted(KeyboardInterrupt):
+    """A render stopped by SIGINT (Ctrl-C) or SIGTERM (a farm manager's kill).
+
+    Raised by :func:`render` once every worker, writer and cluster task has stopped and
+    the frames finished so far are in the manifest; ``summary`` holds them and ``signum``
+    the signal. Frames not finished have no file under their names, so running the same
+    render again completes the sequence.
+    """
+
+    def __init__(self, signum: int, summary: RenderSummary | None = None) -> None:
+        super().__init__(signal.Signals(signum).name)
+        self.signum = signum
+        self.summary = summary
+
+
+@contextmanager
+def _signals_interrupt():
+    """SIGINT and SIGTERM raise :class:`RenderInterrupted` once; later ones are ignored
+    while the render stops. Outside the main thread signals cannot be caught: no change."""
+    if threading.current_thread() is not threading.main_thread():
+        yield
+        return
+    received: list[int] = []
+
+    def handler(signum, frame) -> None:  # noqa: ARG001 - a signal handler's signature
+        if not received:
+            received.append(signum)
+            raise RenderInterrupted(signum)
+
+    previous = {number: signal.signal(number, handler) for number in (signal.SIGINT, signal.SIGTERM)}
+    try:
+        yield
+    finally:
+        for number, old in previous.items():
+            signal.signal(number, old)
+
+
+@contextmanager
+def _children_ignore_sigint():
+    """Processes started inside ignore SIGINT from their first instruction (the
+    disposition is inherited): Ctrl-C reaches the whole process group, and a worker still
+    importing would print a traceback; the render stops its workers itself."""
+    if threading.current_thread() is not threading.main_thread():
+        yield
+        return
+    previous = signal.signal(signal.SIGINT, signal.SIG_IGN)
+    try:
+        yield
+    finally:
+        signal.signal(signal.SIGINT, previous)
 
 
 def render(plan: RenderPlan, *, workers: int | None = None, scheduler: str | Any | None = None,
@@ -190,39 +261,95 @@ def render(plan: RenderPlan, *, workers: int | None = None, scheduler: str | Any
     plan : RenderPlan
         From :func:`plan_render`.
     workers : int or None
-        Local worker processes (default: the machine's cores). Each gets cores/workers
-        threads for its FFTs and kernels so the machine is not oversubscribed; 1 renders in
+        Local worker processes (default: :func:`default_workers`, from the job's size and
+        the machine's cores and memory). Each gets cores/workers threads for its FFTs,
+        kernels and EXR compression so the machine is not oversubscribed; 1 renders in
         this process.
     scheduler : str, distributed.Client or None
         A Dask distributed scheduler's address (or a client) to render on instead.
     overwrite : bool
-        Render every frame even if complete, and replace a manifest from another preset.
+        Render every frame even if complete, and remove frames rendered with other settings.
     progress : callable or None
         Called with each :class:`FrameResult` as it arrives.
+
+    Raises
+    ------
+    RenderInterrupted
+        On SIGINT or SIGTERM (when called from the main thread), after everything it
+        started has stopped; its ``summary`` holds the frames finished.
     """
     started = time.perf_counter()
     summary = RenderSummary(requested=len(plan.frames))
     cores = os.cpu_count() or 1
-    count = cores if workers is None else workers
-    if isinstance(count, bool) or not isinstance(count, int) or count < 1:
+    if workers is not None and (isinstance(workers, bool) or not isinstance(workers, int) or workers < 1):
         raise ValueError(f"--workers: {workers!r} is not allowed; allowed: an integer >= 1")
+    count = default_workers(plan, cores=cores) if workers is None else workers
     if not plan.frames:
         return summary
-    # Reach the scheduler before anything is created, so a wrong address writes nothing.
-    client, own_client = _connect(scheduler) if scheduler is not None else (None, False)
-    try:
-        _prepare_folder(plan, overwrite)
-        _update_manifest(plan, [])  # claim the folder at once: a killed first run still leaves it
-        _run(plan, summary, client, count, cores, overwrite, progress)
-    finally:
-        if own_client:
-            client.close()
-    _OCEANS.clear()  # the render is over: do not keep its Ocean (12 bytes a texel)
-    summary.written.sort()
-    summary.skipped.sort()
-    _update_manifest(plan, summary.written + summary.skipped)
+    interrupted: RenderInterrupted | None = None
+    with _signals_interrupt():
+        try:
+            # Reach the scheduler before anything is created, so a wrong address writes nothing.
+            client, own_client = _connect(scheduler) if scheduler is not None else (None, False)
+            try:
+                _prepare_folder(plan, overwrite)
+                _update_manifest(plan, [])  # claim the folder at once: a killed first run still leaves it
+                _run(plan, summary, client, count, cores, overwrite, progress)
+            finally:
+                if own_client:
+                    client.close()
+        except RenderInterrupted as error:
+            interrupted = error
+        except KeyboardInterrupt:  # raised by a handler other than ours (not the main thread)
+            interrupted = RenderInterrupted(signal.SIGINT)
+        finally:
+            _OCEANS.clear()  # the render is over: do not keep its Ocean (12 bytes a texel)
+        summary.written.sort()
+        summary.skipped.sort()
+        _update_manifest(plan, summary.written + summary.skipped)
     summary.wall_seconds = time.perf_counter() - started
+    if interrupted is not None:
+        raise RenderInterrupted(interrupted.signum, summary)
     return summary
+
+
+#: Texels a thread of one frame's FFTs and kernels keeps busy; a frame smaller than
+#: cores × this leaves threads idle, and separate worker processes fill them instead
+#: (measured on 2 cores: one worker with both threads was fastest from 512² up).
+_TEXELS_PER_THREAD = 256 * 256
+#: A worker process pays its start (interpreter, imports, kernel cache: about a second)
+#: once: give each at least this many frames.
+_FRAMES_PER_WORKER = 8
+#: Memory one worker needs per texel: a frame (32 B), h0 and ω (12 B) and two encoded
+#: frames in flight (half floats of seven channels, 14 B each).
+_WORKER_BYTES_PER_TEXEL = 72
+
+
+def _available_memory() -> int | None:
+    """Bytes of memory free for new processes now, or None where the system does not say."""
+    try:
+        return os.sysconf("SC_AVPHYS_PAGES") * os.sysconf("SC_PAGE_SIZE")
+    except (AttributeError, OSError, ValueError):
+        return None
+
+
+def default_workers(plan: RenderPlan, *, cores: int | None = None, memory: int | None = None) -> int:
+    """Local worker processes for a job when ``--workers`` is not given.
+
+    One process uses every core for its FFTs, kernels and EXR compression; separate
+    workers only pay where a frame is too small to keep ``cores`` threads busy
+    (:data:`_TEXELS_PER_THREAD` texels each), the job has frames enough to repay their
+    start, and the memory (``memory`` bytes, default: what is free now) holds them.
+    """
+    cores = cores or os.cpu_count() or 1
+    texels = plan.preset.tile.resolution ** 2
+    useful_threads = max(1, texels // _TEXELS_PER_THREAD)
+    count = max(1, cores // useful_threads)
+    count = min(count, max(1, len(plan.frames) // _FRAMES_PER_WORKER))
+    memory = _available_memory() if memory is None else memory
+    if memory is not None:
+        count = min(count, max(1, memory // (_WORKER_BYTES_PER_TEXEL * texels)))
+    return count
 
 
 def _run(plan: RenderPlan, summary: RenderSummary, client, count: int, cores: int, overwrite: bool,
@@ -256,7 +383,8 @@ def _render_on_processes(plan: RenderPlan, count: int, threads: int, overwrite: 
     """``count`` workers, each with a contiguous share of the frames: this process renders
     the first share itself (it has already paid for its imports and compiled kernels) and
     spawns a long-lived process for each other share; their results arrive through a
-    queue that a thread of this process reads while it renders.
+    queue that a thread of this process reads while it renders. Interrupted, it sends
+    each worker SIGTERM and waits for it (a worker finishes the file it is writing).
     """
     import multiprocessing
 
@@ -268,39 +396,47 @@ def _render_on_processes(plan: RenderPlan, count: int, threads: int, overwrite: 
                         name=f"oceanfield-worker-{i + 1}")
         for i, share in enumerate(shares)
     ]
-    for worker in workers:
-        worker.start()
     pending = {frame for share in shares for frame in share}
 
     def collect() -> None:
         while pending:
             try:
-                result = events.get(timeout=1.0)
+                result = events.get(timeout=0.2)
             except queue.Empty:
-                if any(worker.is_alive() for worker in workers):
+                if any(worker.is_alive() for worker in workers if worker.pid is not None):
                     continue
                 try:  # every worker is gone: take what is left in the queue, then stop
-                    result = events.get(timeout=1.0)
+                    result = events.get(timeout=0.5)
                 except queue.Empty:
                     return
             pending.discard(result.frame)
             record(result)
 
     collector = threading.Thread(target=collect, name="oceanfield-results", daemon=True)
-    collector.start()
     try:
+        with _children_ignore_sigint():
+            for worker in workers:
+                worker.start()
+        collector.start()
         _render_frames(plan, own, threads=threads, overwrite=overwrite, report=record)
         collector.join()
     except BaseException:  # interrupted or failed here: stop the others too
         for worker in workers:
-            worker.terminate()
+            if worker.pid is not None and worker.is_alive():
+                worker.terminate()
         raise
     finally:
         for worker in workers:
+            if worker.pid is None:
+                continue
             worker.join(timeout=60)
             if worker.is_alive():
-                worker.terminate()
-        collector.join(timeout=5)
+                worker.kill()
+                worker.join()
+        if collector.is_alive():
+            collector.join(timeout=5)
+        events.close()
+        events.join_thread()
     for frame in sorted(pending):
         record(FrameResult(frame, "failed", 0.0, "its worker process ended without rendering it"))
 
@@ -324,13 +460,24 @@ def _connect(scheduler: Any) -> tuple[Any, bool]:
 
 def _render_on_dask(plan: RenderPlan, client: Any, overwrite: bool,
                     record: Callable[[FrameResult], None]) -> None:
-    from distributed import as_completed
+    """Groups of frames as cluster tasks. Interrupted, it raises a cluster-wide stop flag
+    that each task reads between frames, collects what the running tasks finished, and
+    cancels the rest before the interrupt goes on."""
+    import uuid
+
+    from distributed import Event, as_completed
 
     n_workers = max(1, len(client.scheduler_info().get("workers", {})))
     groups = _groups(plan.frames, n_workers * 4)
+    stop_name = f"oceanfield-stop-{uuid.uuid4().hex}"
+    stop = Event(stop_name, client=client)
     # as_completed yields in completion order: look each future's frames up, never zip.
-    futures = {client.submit(_dask_frames, plan, group, 1, overwrite, pure=False): group for group in groups}
-    for future in as_completed(futures):
+    futures = {client.submit(_dask_frames, plan, group, 1, overwrite, stop_name, pure=False): group
+               for group in groups}
+    seen: set[Any] = set()
+
+    def take(future) -> None:
+        seen.add(future)
         group = futures[future]
         try:
             results = future.result()
@@ -338,6 +485,29 @@ def _render_on_dask(plan: RenderPlan, client: Any, overwrite: bool,
             results = [FrameResult(f, "failed", 0.0, f"cluster task failed: {error}") for f in group]
         for result in results:
             record(result)
+
+    try:
+        for future in as_completed(futures):
+            take(future)
+    except BaseException:
+        stop.set()  # tasks not yet started return at once; running ones after their frame
+        deadline = time.monotonic() + _DASK_STOP_S
+        while time.monotonic() < deadline and any(f.status == "pending" for f in futures):
+            time.sleep(0.05)
+        for future in futures:
+            if future not in seen and future.status == "finished":
+                take(future)
+        client.cancel(list(futures))
+        raise
+    finally:
+        try:
+            stop.clear()
+        except Exception:  # noqa: BLE001 - the client may be closing
+            pass
+
+
+#: How long an interrupted render waits for running cluster tasks to finish their frame.
+_DASK_STOP_S = 30.0
 
 
 # -- the manifest ------------------------------------------------------------------------------
@@ -441,6 +611,10 @@ def run_render_command(args) -> int:
     try:
         summary = render(plan, workers=args.workers, scheduler=args.scheduler, overwrite=args.overwrite,
                          progress=progress.update)
+    except RenderInterrupted as interrupt:
+        progress.close()
+        print(f"oceanfield: {interrupted_line(interrupt)}", file=sys.stderr)
+        return 128 + interrupt.signum
     finally:
         progress.close()
     print(summary.line())
@@ -451,6 +625,19 @@ def run_render_command(args) -> int:
         print(f"frames are in {plan.folder}")
         return 0
     return 1
+
+
+def interrupted_line(interrupt: RenderInterrupted) -> str:
+    """One line for an interrupted render: what stopped it, what is done, how to finish."""
+    summary = interrupt.summary
+    cause = "interrupted (Ctrl-C)" if interrupt.signum == signal.SIGINT else "stopped by SIGTERM"
+    if summary is None:
+        return f"{cause}"
+    done = len(summary.written) + len(summary.skipped)
+    left = summary.requested - done
+    rest = (f"running the same command again renders the other {left}" if left
+            else "nothing is left to render")
+    return f"{cause}: {done} of {summary.requested} frames are complete; {rest}"
 
 
 def _grouped_failures(failed: dict[int, str]) -> list[tuple[str, list[int]]]:
@@ -489,3 +676,4 @@ class _Progress:
     def close(self) -> None:
         if self.bar is not None:
             self.bar.close()
+            self.bar = None

@@ -1,0 +1,144 @@
+"""Interrupting ``oceanfield render`` with real signals: Ctrl-C (SIGINT to the whole process
+group, as a terminal sends it) and SIGTERM (to the render's process, as a farm manager
+sends it), on this process, on local worker processes and on a Dask cluster.
+
+Each test runs the installed command in a subprocess of its own session, waits until a
+few frames are whole on disk, sends the signal, and checks: the exit status (128 + the
+signal: 130, 143), exactly one line on stderr saying how many frames are complete and
+that a re-run finishes the rest (no traceback, no "leaked" resource warning), that the
+count is the frames whole on disk and in the manifest, that no file under a frame's name
+is partial, and that nothing the render started outlives it.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import re
+import shutil
+import signal
+import subprocess
+import time
+from collections import Counter
+from pathlib import Path
+
+import pytest
+
+from oceanfield.cli import main
+from oceanfield.io.atomic import is_temporary
+from oceanfield.io.exr import exr_is_complete
+from oceanfield.render import MANIFEST_NAME
+
+_FRAMES = 400  # far more than a test waits for: the signal always lands mid-render
+_LINE = re.compile(
+    r"^oceanfield: (interrupted \(Ctrl-C\)|stopped by SIGTERM): (\d+) of (\d+) frames are complete; "
+    r"running the same command again renders the other (\d+)$"
+)
+_MAPS = 3  # displacement, normal, foam (the tiny preset's maps)
+
+
+def _command() -> str:
+    found = shutil.which("oceanfield")
+    if found is None:
+        pytest.skip("the oceanfield command is not installed")
+    return found
+
+
+def _whole_frames(folder: Path) -> set[int]:
+    """Frames whose every map is on disk under its final name."""
+    names = os.listdir(folder) if folder.is_dir() else []
+    counts = Counter(n.split(".")[1] for n in names if n.endswith(".exr") and not is_temporary(n))
+    return {int(frame) for frame, count in counts.items() if count == _MAPS}
+
+
+def _group_gone(pgid: int, seconds: float) -> bool:
+    """Whether every process of the group has ended (zombies awaiting their reaper count as ended)."""
+    deadline = time.monotonic() + seconds
+    while time.monotonic() < deadline:
+        listing = subprocess.run(["ps", "-o", "stat=", "-g", str(pgid)], capture_output=True, text=True).stdout
+        if all(state.startswith("Z") for state in listing.split()):
+            return True
+        time.sleep(0.1)
+    return False
+
+
+def _interrupt(tmp_path: Path, preset: Path, signum: int, *extra: str) -> tuple[int, str, Path]:
+    out = tmp_path / "out"
+    folder = out / preset.stem
+    process = subprocess.Popen([_command(), "render", str(preset), "--out", str(out), *extra],
+                               stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True,
+                               start_new_session=True)
+    try:
+        deadline = time.monotonic() + 120.0
+        while len(_whole_frames(folder)) < 2 and process.poll() is None and time.monotonic() < deadline:
+            time.sleep(0.02)
+        assert process.poll() is None, "the render ended before the signal"
+        if signum == signal.SIGINT:
+            os.killpg(process.pid, signum)  # Ctrl-C reaches every process of the group
+        else:
+            os.kill(process.pid, signum)
+        _, err = process.communicate(timeout=90)
+        assert _group_gone(process.pid, 10.0), "a process the render started outlived it"
+    finally:
+        try:
+            os.killpg(process.pid, signal.SIGKILL)
+        except ProcessLookupError:
+            pass
+    return process.returncode, err, folder
+
+
+def _check_stopped_cleanly(code: int, err: str, folder: Path, signum: int) -> int:
+    assert code == 128 + signum, err
+    lines = err.splitlines()
+    assert len(lines) == 1, err
+    match = _LINE.match(lines[0])
+    assert match, err
+    done, total, left = (int(match.group(i)) for i in (2, 3, 4))
+    assert total == _FRAMES and done + left == total
+    whole = _whole_frames(folder)
+    assert len(whole) == done >= 2
+    assert set(json.loads((folder / MANIFEST_NAME).read_text())["frames_done"]) == whole
+    for path in folder.glob("*.exr"):
+        if not is_temporary(path):
+            assert exr_is_complete(path, decode=False), f"{path.name} is partial"
+    return done
+
+
+@pytest.mark.parametrize(
+    ("signum", "workers"),
+    [(signal.SIGINT, "2"), (signal.SIGTERM, "1")],
+    ids=["ctrl-c-local-workers", "sigterm-this-process"],
+)
+def test_a_signal_stops_the_render_with_one_line(tmp_path, preset_file, signum, workers):
+    preset = preset_file("stopped", settings={"tile": {"resolution": 256},
+                                              "time": {"last_frame": 1000 + _FRAMES}})
+    code, err, folder = _interrupt(tmp_path, preset, signum, "--workers", workers)
+    _check_stopped_cleanly(code, err, folder, signum)
+
+
+def test_ctrl_c_stops_the_tasks_on_a_dask_cluster(tmp_path, preset_file):
+    distributed = pytest.importorskip("distributed")
+    preset = preset_file("stopped", settings={"tile": {"resolution": 256},
+                                              "time": {"last_frame": 1000 + _FRAMES}})
+    with distributed.LocalCluster(n_workers=1, threads_per_worker=1, processes=False, protocol="tcp",
+                                  dashboard_address=None) as cluster:
+        code, err, folder = _interrupt(tmp_path, preset, signal.SIGINT, "--scheduler", cluster.scheduler_address)
+        _check_stopped_cleanly(code, err, folder, signal.SIGINT)
+        # The cluster's task saw the stop flag: it writes nothing more.
+        before = sorted(os.listdir(folder))
+        time.sleep(1.5)
+        assert sorted(os.listdir(folder)) == before
+
+
+def test_an_interrupt_before_rendering_is_one_line_and_status_130(tmp_path, preset_file, capsys, monkeypatch):
+    """Ctrl-C while the job is still being checked (before any frame): one line, 130."""
+    import oceanfield.preset.stats as stats
+
+    def interrupted(*args, **kwargs):
+        raise KeyboardInterrupt
+
+    monkeypatch.setattr(stats, "fold_warning", interrupted)
+    code = main(["render", str(preset_file()), "--out", str(tmp_path / "out"), "--workers", "1"])
+    captured = capsys.readouterr()
+    assert code == 130
+    assert captured.err == "oceanfield: interrupted (Ctrl-C)\n"
