@@ -6,6 +6,7 @@ kill test and one end-to-end test run the installed ``oceanfield`` command.
 
 from __future__ import annotations
 
+import json
 import os
 import re
 import shutil
@@ -292,3 +293,36 @@ def test_a_disk_that_fills_mid_render_stops_with_one_clear_line(tmp_path, preset
     frames = sorted((tmp_path / "out").rglob("*.exr"))
     assert len(frames) == 2 * 3  # two frames of three maps, whole
     assert all(exr_is_complete(path) for path in frames)
+
+
+def test_overwrite_of_part_of_a_range_never_leaves_a_mixed_sequence(tmp_path, preset_file, capsys):
+    """The new user's case: a 16-frame render (the analyzer's least), then two frames with other settings under
+    --overwrite. The old settings' other frames go (one line says so), and the analyzer
+    names a folder mixed by hand (old frames copied back in)."""
+    preset = preset_file(settings={"time": {"last_frame": 1016}})
+    out = tmp_path / "out"
+    assert main(_render_args(preset, out)) == 0
+    folder = out / "tiny"
+    keep = tmp_path / "old"
+    shutil.copytree(folder, keep)
+    capsys.readouterr()
+
+    # Without --overwrite other settings are refused and nothing changes.
+    before = _files(folder)
+    assert main(_render_args(preset, out, "--frames", "1001-1002", "--set", "seed=9")) == 2
+    _assert_one_error_block(capsys.readouterr().err, "holds frames rendered from tiny with different settings",
+                            "16 frames (1001–1016)", "--overwrite")
+    assert _files(folder) == before
+
+    assert main(_render_args(preset, out, "--frames", "1001-1002", "--set", "seed=9", "--overwrite")) == 0
+    captured = capsys.readouterr()
+    assert captured.err == (f"oceanfield: --overwrite: removed 16 frames (1001–1016) rendered from tiny with "
+                            f"different settings from {folder}\n")
+    assert sorted({p.name.split(".")[1] for p in folder.glob("*.exr")}) == ["1001", "1002"]
+
+    # Mixed by hand behind the tool's back: the analyzer says so, in text and JSON.
+    for frame in range(1003, 1017):
+        shutil.copyfile(keep / f"displacement.{frame}.exr", folder / f"displacement.{frame}.exr")
+    assert main(["analyze", str(folder / "displacement.####.exr"), "--json"]) == 0
+    notes = json.loads(capsys.readouterr().out)["notes"]
+    assert notes[0].startswith("the frames were rendered with 2 different settings (runs: 1001–1002, 1003–1016)")

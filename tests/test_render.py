@@ -429,12 +429,38 @@ def test_manifest_records_the_render_and_guards_the_folder(tmp_path, preset_file
         _render(reseeded, tmp_path)
     assert _files_under(tmp_path) == before
 
-    # ... unless overwrite: every frame redone, the manifest now the new render's alone.
-    plan, replaced = _render(reseeded, tmp_path, frames="1001-1003", overwrite=True)
+    # ... unless overwrite: the frames asked for are redone and the old settings' other
+    # frames removed (a sequence never mixes two settings), said in one line.
+    said: list[str] = []
+    plan, replaced = _render(reseeded, tmp_path, frames="1001-1003", overwrite=True, announce=said.append)
     assert replaced.written == [1001, 1002, 1003]
+    assert said == [f"--overwrite: removed 6 frames (1001–1006) rendered from tiny with different settings "
+                    f"from {plan.folder}"]
+    assert sorted(p.name for p in plan.folder.glob("*.exr")) == sorted(
+        f"{m}.{f}.exr" for m in ("displacement", "normal", "foam") for f in (1001, 1002, 1003))
     manifest = _manifest(plan)
     assert manifest["render_hash"] == render_hash(reseeded)
     assert manifest["frames_done"] == [1001, 1002, 1003]
+    assert manifest["frame_hashes"] == {str(f): render_hash(reseeded) for f in (1001, 1002, 1003)}
+
+
+def test_frames_a_killed_run_left_unrecorded_still_guard_the_folder(tmp_path, preset_file):
+    """A run killed before it recorded its frames leaves them unlisted in the manifest:
+    their headers still name their settings, so other settings are refused, and
+    ``overwrite`` removes them."""
+    path = preset_file()
+    plan, first = _render(load_preset(path), tmp_path, frames="1001-1004")
+    assert first.ok
+    manifest = _manifest(plan)
+    manifest.update(frames_done=[], frame_hashes={})  # as a SIGKILLed first run leaves it
+    (plan.folder / MANIFEST_NAME).write_text(json.dumps(manifest), encoding="utf-8")
+    reseeded = load_preset(path, overrides=("seed=5",))
+    with pytest.raises(ValueError, match=r"holds frames rendered from tiny with different settings "
+                                         r"\(4 frames \(1001–1004\)\).*--overwrite"):
+        _render(reseeded, tmp_path, frames="1005-1006")
+    plan, second = _render(reseeded, tmp_path, frames="1005-1006", overwrite=True)
+    assert second.written == [1005, 1006]
+    assert sorted({p.name.split(".")[1] for p in plan.folder.glob("*.exr")}) == ["1005", "1006"]
 
 
 # -- tiling and looping ----------------------------------------------------------------------

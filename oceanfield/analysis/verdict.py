@@ -35,7 +35,15 @@ from .measure import (
 )
 from .reliability import Reliability, assess, band_scales
 from ..physics.dispersion import check_depth
-from ..io.sequence import choose_layout, expand_sequence, header_number, parse_crop, read_channels, select_frames
+from ..io.sequence import (
+    choose_layout,
+    expand_sequence,
+    header_number,
+    mixed_settings_note,
+    parse_crop,
+    read_channels,
+    select_frames,
+)
 
 __all__ = ["format_verdict", "reliability_notes", "run_analyze_command"]
 
@@ -318,7 +326,8 @@ def run_analyze_command(args: argparse.Namespace) -> int:
     first_shape = (rows, cols)
     needed = [layout.height] + ([layout.lateral[0], layout.lateral[2]] if layout.lateral else [])
     last_attributes = attributes
-    for index, (_, path) in enumerate(files):
+    settings = []  # (frame, settings hash in its header)
+    for index, (frame_number, path) in enumerate(files):
         if index:
             channels, last_attributes = read_channels(path)
             missing = [name for name in needed if name not in channels]
@@ -326,6 +335,7 @@ def run_analyze_command(args: argparse.Namespace) -> int:
                 raise ValueError(
                     f"sequence: '{path}' has no channel {missing[0]!r}; available: {', '.join(sorted(channels))}"
                 )
+        settings.append((frame_number, last_attributes.get("oceanfield.preset_hash")))
         shape = channels[layout.height].shape
         if shape != first_shape:
             raise ValueError(
@@ -344,6 +354,9 @@ def run_analyze_command(args: argparse.Namespace) -> int:
         del channels
     result = accumulator.finish(depth=depth, target=target)
     notes = _header_notes(attributes, last_attributes, len(files), fps, size, metres_per_unit)
+    mixed = mixed_settings_note(settings)
+    if mixed:
+        notes.insert(0, mixed)
     if layout.lateral is not None and args.up_axis is None and header_up not in ("y", "z"):
         notes.append("the up axis of the displacement map was assumed to be y; pass --up-axis if it is z")
     if notes:

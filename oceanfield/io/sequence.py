@@ -40,6 +40,7 @@ __all__ = [
     "choose_layout",
     "expand_sequence",
     "header_number",
+    "mixed_settings_note",
     "parse_crop",
     "read_channels",
     "select_frames",
@@ -411,3 +412,25 @@ def header_number(attributes: dict[str, Any], name: str, *, positive: bool = Tru
     return value if math.isfinite(value) and (value > 0 or not positive) else None
 
 
+
+
+def mixed_settings_note(frames: Iterable[tuple[int | None, str | None]]) -> str | None:
+    """A note when a sequence's frames were rendered with different settings, else None.
+
+    ``frames`` gives each frame's number and the settings hash its header carries
+    (``oceanfield.preset_hash``; None where a file has none, which says nothing). The note
+    names the runs of frames sharing one setting, in frame order.
+    """
+    runs: list[list[Any]] = []  # [first, last, hash]
+    for number, value in frames:
+        if value is None:
+            continue
+        if runs and runs[-1][2] == value:
+            runs[-1][1] = number
+        else:
+            runs.append([number, number, value])
+    if len({value for _, _, value in runs}) < 2:
+        return None
+    shown = ", ".join(f"{a}" if a == b else f"{a}–{b}" for a, b, _ in runs[:6]) + (" …" if len(runs) > 6 else "")
+    return (f"the frames were rendered with {len({v for _, _, v in runs})} different settings "
+            f"(runs: {shown}); a mixed sequence jumps where they change: re-render it into one folder")

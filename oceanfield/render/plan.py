@@ -20,6 +20,7 @@ __all__ = [
     "MANIFEST_NAME",
     "RenderPlan",
     "frame_is_complete",
+    "frames_on_disk",
     "parse_frames",
     "plan_render",
     "render_hash",
@@ -152,3 +153,24 @@ def frame_is_complete(plan: RenderPlan, frame: int) -> bool:
             except (OSError, ValueError):
                 return False
     return True
+
+
+def frames_on_disk(plan: RenderPlan) -> list[int]:
+    """Frame numbers with a file of the plan's first map in its folder, whatever settings
+    made them and whatever the frame range (found from ``output.pattern``)."""
+    output = plan.preset.output
+    name = next(iter(plan.files(plan.preset.time.first_frame)))
+    folder = plan.files(plan.preset.time.first_frame)[name].parent
+    values = {"preset": plan.preset.name, "map": name, "ext": output.format}
+    pieces = re.split(r"#+", output.pattern.replace("\\", "/").rsplit("/", 1)[-1])
+    if len(pieces) < 2:
+        return []
+    number = r"(?P<frame>-?\d+)"
+    expression = number.join(re.escape(piece.format(**values)) for piece in pieces[:2])
+    expression += "".join(r"-?\d+" + re.escape(piece.format(**values)) for piece in pieces[2:])
+    matcher = re.compile(expression + "$")
+    try:
+        names = os.listdir(folder)
+    except OSError:
+        return []
+    return sorted({int(found.group("frame")) for found in map(matcher.match, names) if found})
