@@ -16,7 +16,8 @@ from typing import Any
 
 import numpy as np
 
-__all__ = ["sea_report", "format_sea_report", "fold_fraction", "surface_shares", "fold_warning"]
+__all__ = ["sea_report", "format_sea_report", "fold_fraction", "surface_shares", "fold_warning",
+           "expected_folded_share"]
 
 _FOLD_SAMPLES = 4  # frames spread over a peak period, averaged for the folded fraction
 #: Folded share above which a preset draws a warning (common practice: beyond about a tenth
@@ -47,28 +48,43 @@ def fold_fraction(ocean, *, times: list[float] | None = None) -> float:
     return surface_shares(ocean, times=times)[0]
 
 
-def fold_warning(preset, ocean=None) -> str | None:
-    """A warning when the lateral factor folds more than 10 % of the surface, else None."""
+def fold_warning(preset) -> str | None:
+    """A warning when the lateral factor folds more than 10 % of the surface, else None.
+
+    The share is the expected one, estimated from the spectrum
+    (``surface.folding.folded_share_estimate``): no Ocean, no frames, a fraction of a
+    second at any resolution.
+    """
     if preset.surface.lateral_factor == 0:
         return None
-    if ocean is None and preset.bands.active:  # the folding happens in band 0, the long waves
-        from .banding import preset_bands
-        from ..surface.synth import Ocean
-
-        band = preset_bands(preset)[0]
-        ocean = Ocean(preset.sea_state(), band.tile, seed=preset.seed, lateral_factor=preset.surface.lateral_factor,
-                      fold_threshold=preset.surface.fold_threshold, wavenumber_range=(band.k_low, band.k_high))
-    if ocean is None:
-        from ..surface.synth import Ocean
-
-        ocean = Ocean.from_preset(preset, velocity=False, foam_memory=0.0)
-    share = fold_fraction(ocean)
+    share = expected_folded_share(preset)
     if share <= MAX_FOLDED_SHARE:
         return None
     return (
         f"surface.lateral_factor: {preset.surface.lateral_factor:g} folds {share * 100:.0f} % of the surface "
         f"over itself (more than {MAX_FOLDED_SHARE * 100:.0f} %); crests will look torn: lower it"
     )
+
+
+def expected_folded_share(preset) -> float:
+    """The share of the preset's surface expected to fold (J < 0), from its spectrum
+    (for a banded preset, in band 0: the long waves, where the folding happens)."""
+    from ..surface.folding import folded_share_estimate
+
+    band = _report_bands(preset)[0]
+    return folded_share_estimate(preset.sea_state(), band.tile, preset.surface.lateral_factor,
+                                 wavenumber_range=(band.k_low, band.k_high))
+
+
+def _report_bands(preset) -> tuple:
+    """The preset's bands, or its one tile as a band of every wavenumber."""
+    from .banding import preset_bands
+    from ..surface.bands import Band
+    from ..surface.tile import Tile
+
+    if preset.bands.active:
+        return tuple(preset_bands(preset))
+    return (Band(Tile(preset.tile.size_m, preset.tile.resolution), 0.0, math.inf),)
 
 
 def _row(stats) -> dict[str, Any]:
@@ -89,10 +105,9 @@ def _row(stats) -> dict[str, Any]:
 
 def sea_report(preset) -> dict[str, Any]:
     """Every figure of ``oceanfield stats`` for a resolved preset, as a JSON-ready dict."""
+    from .banding import band_stack
     from .schema import to_sea_state
     from ..surface.synth import Ocean
-
-    from .banding import band_stack
 
     sea = to_sea_state(preset)
     total = sea.statistics()
@@ -108,7 +123,7 @@ def sea_report(preset) -> dict[str, Any]:
     tile = ocean.tile
     folded, foamy = surface_shares(ocean)
     threshold = ocean.fold_threshold
-    banding = _band_rows(sea, oceans, preset)
+    banding = _band_rows(sea, _report_bands(preset), preset)
     captured = ocean.lattice_variance / total.m0
     shortest = 2.0 * math.pi / tile.nyquist
     if preset.bands.active:  # what all the bands capture, down to the last band's shortest wave
@@ -145,26 +160,35 @@ def sea_report(preset) -> dict[str, Any]:
     }
 
 
-def _band_rows(sea, oceans, preset) -> dict[str, Any]:
+#: Lattices up to this resolution are summed exactly (band_moments); larger ones by the
+#: spectrum quadrature of ``surface.folding`` (tested against the exact sums), which takes
+#: the same time at any size: an exact sum at 16384² takes minutes.
+_EXACT_SUM_RESOLUTION = 2048
+
+
+def _band_rows(sea, bands, preset) -> dict[str, Any]:
     """Each band's (or the single tile's) share: size, resolution, wavenumbers, Hs and
     mean-square slope from its lattice sums; the totals; Cox & Munk's clean-surface slope
     for the strongest wind (Cox & Munk 1954: 0.003 + 5.12e-3 U, U at 12.5 m taken as U10;
     the total fit from memory, its up- and cross-wind parts confirmed)."""
-    from ..surface.bands import Band, band_moments
+    from ..surface.bands import band_moments
+    from ..surface.folding import lattice_moments
 
     rows = []
     variance = slope = 0.0
-    for ocean in oceans:
-        low, high = ocean.wavenumber_range or (0.0, math.inf)
-        band = Band(ocean.tile, low, high)
-        v, s = band_moments(sea, band)
+    for band in bands:
+        low, high = band.k_low, band.k_high
+        if band.tile.resolution <= _EXACT_SUM_RESOLUTION:
+            v, s = band_moments(sea, band)
+        else:
+            v, s = lattice_moments(sea, band.tile, wavenumber_range=(low, high))
         variance += v
         slope += s
         rows.append({
-            "size_m": ocean.tile.size,
-            "resolution": ocean.tile.resolution,
-            "k_low_radpm": max(low, ocean.tile.dk),
-            "k_high_radpm": min(high, ocean.tile.nyquist),
+            "size_m": band.tile.size,
+            "resolution": band.tile.resolution,
+            "k_low_radpm": max(low, band.tile.dk),
+            "k_high_radpm": min(high, band.tile.nyquist),
             "hs_m": 4.0 * math.sqrt(v),
             "mean_square_slope": s,
         })
