@@ -117,6 +117,13 @@ def build_parser() -> argparse.ArgumentParser:
     scene.add_argument("--maps", default=None, metavar="DIR", help="the render output root the material's map files are under (default: ./renders)")
     scene.add_argument("--render-maps", action="store_true", help="render the map sequences into --maps first")
     _add_shot_arguments(scene, table=False)
+    compile_ = commands.add_parser(
+        "compile", help="compile the frame kernels into numba's cache once (for a farm image)",
+        description="Compile every frame kernel into numba's on-disk cache, so that no render pays for "
+                    "compilation. Run it once when a farm image is built; point the nodes at the same "
+                    "folder with the NUMBA_CACHE_DIR environment variable.")
+    compile_.add_argument("--cache-dir", default=None, metavar="DIR",
+                          help="cache folder (default: $NUMBA_CACHE_DIR, else numba's own beside the package)")
 
     analyze = commands.add_parser("analyze", help="measure a height sequence's spectrum, statistics and wave timing; of a foam sequence, its foam coverage")
     analyze.add_argument("sequence", help="a folder of frames, a glob, or a pattern with #### for the frame number")
@@ -291,6 +298,28 @@ def _cmd_render(args: argparse.Namespace) -> int:
     return run_render_command(args)
 
 
+def _cmd_compile(args: argparse.Namespace) -> int:
+    import os
+
+    if args.cache_dir is not None:
+        if "numba" in sys.modules:  # numba reads the variable once, when it is imported
+            raise UserError("--cache-dir: numba is already loaded in this process; set NUMBA_CACHE_DIR instead")
+        folder = os.path.abspath(args.cache_dir)
+        try:
+            os.makedirs(folder, exist_ok=True)
+        except OSError as error:
+            raise UserError(f"--cache-dir: cannot create {folder!r} ({error.strerror or error})") from None
+        os.environ["NUMBA_CACHE_DIR"] = folder
+    from .surface.warmup import compile_kernels
+
+    seconds = compile_kernels()
+    where = os.environ.get("NUMBA_CACHE_DIR") or "numba's cache beside the package (__pycache__)"
+    print(f"kernels compiled and cached in {where} ({seconds:.1f} s)")
+    if args.cache_dir is not None:
+        print(f"on every node that renders, set NUMBA_CACHE_DIR={os.environ['NUMBA_CACHE_DIR']}")
+    return 0
+
+
 def _cmd_analyze(args: argparse.Namespace) -> int:
     from .analysis.verdict import run_analyze_command
 
@@ -325,6 +354,7 @@ _COMMANDS = {
     "probe": _cmd_probe,
     "float": _cmd_float,
     "scene": _cmd_scene,
+    "compile": _cmd_compile,
 }
 
 

@@ -153,3 +153,19 @@ def test_the_installed_command_runs():
     result = subprocess.run(["oceanfield", "stats", "moderate_breeze", *SMALL], capture_output=True, text=True, timeout=120)
     assert result.returncode == 0, result.stderr
     assert "moderate_breeze" in result.stdout
+
+
+def test_compile_command_warms_the_kernel_cache(capsys):
+    """`oceanfield compile` runs every frame path (here the kernels are cached already)."""
+    assert main(["compile"]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith("kernels compiled and cached in ")
+
+
+def test_compile_refuses_a_cache_dir_once_numba_is_loaded(capsys, tmp_path):
+    import numba  # noqa: F401 - loaded, as in any process that has rendered
+
+    assert main(["compile", "--cache-dir", str(tmp_path / "kernels")]) == 2
+    err = capsys.readouterr().err
+    assert err.startswith("oceanfield: error: --cache-dir:") and "NUMBA_CACHE_DIR" in err
+    assert not (tmp_path / "kernels").exists()

@@ -24,7 +24,6 @@ from dataclasses import asdict, dataclass, field
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
-from scipy import integrate, optimize
 
 from . import spectra
 from .constants import GRAVITY, SEAWATER_DENSITY
@@ -454,6 +453,8 @@ class SeaState:
         density = self.frequency_spectrum(grid)
         i = int(np.argmax(density))
         lo, hi = grid[max(i - 1, 0)], grid[min(i + 1, len(grid) - 1)]
+        from scipy import optimize  # here, not at the top: a render that needs no statistics skips it
+
         result = optimize.minimize_scalar(
             lambda w: -float(self.frequency_spectrum(np.array([w]))[0]),
             bounds=(lo, hi),
@@ -479,6 +480,8 @@ class SeaState:
         dtheta = 2.0 * np.pi / theta.size
         cos_mean = (d * np.cos(theta)[None, :]).sum(axis=1) * dtheta
         sin_mean = (d * np.sin(theta)[None, :]).sum(axis=1) * dtheta
+        from scipy import integrate  # here, not at the top: only statistics need it
+
         m0_grid = integrate.trapezoid(density, omega)
         a1 = integrate.trapezoid(density * cos_mean, omega) / m0_grid
         b1 = integrate.trapezoid(density * sin_mean, omega) / m0_grid

@@ -1,0 +1,37 @@
+"""Compile every kernel of a frame once, into numba's on-disk cache (for farm images).
+
+Knows nothing of presets or files beyond numba's own cache.
+
+The kernels (``_kernels``) compile on their first call and numba caches the machine code
+on disk (``cache=True``), in ``__pycache__`` beside the package or under the folder named
+by the ``NUMBA_CACHE_DIR`` environment variable. A fresh install therefore pays several
+seconds of compilation on its first render, and so does every farm node whose package
+folder is read-only or whose cache is lost. :func:`compile_kernels` synthesises a small
+frame through every path a render can take (plain, velocity, lingering foam), so that
+running it once while a farm image is built leaves every kernel compiled in that cache.
+Machine code is cached per CPU model: build the image on the nodes' kind of CPU.
+"""
+
+from __future__ import annotations
+
+import math
+import time
+
+__all__ = ["compile_kernels"]
+
+_RESOLUTION = 32  # the kernels' machine code depends on array types, not sizes
+
+
+def compile_kernels() -> float:
+    """Run every frame path once on a tiny tile; returns the seconds it took."""
+    from ..physics.seastate import SeaState, wind_sea
+    from .synth import Ocean
+    from .tile import Tile
+
+    started = time.perf_counter()
+    sea = SeaState((wind_sea(8.0, fetch=20e3, direction=math.radians(30.0)),))
+    tile = Tile(64.0, _RESOLUTION)
+    for options in ({}, {"velocity": True}, {"foam_memory": 1.0, "foam_samples": 2}, {"loop_period": 20.0}):
+        ocean = Ocean(sea, tile, seed=1, **options)
+        ocean.frame(0.5, buffer=ocean.new_buffer())
+    return time.perf_counter() - started
