@@ -88,7 +88,7 @@ def build_parser() -> argparse.ArgumentParser:
     _add_preset_arguments(render)
     render.add_argument("--frames", default=None, help="frame range A-B or list A,B,C (default: the preset's)")
     render.add_argument("--chunk", default=None, metavar="I/N", help="render only chunk I of N of the frames (1-based)")
-    render.add_argument("--workers", type=int, default=None, help="local worker processes (default: cores)")
+    render.add_argument("--workers", type=int, default=None, help="local worker processes (default: chosen from the job size, the cores and the free memory)")
     render.add_argument("--scheduler", default=None, metavar="ADDRESS", help="a Dask distributed scheduler to render on")
     render.add_argument("--out", default=None, metavar="DIR", help="output root (default: ./renders)")
     render.add_argument("--overwrite", action="store_true", help="replace frames and a manifest from another preset")

@@ -326,3 +326,26 @@ def test_overwrite_of_part_of_a_range_never_leaves_a_mixed_sequence(tmp_path, pr
     assert main(["analyze", str(folder / "displacement.####.exr"), "--json"]) == 0
     notes = json.loads(capsys.readouterr().out)["notes"]
     assert notes[0].startswith("the frames were rendered with 2 different settings (runs: 1001–1002, 1003–1016)")
+
+
+def test_large_jobs_print_an_estimate_and_show_the_build(tmp_path, preset_file, capsys, monkeypatch):
+    """A job past the size thresholds says its memory and time up front and shows the
+    Ocean's build as a progress bar (thresholds lowered here to fit a 64² test)."""
+    import oceanfield.render.job as job
+    from oceanfield.render.estimate import estimate_render
+    from oceanfield.surface.synth import frame_bytes_per_texel
+
+    monkeypatch.setattr(job, "_ESTIMATE_TEXELS", 0)
+    monkeypatch.setattr(job, "_BUILD_BAR_SECONDS", 0.0)
+    preset = preset_file()
+    assert main(_render_args(preset, tmp_path / "out")) == 0
+    captured = capsys.readouterr()
+    lines = captured.out.splitlines()
+    assert re.fullmatch(r"estimate: about [\d.]+ (KB|MB) of memory and \d+ s for 6 frames on 1 worker "
+                        r"\(\d+ s of it building the ocean\)", lines[1]), captured.out
+    assert "building the ocean" in captured.err and "64/64" in captured.err
+
+    estimate = estimate_render(plan_render(load_preset(preset), root=tmp_path), workers=2, cores=2)
+    # Two workers, each an Ocean and a frame plus two encoded frames of 28 B a texel.
+    assert estimate.memory_bytes == 2 * 64 * 64 * (frame_bytes_per_texel(False) + 28)
+    assert 0 < estimate.build_seconds <= estimate.total_seconds

@@ -336,7 +336,7 @@ def test_dask_cluster_renders_the_same_files(tmp_path, preset_file):
     _, local = _render(preset, tmp_path / "local")
     assert local.ok
     with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
-                                  dashboard_address=None) as cluster, distributed.Client(cluster) as client:
+                                  dashboard_address=":0") as cluster, distributed.Client(cluster) as client:
         _, on_cluster = _render(preset, tmp_path / "client", scheduler=client)
         status = main(["render", str(path), "--out", str(tmp_path / "address"),
                        "--scheduler", cluster.scheduler_address])
@@ -362,7 +362,7 @@ def test_a_failed_cluster_task_fails_its_own_frames(tmp_path, preset_file, monke
     monkeypatch.setattr(render_module, "_dask_frames", _dask_frames_failing_on_1001)
     preset = load_preset(preset_file())
     with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=False,
-                                  dashboard_address=None) as cluster, distributed.Client(cluster) as client:
+                                  dashboard_address=":0") as cluster, distributed.Client(cluster) as client:
         _, summary = _render(preset, tmp_path, scheduler=client)
     assert list(summary.failed) == [1001]
     assert "simulated worker crash" in summary.failed[1001]
@@ -525,3 +525,27 @@ def test_looping_sequence_repeats_after_its_period(tmp_path, preset_file):
             assert np.abs(looped[channel] - array).max() <= tolerance, (name, channel)
             # Half a period on, the sea has moved: the check can fail.
             assert np.abs(halfway[channel] - array).max() > 10 * tolerance, (name, channel)
+
+
+# -- default workers -------------------------------------------------------------------------
+
+
+@pytest.mark.parametrize(
+    ("resolution", "frames", "cores", "memory", "expected"),
+    [
+        (256, 96, 2, None, 2),      # small frames: a process per core (measured faster on 2 cores)
+        (512, 48, 2, None, 2),
+        (1024, 24, 2, None, 1),     # one process's threads fill 2 cores (measured faster)
+        (2048, 8, 2, None, 1),
+        (512, 200, 16, None, 16),
+        (1024, 200, 16, None, 4),   # four threads a worker
+        (2048, 200, 16, None, 1),
+        (512, 10, 16, None, 1),     # too few frames to repay a second process's start
+        (1024, 200, 16, 2 * 72 * 1024**2, 2),  # memory for two workers only
+    ],
+)
+def test_default_workers_follow_the_job_and_the_machine(preset_file, resolution, frames, cores, memory, expected):
+    preset = load_preset(preset_file(), overrides=(f"tile.resolution={resolution}",
+                                                   f"time.last_frame={1000 + frames}"))
+    plan = plan_render(preset, root=Path("unused"))
+    assert render_module.default_workers(plan, cores=cores, memory=memory) == expected

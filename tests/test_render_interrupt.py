@@ -121,7 +121,7 @@ def test_ctrl_c_stops_the_tasks_on_a_dask_cluster(tmp_path, preset_file):
     preset = preset_file("stopped", settings={"tile": {"resolution": 256},
                                               "time": {"last_frame": 1000 + _FRAMES}})
     with distributed.LocalCluster(n_workers=1, threads_per_worker=1, processes=False, protocol="tcp",
-                                  dashboard_address=None) as cluster:
+                                  dashboard_address=":0") as cluster:
         code, err, folder = _interrupt(tmp_path, preset, signal.SIGINT, "--scheduler", cluster.scheduler_address)
         _check_stopped_cleanly(code, err, folder, signal.SIGINT)
         # The cluster's task saw the stop flag: it writes nothing more.

@@ -84,7 +84,8 @@ def _set_threads(threads: int) -> None:
 
 def _render_frames(plan: RenderPlan, frames: Iterable[int], *, threads: int, overwrite: bool,
                    report: Callable[[FrameResult], None],
-                   should_stop: Callable[[], bool] | None = None) -> None:
+                   should_stop: Callable[[], bool] | None = None,
+                   build_progress: Callable[[int], None] | None = None) -> None:
     """Render ``frames`` in this process, overlapping each frame's compute with the last's writes.
 
     The compute side synthesises a frame and encodes its files (scene axes and units,
@@ -120,13 +121,13 @@ def _render_frames(plan: RenderPlan, frames: Iterable[int], *, threads: int, ove
     sink = _ThreadSink(watch, write_jobs)  # looked up here: replacing job.write_jobs reaches it
     done: set[int] = set()
     try:
-        ocean = _cached_ocean(plan, threads)
+        ocean = _cached_ocean(plan, threads, build_progress)
         buffer = ocean.new_buffer()
         for frame in todo:
             if stop:  # the disk is full or read-only: no later frame can be written
                 break
             if should_stop is not None and should_stop():
-                return
+                break  # (the writer still finishes and reports the frame in hand)
             done.add(frame)
             started = time.perf_counter()
             fields = ocean.frame(plan.preset.time.frame_time(frame), buffer=buffer)
@@ -149,14 +150,19 @@ def _render_frames(plan: RenderPlan, frames: Iterable[int], *, threads: int, ove
 _OCEANS: dict[tuple[str, int], Any] = {}
 
 
-def _cached_ocean(plan: RenderPlan, threads: int):
-    """The plan's Ocean (or band stack), kept for the next group of frames this process renders (Dask tasks)."""
+def _cached_ocean(plan: RenderPlan, threads: int, build_progress: Callable[[int], None] | None = None):
+    """The plan's Ocean (or band stack), kept for the next group of frames this process
+    renders (Dask tasks); ``build_progress`` sees a single tile's amplitude build."""
     from ..preset.banding import synthesizer
+    from ..surface.synth import Ocean
 
     key = (plan.hash, threads)
     if key not in _OCEANS:
         _OCEANS.clear()  # one at a time: an Ocean holds 12 bytes a texel
-        _OCEANS[key] = synthesizer(plan.preset, fft_workers=threads)
+        if plan.preset.bands.active:
+            _OCEANS[key] = synthesizer(plan.preset, fft_workers=threads)
+        else:
+            _OCEANS[key] = Ocean.from_preset(plan.preset, fft_workers=threads, build_progress=build_progress)
     return _OCEANS[key]
 
 
@@ -262,7 +268,8 @@ def _children_ignore_sigint():
 
 def render(plan: RenderPlan, *, workers: int | None = None, scheduler: str | Any | None = None,
            overwrite: bool = False, progress: Callable[[FrameResult], None] | None = None,
-           announce: Callable[[str], None] | None = None) -> RenderSummary:
+           announce: Callable[[str], None] | None = None,
+           build_progress: Callable[[int], None] | None = None) -> RenderSummary:
     """Render the plan's frames and return the summary.
 
     Parameters
@@ -283,6 +290,8 @@ def render(plan: RenderPlan, *, workers: int | None = None, scheduler: str | Any
     announce : callable or None
         Called with a line to tell the user before frames render (frames of other
         settings removed under ``overwrite``).
+    build_progress : callable or None
+        Called with the lattice rows done while this process builds its Ocean.
 
     Raises
     ------
@@ -308,7 +317,7 @@ def render(plan: RenderPlan, *, workers: int | None = None, scheduler: str | Any
                 if removed and announce is not None:
                     announce(removed)
                 _update_manifest(plan, [])  # claim the folder at once: a killed first run still leaves it
-                _run(plan, summary, client, count, cores, overwrite, progress)
+                _run(plan, summary, client, count, cores, overwrite, progress, build_progress)
             finally:
                 if own_client:
                     client.close()
@@ -327,24 +336,18 @@ def render(plan: RenderPlan, *, workers: int | None = None, scheduler: str | Any
     return summary
 
 
-#: Texels a thread of one frame's FFTs and kernels keeps busy; a frame smaller than
-#: cores × this leaves threads idle, and separate worker processes fill them instead
-#: (measured on 2 cores: one worker with both threads was fastest from 512² up).
-_TEXELS_PER_THREAD = 256 * 256
+#: Texels of a frame that keep one thread of its FFTs, kernels and EXR compression busy;
+#: a frame smaller than cores × this leaves threads waiting on each other, and separate
+#: worker processes (one thread each) fill the cores instead. Measured on 2 shared cores
+#: (best of two runs, 1 vs 2 workers): 256² × 96 frames 6.2 vs 5.0 s, 512² × 48 10.0 vs
+#: 7.4 s, 1024² × 24 14.1 vs 20.0 s, 2048² × 8 25.3 vs 33.1 s.
+_TEXELS_PER_THREAD = 512 * 512
 #: A worker process pays its start (interpreter, imports, kernel cache: about a second)
 #: once: give each at least this many frames.
 _FRAMES_PER_WORKER = 8
 #: Memory one worker needs per texel: a frame (32 B), h0 and ω (12 B) and two encoded
 #: frames in flight (half floats of seven channels, 14 B each).
 _WORKER_BYTES_PER_TEXEL = 72
-
-
-def _available_memory() -> int | None:
-    """Bytes of memory free for new processes now, or None where the system does not say."""
-    try:
-        return os.sysconf("SC_AVPHYS_PAGES") * os.sysconf("SC_PAGE_SIZE")
-    except (AttributeError, OSError, ValueError):
-        return None
 
 
 def default_workers(plan: RenderPlan, *, cores: int | None = None, memory: int | None = None) -> int:
@@ -360,14 +363,18 @@ def default_workers(plan: RenderPlan, *, cores: int | None = None, memory: int |
     useful_threads = max(1, texels // _TEXELS_PER_THREAD)
     count = max(1, cores // useful_threads)
     count = min(count, max(1, len(plan.frames) // _FRAMES_PER_WORKER))
-    memory = _available_memory() if memory is None else memory
+    if memory is None:
+        from ..surface.synth import available_memory
+
+        memory = available_memory()
     if memory is not None:
         count = min(count, max(1, memory // (_WORKER_BYTES_PER_TEXEL * texels)))
     return count
 
 
 def _run(plan: RenderPlan, summary: RenderSummary, client, count: int, cores: int, overwrite: bool,
-         progress: Callable[[FrameResult], None] | None) -> None:
+         progress: Callable[[FrameResult], None] | None,
+         build_progress: Callable[[int], None] | None = None) -> None:
     lock = threading.Lock()
 
     def record(result: FrameResult) -> None:
@@ -387,13 +394,15 @@ def _run(plan: RenderPlan, summary: RenderSummary, client, count: int, cores: in
     count = min(count, len(plan.frames))
     threads = max(1, cores // count)
     if count == 1:
-        _render_frames(plan, plan.frames, threads=threads, overwrite=overwrite, report=record)
+        _render_frames(plan, plan.frames, threads=threads, overwrite=overwrite, report=record,
+                       build_progress=build_progress)
     else:
-        _render_on_processes(plan, count, threads, overwrite, record)
+        _render_on_processes(plan, count, threads, overwrite, record, build_progress)
 
 
 def _render_on_processes(plan: RenderPlan, count: int, threads: int, overwrite: bool,
-                         record: Callable[[FrameResult], None]) -> None:
+                         record: Callable[[FrameResult], None],
+                         build_progress: Callable[[int], None] | None = None) -> None:
     """``count`` workers, each with a contiguous share of the frames: this process renders
     the first share itself (it has already paid for its imports and compiled kernels) and
     spawns a long-lived process for each other share; their results arrive through a
@@ -432,7 +441,8 @@ def _render_on_processes(plan: RenderPlan, count: int, threads: int, overwrite: 
             for worker in workers:
                 worker.start()
         collector.start()
-        _render_frames(plan, own, threads=threads, overwrite=overwrite, report=record)
+        _render_frames(plan, own, threads=threads, overwrite=overwrite, report=record,
+                       build_progress=build_progress)
         collector.join()
     except BaseException:  # interrupted or failed here: stop the others too
         for worker in workers:
@@ -716,16 +726,30 @@ def run_render_command(args) -> int:
         print(f"nothing to render: chunk {args.chunk} of {len(parse_frames(args.frames, preset.time.frames))} frames is empty")
         return 0
     print(f"rendering {len(plan.frames)} frames of {preset.name} ({', '.join(preset.maps)}) into {plan.folder}")
+    cores = os.cpu_count() or 1
+    workers = args.workers if args.workers is not None else default_workers(plan, cores=cores)
+    building = None
+    n = preset.tile.resolution
+    if args.scheduler is None and (n >= _ESTIMATE_RESOLUTION or n * n * len(plan.frames) >= _ESTIMATE_TEXELS):
+        from .estimate import estimate_render
+
+        estimate = estimate_render(plan, workers, cores)
+        print(estimate.line(len(plan.frames), workers), flush=True)
+        if estimate.build_seconds >= _BUILD_BAR_SECONDS:
+            building = _BuildProgress(preset.tile.resolution)
     progress = _Progress(len(plan.frames))
     try:
-        summary = render(plan, workers=args.workers, scheduler=args.scheduler, overwrite=args.overwrite,
-                         progress=progress.update, announce=lambda line: print(f"oceanfield: {line}", file=sys.stderr))
+        summary = render(plan, workers=workers, scheduler=args.scheduler, overwrite=args.overwrite,
+                         progress=progress.update, announce=lambda line: print(f"oceanfield: {line}", file=sys.stderr),
+                         build_progress=None if building is None else building.update)
     except RenderInterrupted as interrupt:
         progress.close()
         print(f"oceanfield: {interrupted_line(interrupt)}", file=sys.stderr)
         return 128 + interrupt.signum
     finally:
         progress.close()
+        if building is not None:
+            building.close()
     print(summary.line())
     for error, frames in _grouped_failures(summary.failed):
         which = f"frame {frames[0]}" if len(frames) == 1 else f"{len(frames)} frames ({frames[0]}–{frames[-1]})"
@@ -760,6 +784,34 @@ def _grouped_failures(failed: dict[int, str]) -> list[tuple[str, list[int]]]:
         key = re.sub(r"^cannot write '[^']*': ", "cannot write: ", error)
         groups.setdefault(key, (error, []))[1].append(frame)  # the first frame's message stands
     return list(groups.values())
+
+
+#: Jobs of at least this many texels (all frames) get a memory and time estimate up front
+#: (2048² × 16 frames: about a minute on a few cores) ...
+_ESTIMATE_TEXELS = 2048 * 2048 * 16
+_ESTIMATE_RESOLUTION = 4096  # ... and so do frames this large (a frame takes seconds)
+_BUILD_BAR_SECONDS = 5.0  # a longer Ocean build shows a progress bar
+
+
+class _BuildProgress:
+    """A tqdm bar over the lattice rows while this process builds its Ocean."""
+
+    def __init__(self, rows: int) -> None:
+        from tqdm import tqdm
+
+        self.bar = tqdm(total=rows, unit="row", desc="building the ocean", file=sys.stderr,
+                        mininterval=0.5 if sys.stderr.isatty() else 10.0)
+
+    def update(self, rows: int) -> None:
+        if self.bar is not None:
+            self.bar.update(rows)
+            if self.bar.n >= self.bar.total:
+                self.close()
+
+    def close(self) -> None:
+        if self.bar is not None:
+            self.bar.close()
+            self.bar = None
 
 
 class _Progress:

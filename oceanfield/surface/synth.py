@@ -17,7 +17,7 @@ from __future__ import annotations
 import math
 import os
 from dataclasses import dataclass
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Callable
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
@@ -161,6 +161,9 @@ class Ocean:
     wavenumber_range : (float, float) or None
         Carry only the waves with k_low ≤ |k| < k_high (rad/m; k_high may be ``inf``), so
         that the bands of a stack share out the spectrum without overlap. None: all.
+    build_progress : callable or None
+        Called with the lattice rows done while the amplitudes are drawn (minutes at
+        16384²), for a progress bar.
 
     Examples
     --------
@@ -188,6 +191,7 @@ class Ocean:
         wave_heights: str = "as_requested",
         band: int = 0,
         wavenumber_range: tuple[float, float] | None = None,
+        build_progress: Callable[[int], None] | None = None,
     ) -> None:
         if not isinstance(sea_state, SeaState):
             raise ValueError(f"sea_state: {type(sea_state).__name__} is not allowed; allowed: a SeaState")
@@ -235,7 +239,7 @@ class Ocean:
         self.velocity = bool(velocity)
         self.fft_workers = fft_workers if fft_workers is not None else (os.cpu_count() or 1)
         self._check_memory()
-        self._h0, self._omega, self.lattice_variance, self.loop_info, used = self._build()
+        self._h0, self._omega, self.lattice_variance, self.loop_info, used = self._build(build_progress)
         self.whitecap_coverage, self.fold_threshold = self._foam_threshold(fold_threshold)
         # Rotations are needed only for the q = nx² + ny² that carry energy: slot 0 stands
         # for all others (their amplitudes are zero), slots 1… for the used ones.
@@ -252,6 +256,7 @@ class Ocean:
         velocity: bool | None = None,
         foam_memory: float | None = None,
         fft_workers: int | None = None,
+        build_progress: Callable[[int], None] | None = None,
     ) -> "Ocean":
         """The ocean a resolved :class:`~oceanfield.preset.Preset` describes.
 
@@ -274,6 +279,7 @@ class Ocean:
             foam_memory=preset.surface.foam_memory_s if foam_memory is None else foam_memory,
             velocity=("velocity" in preset.maps) if velocity is None else velocity,
             fft_workers=fft_workers,
+            build_progress=build_progress,
         )
 
     # -- set-up ------------------------------------------------------------------------
@@ -288,7 +294,7 @@ class Ocean:
             )
 
     def _build(
-        self,
+        self, progress: Callable[[int], None] | None = None,
     ) -> tuple[NDArray[np.complex64], NDArray[np.float64], float, LoopInfo | None, NDArray[np.bool_]]:
         """Amplitudes h0 on the lattice (a block of rows at a time), ω per |k|² index, the
         lattice's variance, the loop's frequency shifts, and which |k|² carry energy."""
@@ -311,6 +317,8 @@ class Ocean:
             target += np.bincount(q, cell.ravel(), minlength=rings)
             realised += np.bincount(q, 2.0 * (block.real.ravel() ** 2 + block.imag.ravel() ** 2), minlength=rings)
             h0[rows] = block
+            if progress is not None:  # rows of the lattice done (a long build at 8192² and up)
+                progress(rows.stop - rows.start)
         used = target > 0
         if self.wave_heights == "as_requested":
             # Each ring of equal |k| holds exactly its target (see ``amplitudes``).
