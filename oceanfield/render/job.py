@@ -329,7 +329,8 @@ def render(plan: RenderPlan, *, workers: int | None = None, scheduler: str | Any
             _OCEANS.clear()  # the render is over: do not keep its Ocean (12 bytes a texel)
         summary.written.sort()
         summary.skipped.sort()
-        _update_manifest(plan, summary.written + summary.skipped)
+        if plan.folder.is_dir():  # (an interrupt may come before the folder is made)
+            _update_manifest(plan, summary.written + summary.skipped)
     summary.wall_seconds = time.perf_counter() - started
     if interrupted is not None:
         raise RenderInterrupted(interrupted.signum, summary)
