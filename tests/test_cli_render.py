@@ -349,3 +349,17 @@ def test_large_jobs_print_an_estimate_and_show_the_build(tmp_path, preset_file, 
     # Two workers, each an Ocean and a frame plus two encoded frames of 28 B a texel.
     assert estimate.memory_bytes == 2 * 64 * 64 * (frame_bytes_per_texel(False) + 28)
     assert 0 < estimate.build_seconds <= estimate.total_seconds
+
+
+def test_preset_warnings_are_printed_by_the_job_or_its_first_chunk_only(tmp_path, preset_file, capsys):
+    """Farm chunks other than the first skip the preset's warnings (and the statistics they
+    cost at start-up); the first chunk and an unchunked job print them."""
+    preset = preset_file()
+    printed = {}
+    for chunk in (None, "1/3", "2/3"):
+        extra = ("--set", "output.compression=dwaa") + (("--chunk", chunk) if chunk else ())
+        assert main(_render_args(preset, tmp_path / str(chunk).replace("/", "of"), *extra)) == 0
+        err = capsys.readouterr().err
+        printed[chunk] = [line for line in err.splitlines() if line.startswith("oceanfield: warning:")]
+    assert printed[None] and printed["1/3"] == printed[None]
+    assert printed["2/3"] == []
