@@ -12,9 +12,11 @@ depends at a point on three derivatives of the lateral displacement. Each is a s
 many independent wave components (``synth``: ∂Dx/∂x = −λ Σ (kx²/k) ĥ, ∂Dy/∂y =
 −λ Σ (ky²/k) ĥ, ∂Dx/∂y = −λ Σ (kx ky/k) ĥ), so by the central limit theorem they are
 jointly Gaussian with zero mean and covariances λ² Σ (kx^a ky^b / k²) Ψ(k) Δk² with
-a + b = 4 (the lattice's fourth-order slope moments, as in the slope statistics of Cox &
-Munk 1954 one order up). The share of the surface with J < 0, averaged over space and
-time, is the probability that J < 0 for that Gaussian, evaluated here on a fixed sample.
+a + b = 4, the lattice's fourth-order moments (the statistics of a Gaussian random
+moving surface follow from its spectral moments: Longuet-Higgins 1957, Phil. Trans. R.
+Soc. A 249; citation from memory). The share of the surface with J < 0, averaged over
+space and time, is the probability that J < 0 for that Gaussian, evaluated here on a
+fixed sample. Tested against the share measured on synthesised frames.
 
 The sums run over the lattice exactly for the long waves (|n| ≤ ``_EXACT_INDEX``, where
 the lattice's discreteness matters) and as a polar integral over the rest of the disk
