@@ -30,6 +30,7 @@ from oceanfield.io.exr import (
     LOSSLESS_COMPRESSIONS,
     exr_is_complete,
     read_exr,
+    to_pixels,
     write_exr,
 )
 from oceanfield.surface.maps import layered_channels
@@ -326,6 +327,19 @@ def test_half_keeps_infinities_and_large_values_as_float(tmp_path):
     np.testing.assert_array_equal(read_exr(path)[0]["Y"], values)
     write_exr(path, {"Y": values[:1]}, precision="half")
     np.testing.assert_array_equal(read_exr(path)[0]["Y"], values[:1])
+
+
+@pytest.mark.parametrize(("value", "stored"), [(65519.0, 65504.0), (-65519.0, -65504.0), (65520.0, None),
+                                              (-1e6, None)])
+def test_half_overflow_boundary(value, stored):
+    """IEEE 754 binary16 rounds to nearest even: magnitudes below 65504 + 16 round to the
+    largest finite half (65504), from 65520 on to infinity, which to_pixels refuses."""
+    source = np.array([[value, np.nan, 1.0]], np.float32)
+    if stored is None:
+        with pytest.raises(ValueError, match="exceeds the half-float range"):
+            to_pixels("Y", source, "half")
+    else:
+        assert float(to_pixels("Y", source, "half")[0, 0]) == stored
 
 
 def test_any_real_input_layout(tmp_path):
