@@ -72,3 +72,18 @@ def test_folded_share_is_the_seed_average_of_the_measured_share():
 def test_no_lateral_displacement_never_folds():
     preset = load_preset("storm_force_ten", overrides=("tile.resolution=64",))
     assert folded_share_estimate(preset.sea_state(), Tile(preset.tile.size_m, 64), 0.0) == 0.0
+
+
+def test_band_moments_by_quadrature_match_the_exact_band_sums():
+    """A band's variance and mean-square slope (k_low ≤ |k| < k_high), as `stats` takes
+    them beyond 2048², against the exact sums over the band's lattice (surface.bands)."""
+    from oceanfield.surface.bands import Band, band_moments
+    from oceanfield.surface.folding import lattice_moments
+
+    preset = load_preset("fresh_chop", overrides=("tile.resolution=512",))
+    sea, tile = preset.sea_state(), Tile(preset.tile.size_m, 512)
+    for low, high in ((0.0, float("inf")), (0.3, 2.5), (1.0, 6.0)):
+        variance, slope = lattice_moments(sea, tile, wavenumber_range=(low, high))
+        exact_variance, exact_slope = band_moments(sea, Band(tile, low, high))
+        assert variance == pytest.approx(exact_variance, rel=_QUADRATURE_RTOL)
+        assert slope == pytest.approx(exact_slope, rel=_QUADRATURE_RTOL)
