@@ -23,12 +23,16 @@ _QUADRATURE_RTOL = 0.015
 
 
 def _exact_sums(sea, tile, lateral_factor):
+    """Sums over every carried lattice point of its cell's variance (the amplitudes' own,
+    ``amplitudes.cell_variance``) times the moment's weight at the cell's centre."""
+    from oceanfield.surface.amplitudes import cell_variance
+
     ny, nx = tile.wave_indices()
-    ky, kx = tile.wavenumbers()
     carried = tile.carried(ny, nx)
-    kx = np.broadcast_to(kx, carried.shape)[carried]
-    ky = np.broadcast_to(ky, carried.shape)[carried]
-    energy = sea.directional_spectrum(kx, ky) * tile.dk**2
+    ny = np.broadcast_to(ny, carried.shape)[carried]
+    nx = np.broadcast_to(nx, carried.shape)[carried]
+    kx, ky = nx * tile.dk, ny * tile.dk
+    energy = cell_variance(sea, tile.dk, ny, nx)
     k2 = kx * kx + ky * ky
     lam2 = lateral_factor**2
     covariance = lam2 * np.array([np.sum(energy * kx**4 / k2), np.sum(energy * ky**4 / k2),

@@ -74,13 +74,17 @@ def _lattice_quadrature(sea_state, tile, wavenumber_range: tuple[float, float] |
                         ) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArray[np.float64]]:
     """Nodes (kx, ky) and their Ψ × area in m², standing for the sum over the lattice
     (over its wave indices with k_low ≤ |k| < k_high, for a band)."""
+    from .amplitudes import cell_variance
+
     k_low, k_high = wavenumber_range or (0.0, math.inf)
     ex, ey, radius = _exact_points(tile, k_low, k_high)
     px, py, pw = _polar_points(tile, max(radius, k_low), min(tile.nyquist, k_high))
-    kx = np.concatenate([ex, px])
-    ky = np.concatenate([ey, py])
-    weight = np.concatenate([np.full(ex.size, tile.dk**2), pw])
-    return kx, ky, np.asarray(sea_state.directional_spectrum(kx, ky), dtype=np.float64) * weight
+    # The long waves' cells carry Ψ integrated over the cell, as the amplitudes do
+    # (``amplitudes.cell_variance``); beyond, the integral over the disc is the cells' sum.
+    n = np.rint(np.concatenate([ey, ex]) / tile.dk).astype(np.int64)
+    exact = cell_variance(sea_state, tile.dk, n[:ey.size], n[ey.size:]) if ex.size else np.zeros(0)
+    polar = np.asarray(sea_state.directional_spectrum(px, py), dtype=np.float64) * pw
+    return np.concatenate([ex, px]), np.concatenate([ey, py]), np.concatenate([exact, polar])
 
 
 def derivative_covariance(sea_state, tile, lateral_factor: float, *,
