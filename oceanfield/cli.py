@@ -257,7 +257,27 @@ def _cmd_stats(args: argparse.Namespace) -> int:
 
     preset = _load(args)
     _warn(preset, folding=False)  # the report states the folded share itself
-    report = sea_report(preset)
+    bar = None
+    if preset.tile.resolution >= _STATS_ESTIMATE_RESOLUTION and not preset.bands.active:
+        # A large tile: say what building it and measuring four frames costs, and show the build.
+        import os
+
+        from tqdm import tqdm
+
+        from .render.estimate import estimate_work
+
+        cores = os.cpu_count() or 1
+        estimate = estimate_work(preset, _STATS_FRAMES, 1, cores, written=False)
+        print(f"{_PROG}: stats at {preset.tile.resolution}² builds the ocean and measures folding and foam on "
+              f"{_STATS_FRAMES} frames: {estimate.line(_STATS_FRAMES, 1).removeprefix('estimate: ')}",
+              file=sys.stderr, flush=True)
+        bar = tqdm(total=preset.tile.resolution, unit="row", desc="building the ocean", file=sys.stderr,
+                   mininterval=0.5 if sys.stderr.isatty() else 10.0)
+    try:
+        report = sea_report(preset, build_progress=None if bar is None else bar.update)
+    finally:
+        if bar is not None:
+            bar.close()
     if args.json:
         print(json.dumps(report, indent=2))
     else:
@@ -265,6 +285,11 @@ def _cmd_stats(args: argparse.Namespace) -> int:
 
         print(format_sea_report(report))
     return 0
+
+
+#: `stats` on tiles this large first says what it will cost and shows the ocean's build.
+_STATS_ESTIMATE_RESOLUTION = 4096
+_STATS_FRAMES = 4  # frames `stats` synthesises to measure the folded and foamy shares
 
 
 def _cmd_resolve(args: argparse.Namespace) -> int:

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+import re
 import subprocess
 import sys
 
@@ -169,3 +170,17 @@ def test_compile_refuses_a_cache_dir_once_numba_is_loaded(capsys, tmp_path):
     err = capsys.readouterr().err
     assert err.startswith("oceanfield: error: --cache-dir:") and "NUMBA_CACHE_DIR" in err
     assert not (tmp_path / "kernels").exists()
+
+
+def test_stats_on_a_large_tile_says_its_cost_and_shows_the_build(capsys, monkeypatch):
+    """Past the size threshold (lowered here to fit a 64² test) stats prints its memory and
+    time estimate and a build bar on stderr; stdout stays the report (here JSON)."""
+    import oceanfield.cli as cli
+
+    monkeypatch.setattr(cli, "_STATS_ESTIMATE_RESOLUTION", 64)
+    assert main(["stats", "fresh_chop", "--json", *SMALL]) == 0
+    captured = capsys.readouterr()
+    assert json.loads(captured.out)["tile"]["resolution"] == 64
+    assert re.search(r"oceanfield: stats at 64² builds the ocean and measures folding and foam on 4 frames: "
+                     r"about [\d.]+ (KB|MB) of memory and \d+ s", captured.err), captured.err
+    assert "building the ocean" in captured.err and "64/64" in captured.err

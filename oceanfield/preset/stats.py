@@ -103,8 +103,11 @@ def _row(stats) -> dict[str, Any]:
     }
 
 
-def sea_report(preset) -> dict[str, Any]:
-    """Every figure of ``oceanfield stats`` for a resolved preset, as a JSON-ready dict."""
+def sea_report(preset, *, build_progress=None) -> dict[str, Any]:
+    """Every figure of ``oceanfield stats`` for a resolved preset, as a JSON-ready dict.
+
+    ``build_progress`` is called with the lattice rows done while a single tile's Ocean
+    is built (minutes at 16384²)."""
     from .banding import band_stack
     from .schema import to_sea_state
     from ..surface.synth import Ocean
@@ -118,7 +121,7 @@ def sea_report(preset) -> dict[str, Any]:
         stack = band_stack(preset, foam_memory=0.0)
         oceans = stack.oceans
     else:
-        oceans = [Ocean.from_preset(preset, velocity=False, foam_memory=0.0)]
+        oceans = [Ocean.from_preset(preset, velocity=False, foam_memory=0.0, build_progress=build_progress)]
     ocean = oceans[0]
     tile = ocean.tile
     folded, foamy = surface_shares(ocean)

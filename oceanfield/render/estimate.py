@@ -20,7 +20,7 @@ import numpy as np
 
 from .plan import RenderPlan
 
-__all__ = ["RenderEstimate", "estimate_render"]
+__all__ = ["RenderEstimate", "estimate_render", "estimate_work"]
 
 #: Per-texel bytes of two encoded frames in flight (seven half-float channels each).
 _ENCODED_BYTES_PER_TEXEL = 28
@@ -28,6 +28,9 @@ _ENCODED_BYTES_PER_TEXEL = 28
 #: its four bare inverse FFTs, end to end: the benchmark's 48-frame 1024² render against
 #: its FFT floor (python -m oceanfield.bench) measured 11; 4096² frames measured 12-14.
 _FRAME_OVER_FFT = 11.0
+#: A frame computed but not written: its FFTs and kernels (the benchmark's frame ÷ bare
+#: FFTs, 1.4-2 at 1024²-2048²).
+_COMPUTE_OVER_FFT = 2.0
 #: Drawing h0 on the lattice costs about this many times the spectrum's evaluation there
 #: (keyed noise, square roots, the |k|² table; measured at 1024²).
 _BUILD_OVER_SPECTRUM = 1.5
@@ -51,14 +54,20 @@ class RenderEstimate:
 
 def estimate_render(plan: RenderPlan, workers: int, cores: int) -> RenderEstimate:
     """The memory and time :func:`render` will take for ``plan`` with ``workers`` workers."""
+    return estimate_work(plan.preset, len(plan.frames), workers, cores)
+
+
+def estimate_work(preset, frames: int, workers: int, cores: int, *, written: bool = True) -> RenderEstimate:
+    """Memory and time to build the preset's Ocean in each of ``workers`` processes and make
+    ``frames`` frames, written as files (``written``) or only computed (``stats``)."""
     import scipy.fft
 
     from ..surface.synth import frame_bytes_per_texel
 
-    preset = plan.preset
     n = preset.tile.resolution
     velocity = "velocity" in preset.maps
-    memory = workers * n * n * (frame_bytes_per_texel(velocity) + _ENCODED_BYTES_PER_TEXEL)
+    encoded = _ENCODED_BYTES_PER_TEXEL if written else 0
+    memory = workers * n * n * (frame_bytes_per_texel(velocity) + encoded)
 
     threads = max(1, cores // max(1, workers))
     block = np.zeros((4, _CALIBRATION_N, _CALIBRATION_N), dtype=np.complex64)
@@ -68,14 +77,14 @@ def estimate_render(plan: RenderPlan, workers: int, cores: int) -> RenderEstimat
         scipy.fft.ifft2(block, axes=(-2, -1), workers=threads)
     fft_small = (time.perf_counter() - started) / 3
     scale = (n * n * math.log2(n)) / (_CALIBRATION_N**2 * math.log2(_CALIBRATION_N))
-    frame_seconds = _FRAME_OVER_FFT * fft_small * scale
+    frame_seconds = (_FRAME_OVER_FFT if written else _COMPUTE_OVER_FFT) * fft_small * scale
 
     sea = preset.sea_state()
     k = np.linspace(1e-3, 1.0, _SAMPLE_POINTS)
     started = time.perf_counter()
     sea.directional_spectrum(k * 0.6, k * 0.8)
     build = _BUILD_OVER_SPECTRUM * (time.perf_counter() - started) / _SAMPLE_POINTS * n * n
-    total = build + frame_seconds * len(plan.frames) / max(1, workers)
+    total = build + frame_seconds * frames / max(1, workers)
     return RenderEstimate(int(memory), build, total)
 
 
