@@ -549,3 +549,13 @@ def test_default_workers_follow_the_job_and_the_machine(preset_file, resolution,
                                                    f"time.last_frame={1000 + frames}"))
     plan = plan_render(preset, root=Path("unused"))
     assert render_module.default_workers(plan, cores=cores, memory=memory) == expected
+
+
+def test_a_new_file_layout_makes_old_frames_stale(monkeypatch):
+    """Frames laid out another way (e.g. rows in the other order) must never count as done."""
+    import oceanfield.render.plan as plan_module
+
+    preset = load_preset("moderate_breeze")
+    now = render_hash(preset)
+    monkeypatch.setattr(plan_module, "FILE_LAYOUT", plan_module.FILE_LAYOUT - 1)
+    assert render_hash(preset) != now

@@ -16,6 +16,7 @@ from typing import Any, Sequence
 
 __all__ = [
     "ATTRIBUTE_PREFIX",
+    "FILE_LAYOUT",
     "LAYERS_MAP",
     "MANIFEST_NAME",
     "RenderPlan",
@@ -30,6 +31,10 @@ __all__ = [
 MANIFEST_NAME = "oceanfield-manifest.json"
 ATTRIBUTE_PREFIX = "oceanfield."  # every header attribute we write starts with this
 LAYERS_MAP = "layers"  # the multi-layer file's {map} in the file pattern
+#: How a tile is laid into its files; raise it whenever that changes, so that frames written
+#: the old way are re-rendered, never mixed with new ones. 2: the tile's y = 0 is the
+#: image's bottom row (1 had it in the top row).
+FILE_LAYOUT = 2
 
 
 # -- what to render --------------------------------------------------------------------------
@@ -79,14 +84,18 @@ def select_chunk(frames: Sequence[int], text: str | None) -> list[int]:
 def render_hash(preset) -> str:
     """Hash of everything in ``preset`` that changes a frame's files.
 
-    The preset's hash with ``last_frame`` left out: extending a sequence keeps the frames
-    already rendered valid, while any change to the sea, tile, time mapping, maps or
-    encoding changes the hash.
+    The preset's hash with ``last_frame`` left out, together with :data:`FILE_LAYOUT`:
+    extending a sequence keeps the frames already rendered valid, while any change to the
+    sea, tile, time mapping, maps or encoding — or to how this version lays a tile into a
+    file — changes the hash, so frames of another layout are never taken as done.
     """
+    import hashlib
+
     from ..preset.schema import preset_hash
 
     timing = dataclasses.replace(preset.time, last_frame=preset.time.first_frame)
-    return preset_hash(dataclasses.replace(preset, time=timing))
+    settings = preset_hash(dataclasses.replace(preset, time=timing))
+    return hashlib.sha256(f"{settings} layout {FILE_LAYOUT}".encode("utf-8")).hexdigest()
 
 
 @dataclass(frozen=True)
