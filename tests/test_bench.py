@@ -24,6 +24,9 @@ def test_benchmark_prints_frame_render_and_analyzer_figures(capsys):
     assert [row[0] for row in rows] == ["32", "64"]
     for row in rows:
         assert all(float(value) > 0 for value in row[1:])
+    bound = re.findall(r"^\s+(32|64)\s+([0-9.]+)\s+([0-9.]+)\s+([0-9.]+)$", out, re.M)
+    assert [row[0] for row in bound] == ["32", "64"]  # the frame with bound waves
+    assert all(float(value) > 0 for row in bound for value in row[1:])
     assert re.search(r"render [0-9.]+ s: ratio to floors [0-9.]+", out)
     assert re.search(r"warm [0-9.]+ s = that frame's compute and write [0-9.]+ s \+ -?[0-9.]+ s", out)
     assert re.search(r"[0-9.]+ ms per frame streamed", out)

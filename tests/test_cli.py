@@ -49,6 +49,12 @@ def test_stats_json_matches_the_sea_state(capsys):
     assert 0.8 < report["tile"]["captured_variance_share"] <= 1.0
     assert 0.0 <= report["folded_surface_share"] <= 1.0
     assert report["components"][0]["beaufort"] == 6
+    # Second order (Longuet-Higgins 1963; Tayfun 1980): a Beaufort 6 chop skews by about
+    # 3 kp σ = 0.19 if long-crested, less when spread; its bound waves are on by default.
+    second = report["second_order"]
+    assert second["on"] is True and second["setting"] == "auto"
+    assert 0.1 < second["skewness"] < 0.19
+    assert second["crest_trough_ratio"] > 1.05
 
 
 def test_stats_reports_realised_height_and_whitecap_share(capsys):
@@ -76,6 +82,7 @@ def test_stats_text_names_each_component_and_the_total(capsys):
     assert main(["stats", "swell_under_wind_sea", *SMALL]) == 0
     out = capsys.readouterr().out
     assert "total" in out and "captured:" in out and "folding:" in out
+    assert re.search(r"second order: skewness [0-9.]+, mean crest / mean trough [0-9.]+", out)
 
 
 def test_resolve_round_trips_to_identical_settings_and_pixels(capsys, tmp_path):

@@ -670,3 +670,17 @@ def test_foam_memory_key_defaults_checks_and_reaches_the_ocean(tmp_path):
     assert Ocean.from_preset(preset).foam_memory == 1.5
     with pytest.raises(PresetError, match=r"foam_memory_s.*-2"):
         load_preset("moderate_breeze", overrides=("surface.foam_memory_s=-2",))
+
+
+def test_bound_waves_key_defaults_checks_and_reaches_the_ocean():
+    """surface.bound_waves: auto (default), true or false; it reaches the synthesiser."""
+    from oceanfield.surface.synth import Ocean
+
+    assert load_preset("moderate_breeze").surface.bound_waves == "auto"
+    preset = load_preset("fresh_chop", overrides=("surface.bound_waves=false", "tile.resolution=32"))
+    assert preset.surface.bound_waves is False
+    assert Ocean.from_preset(preset).bound is None
+    preset = load_preset("fresh_chop", overrides=("surface.bound_waves=true", "tile.resolution=64"))
+    assert Ocean.from_preset(preset).bound is not None
+    with pytest.raises(PresetError, match=r"bound_waves: expected auto, true or false, got .*maybe"):
+        load_preset("moderate_breeze", overrides=("surface.bound_waves=maybe",))

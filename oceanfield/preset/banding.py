@@ -190,6 +190,7 @@ def band_stack(preset, *, fft_workers: int | None = None, foam_memory: float | N
         fold_threshold=preset.surface.fold_threshold,
         foam_memory=preset.surface.foam_memory_s if foam_memory is None else foam_memory,
         velocity="velocity" in preset.maps,
+        bound_waves=preset.surface.bound_waves,
         fft_workers=fft_workers,
     )
 

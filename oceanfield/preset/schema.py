@@ -163,6 +163,8 @@ class SurfaceSettings:
     fold_threshold: float | None
     foam_memory_s: float = 0.0
     whitecap_scale: float = 1.0
+    #: second-order bound waves: "auto" (when the sea is steep enough), True or False
+    bound_waves: str | bool = "auto"
 
 
 @dataclass(frozen=True)
@@ -764,7 +766,18 @@ def _read_surface(sec: Section) -> SurfaceSettings:
         scale = sec.fail(
             "whitecap_scale", f"`{scale:g}` has no effect with a fold_threshold set (allowed: 1, or fold_threshold null)"
         )
-    return SurfaceSettings(lateral, threshold, memory, scale)
+    bound = _read_bound_waves(sec)
+    return SurfaceSettings(lateral, threshold, memory, scale, bound)
+
+
+def _read_bound_waves(sec: Section) -> Any:
+    """``surface.bound_waves``: auto, true or false (second-order crests and troughs)."""
+    node = sec.node("bound_waves")
+    if node is None or node.value == "auto":
+        return "auto"
+    if isinstance(node.value, bool):
+        return node.value
+    return sec.fail("bound_waves", f"expected auto, true or false, got {describe(node)}")
 
 
 def _read_maps(top: Section) -> Any:

@@ -160,6 +160,26 @@ def sea_report(preset, *, build_progress=None) -> dict[str, Any]:
         "foam_surface_share": foamy,
         "fold_threshold": threshold if math.isfinite(threshold) else None,
         **banding,
+        "second_order": second_order_report(ocean, preset.surface.bound_waves),
+    }
+
+
+def second_order_report(ocean, setting) -> dict[str, Any]:
+    """Predicted skewness, crest-to-trough ratio and mean level of the ocean's sea at second
+    order (``physics.second_order``, over the tile's energetic waves), and whether its bound
+    waves are on."""
+    waves = ocean.second_order()
+    prediction = waves.prediction
+    return {
+        "setting": setting,
+        "on": ocean.bound is not None,
+        "skewness": prediction.skewness,
+        "crest_trough_ratio": prediction.crest_trough_ratio,
+        "top_tenth_crest_over_std": prediction.top_tenth_crest,
+        "mean_level_m": prediction.mean_level,
+        "harmonic_ratio": waves.harmonic_ratio,
+        "parent_waves": waves.parents,
+        "parent_variance_share": waves.parent_share,
     }
 
 
@@ -267,6 +287,22 @@ def format_sea_report(report: dict[str, Any]) -> str:
     if report.get("cox_munk_mean_square_slope") is not None:
         slope_line += f" (sun-glitter measurements, Cox & Munk 1954: {report['cox_munk_mean_square_slope']:.4f})"
     lines.append(slope_line)
+    second = report.get("second_order")
+    if second is not None:
+        from ..surface.bound import AUTO_SKEWNESS, MAX_HARMONIC_RATIO
+
+        state = "on" if second["on"] else "off"
+        reason = ""
+        if second["harmonic_ratio"] > MAX_HARMONIC_RATIO:
+            reason = (f": second order does not hold in this depth (the peak's second harmonic is "
+                      f"{second['harmonic_ratio']:.2f} of its wave, above {MAX_HARMONIC_RATIO:g})")
+        elif not second["on"] and second["skewness"] < AUTO_SKEWNESS:
+            reason = f": too gentle to matter (skewness below {AUTO_SKEWNESS:g})"
+        lines.append(
+            f"second order: skewness {second['skewness']:.3f}, mean crest / mean trough "
+            f"{second['crest_trough_ratio']:.3f}, mean level {second['mean_level_m'] * 100:+.1f} cm "
+            f"(predicted); bound waves {state} (bound_waves: {str(second['setting']).lower()}){reason}"
+        )
     return "\n".join(lines)
 
 

@@ -192,7 +192,8 @@ def probe_table(preset, ocean, probes: Sequence[ProbePoint], frames: Sequence[in
     mpu = scene.metres_per_unit
     xs = np.array([[p.x] for p in probes])
     ys = np.array([[p.y] for p in probes])
-    points = surface_at(ocean.modes(), xs, ys, times[None, :], tolerance=_tolerance(ocean))
+    # probes are few: every bound wave, so a probe reads what the maps hold
+    points = surface_at(ocean.modes(bound_share=1.0), xs, ys, times[None, :], tolerance=_tolerance(ocean))
     shape = (len(probes), len(times))
     where = np.stack([np.broadcast_to(xs, shape), np.broadcast_to(ys, shape), points.position[..., 2]], axis=-1)
     position = where @ axes.T / mpu

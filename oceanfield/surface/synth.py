@@ -153,6 +153,11 @@ class Ocean:
         seed (see :mod:`oceanfield.surface.amplitudes`).
     velocity : bool
         Also compute the surface velocity (two more transforms a frame).
+    bound_waves : "auto", True or False
+        Add the second-order bound waves that make crests sharper than troughs
+        (``surface.bound``): "auto" adds them when the predicted skewness reaches
+        ``bound.AUTO_SKEWNESS`` and second order holds (``bound.MAX_HARMONIC_RATIO``: not
+        in water too shallow for the sea). ``ocean.bound`` holds them (None when off).
     fft_workers : int or None
         Threads for the FFTs (None: all cores).
     band : int
@@ -186,6 +191,7 @@ class Ocean:
         foam_memory: float = 0.0,
         foam_samples: int = 8,
         velocity: bool = False,
+        bound_waves: str | bool = "auto",
         fft_workers: int | None = None,
         whitecap_scale: float = 1.0,
         wave_heights: str = "as_requested",
@@ -247,6 +253,7 @@ class Ocean:
         self._slots = np.zeros(self._omega.size, dtype=np.int32)
         self._slots[used] = np.arange(1, used.size + 1, dtype=np.int32)
         self._omega_used = np.concatenate([[0.0], self._omega[used]])
+        self.bound = self._bound_waves(bound_waves)
 
     @classmethod
     def from_preset(
@@ -255,6 +262,7 @@ class Ocean:
         *,
         velocity: bool | None = None,
         foam_memory: float | None = None,
+        bound_waves: str | bool | None = None,
         fft_workers: int | None = None,
         build_progress: Callable[[int], None] | None = None,
     ) -> "Ocean":
@@ -278,6 +286,7 @@ class Ocean:
             wave_heights=preset.tile.wave_heights,
             foam_memory=preset.surface.foam_memory_s if foam_memory is None else foam_memory,
             velocity=("velocity" in preset.maps) if velocity is None else velocity,
+            bound_waves=preset.surface.bound_waves if bound_waves is None else bound_waves,
             fft_workers=fft_workers,
             build_progress=build_progress,
         )
@@ -371,6 +380,37 @@ class Ocean:
         k2 = (nx * nx + ny * ny) * self.tile.dk**2
         return (k2 >= low * low) & (k2 < high * high)
 
+    def _bound_waves(self, mode: str | bool):
+        """The second-order bound waves this ocean adds (``surface.bound``), or None."""
+        if not (mode is True or mode is False or (isinstance(mode, str) and mode == "auto")):
+            raise ValueError(f"bound_waves: {mode!r} is not allowed; allowed: 'auto', True or False")
+        self._second_order = None
+        if mode is False:
+            return None
+        from .bound import AUTO_SKEWNESS, MAX_HARMONIC_RATIO
+
+        waves = self.second_order()
+        if waves.parents == 0:
+            return None
+        gentle = waves.prediction.skewness < AUTO_SKEWNESS
+        too_shallow = waves.harmonic_ratio > MAX_HARMONIC_RATIO
+        if mode == "auto" and (gentle or too_shallow):
+            return None
+        return waves
+
+    def second_order(self):
+        """The sea's second-order bound waves on this tile (a ``surface.bound.BoundWaves``),
+        whether or not its frames add them: their parents, pair coefficients and the
+        statistics they predict. ``spectrum(rotation)`` gives their height's spectrum alone."""
+        if self._second_order is None:
+            from . import bound
+
+            self._second_order = bound.bound_waves(
+                self.sea_state, self.tile, self._h0, self._slots, self.lattice_variance,
+                lateral_factor=self.lateral_factor, wavenumber_range=self.wavenumber_range,
+            )
+        return self._second_order
+
     # -- frames ------------------------------------------------------------------------
     def new_buffer(self) -> NDArray[np.complex64]:
         """A buffer :meth:`frame` can fill in place of allocating one (four complex64 arrays)."""
@@ -413,6 +453,8 @@ class Ocean:
         rotation = np.empty(self._omega_used.shape, dtype=np.complex128)
         _kernels.rotation_kernel(self._omega_used, float(t), rotation)
         _kernels.spectra_kernel(self._h0, self._slots, rotation, self.tile.dk, self.lateral_factor, buffer)
+        if self.bound is not None:
+            self.bound.add_to(buffer, self._h0, rotation)
         # h(x) = Σ ĥ e^{ik·x}: an unnormalised inverse transform (norm="forward").
         scipy.fft.ifft2(buffer, axes=(-2, -1), norm="forward", overwrite_x=True, workers=self.fft_workers)
         _kernels.surface_kernel(buffer, self.fold_threshold, self.foam_ramp)
@@ -420,6 +462,23 @@ class Ocean:
             self._linger(float(t), buffer)
         velocity = self._velocity(rotation) if self.velocity else None
         return _fields_from_packed(float(t), buffer, velocity)
+
+    def bound_spectrum(self, t: float):
+        """Spectrum of the bound waves' height at time t, or None when this ocean adds none.
+
+        Returns ``(spectrum, (ny, nx))``: a small (M, M) complex array in FFT layout and its
+        wave indices, so that the bound height at rest position x is Σ ĥ₂ e^{i k·x} with
+        k = Δk (nx, ny). Exact sums at points, or a split of the frame into bands, add it
+        to the linear part (a band split puts each K in the band whose k it falls in).
+        """
+        from . import _kernels
+
+        if self.bound is None:
+            return None
+        _check_finite("t", t, low=-1e12)
+        rotation = np.empty(self._omega_used.shape, dtype=np.complex128)
+        _kernels.rotation_kernel(self._omega_used, float(t), rotation)
+        return self.bound.spectrum(self._h0, rotation), self.bound.wave_indices()
 
     def _linger(self, t: float, buffer: NDArray[np.complex64]) -> None:
         """Raise the frame's foam to the decayed foam of past instants (see ``foam_memory``)."""
@@ -449,6 +508,8 @@ class Ocean:
         _kernels.velocity_kernel(
             self._h0, self._slots, self._omega_used, rotation, self.tile.dk, self.lateral_factor, packed
         )
+        if self.bound is not None:
+            _add_bound_rate(packed, self.bound.rate(self._h0, rotation, self._omega_used), self.tile.resolution)
         scipy.fft.ifft2(packed, axes=(-2, -1), norm="forward", overwrite_x=True, workers=self.fft_workers)
         return np.stack([packed[0].real, packed[0].imag, packed[1].real], axis=-1)
 
@@ -479,7 +540,7 @@ class Ocean:
         ]
         return np.stack(out, axis=-1).reshape(x.shape + (3,))
 
-    def modes(self) -> "WaveModes":
+    def modes(self, *, bound_share: float = 0.99) -> "WaveModes":
         """The travelling sinusoids the frames sum, as arrays (see ``surface.modes``).
 
         Each lattice wave k that carries energy is one mode: height amplitude 2·h0(k),
@@ -488,6 +549,12 @@ class Ocean:
         (ĥ(k) and its mirror ĥ(−k) pair into one real sinusoid). Probes and floating
         bodies evaluate these sums at any point; a band or bound waves add their own modes
         here with ``WaveModes.join``.
+
+        With bound waves (``self.bound``) their modes are joined too: one per pair of
+        parents and sign, about P² of them, so by default only the largest, holding
+        ``bound_share`` of their height variance, are kept (the rest add an rms height of
+        √(1 − bound_share) of the bound waves': 10 % of it, about 0.5 % of σ, at 0.99).
+        ``bound_share=1`` gives all of them: the frames' heights exactly.
         """
         from .modes import WaveModes
 
@@ -499,7 +566,13 @@ class Ocean:
         height = 2.0 * self._h0[keep].astype(np.complex128)
         k = np.hypot(kx, ky)
         lateral = 1j * self.lateral_factor * height
-        return WaveModes(kx, ky, self._omega[q[keep]], height, lateral * kx / k, lateral * ky / k)
+        linear = WaveModes(kx, ky, self._omega[q[keep]], height, lateral * kx / k, lateral * ky / k)
+        if self.bound is None:
+            return linear
+        # the bound waves the frames add: one mode per pair of parents and sign (surface.bound)
+        if not (isinstance(bound_share, (int, float)) and 0.0 < bound_share <= 1.0):
+            raise ValueError(f"bound_share: {bound_share!r} is not allowed; allowed: a number in (0, 1]")
+        return WaveModes.join(linear, self.bound.modes(self._h0, self._omega_used, share=float(bound_share)))
 
     @property
     def amplitudes(self) -> NDArray[np.complex64]:
@@ -514,6 +587,13 @@ class Ocean:
         ny, nx = self.tile.wave_indices()
         q = np.minimum(nx * nx + ny * ny, self._omega.size - 1)
         return self._omega[q]
+
+
+def _add_bound_rate(packed: NDArray[np.complex64], rate: NDArray[np.complex128], n: int) -> None:
+    """Add the bound waves' ∂h₂/∂t (small FFT-layout spectrum) to the vertical velocity's plane."""
+    m = rate.shape[0]
+    index = np.fft.fftfreq(m, d=1.0 / m).astype(np.int64) % n
+    packed[1][np.ix_(index, index)] += rate.astype(np.complex64)
 
 
 def _bytes_text(count: float) -> str:
