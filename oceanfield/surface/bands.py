@@ -447,6 +447,12 @@ class BandStack:
             # Every field is real (its spectrum is Hermitian), so two ride in one complex
             # sum, a + ib, as the synthesiser packs its transforms.
             packed = np.stack([spectrum * (factors[a] + 1j * factors[b]) for a, b in zip(names[0::2], names[1::2])])
+            bound = ocean.bound_spectrum(t)
+            if bound is not None:  # second-order bound waves: height and slopes, no lateral part
+                lattice = np.where(keep, _on_lattice(*bound, tile.resolution), 0.0)
+                packed[0] += lattice
+                packed[1] += 1j * (1j * kx) * lattice
+                packed[2] += 1j * ky * lattice
             sums = fourier_sum(packed, tile.dk, spacing, resolution, origin, workers=ocean.fft_workers)
             for index_pair, (a, b) in enumerate(zip(names[0::2], names[1::2])):
                 total[a] += sums[index_pair].real
@@ -536,3 +542,11 @@ class BandStack:
                 worst = max(worst, float(value[quiet].max()))
             excess = max(excess, float((value - natural).max()))
         return {"max_where_decorrelated": worst, "max_excess": excess, "shifts": looked}
+
+
+def _on_lattice(small: NDArray[np.complex128], indices, n: int) -> NDArray[np.complex128]:
+    """A small FFT-layout spectrum (``Ocean.bound_spectrum``) placed on an n² lattice."""
+    ny, nx = indices
+    full = np.zeros((n, n), dtype=np.complex128)
+    full[np.ix_(ny.ravel() % n, nx.ravel() % n)] = small
+    return full

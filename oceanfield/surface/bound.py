@@ -271,7 +271,8 @@ def bound_waves(
     variance = sea_state.directional_spectrum(nx * dk, ny * dk) * dk * dk
     order = np.lexsort((nx, ny, -variance))
     cumulative = np.cumsum(variance[order])
-    count = int(np.searchsorted(cumulative, share * cumulative[-1])) + 1 if cumulative[-1] > 0 else 0
+    total = float(cumulative[-1]) if cumulative.size else 0.0
+    count = int(np.searchsorted(cumulative, share * total)) + 1 if total > 0 else 0
     count = min(count, max_parents, int(np.count_nonzero(variance > 0.0)))
     chosen = order[:count]
     # only waves whose sums and differences the tile's lattice holds (|n| < N/4)
