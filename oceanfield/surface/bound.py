@@ -43,6 +43,7 @@ from numpy.typing import NDArray
 
 from ..physics.second_order import SecondOrderStatistics, bound_wave_kernels, second_order_statistics
 from ..physics.seastate import SeaState
+from .amplitudes import cell_variance
 from .tile import Tile
 
 __all__ = [
@@ -268,7 +269,7 @@ def bound_waves(
         k_capillary = math.sqrt(_CAPILLARY_SHARE * sea_state.density * sea_state.gravity / sea_state.surface_tension)
         keep &= (nx * nx + ny * ny) * dk * dk <= k_capillary**2
     ny, nx = ny[keep], nx[keep]
-    variance = sea_state.directional_spectrum(nx * dk, ny * dk) * dk * dk
+    variance = cell_variance(sea_state, dk, ny, nx)  # each wave's expected variance, as drawn
     order = np.lexsort((nx, ny, -variance))
     cumulative = np.cumsum(variance[order])
     total = float(cumulative[-1]) if cumulative.size else 0.0
