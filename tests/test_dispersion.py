@@ -268,3 +268,10 @@ def test_check_depth_accepts_inf_and_positive():
     assert check_depth(3) == 3.0
     with pytest.raises(ValueError, match=r"^water_depth: -2"):
         check_depth(-2, "water_depth")
+
+
+def test_standard_gravity_is_the_defined_value():
+    """GRAVITY is standard gravity, 9.80665 m/s² exactly (3rd CGPM 1901; scipy.constants.g)."""
+    import scipy.constants
+
+    assert GRAVITY == scipy.constants.g == 9.80665
