@@ -160,10 +160,19 @@ def test_flipbook_of_a_banded_preset(tmp_path):
     assert frames.shape[0] == 2 and frames.shape[1] >= 384
 
 
-def test_probe_refuses_a_banded_preset_in_one_line(tmp_path, capsys):
+def test_probe_on_a_laid_out_banded_preset_reports_every_band(tmp_path, capsys):
+    """What replaced the old refusal: a probe on a laid-out stack answers, and its height
+    is the sum of every band's (each band's modes alone, summed at the probe's rest point)."""
     from oceanfield.cli import main
+    from oceanfield.preset.banding import band_stack
+    from oceanfield.surface.probes import surface_at
 
-    path = _write(tmp_path, SMALL)
-    assert main(["probe", str(path), "--at", "1,2", "--frames", "1-1"]) == 2
-    err = capsys.readouterr().err
-    assert "bands: probe, float and scene do not take a banded preset yet" in err and err.count("\n") == 1
+    path = _write(tmp_path, SMALL.replace("shortest_wave_m: 0.05", "shortest_wave_m: 2"))
+    assert main(["probe", str(path), "--at", "1,2", "--frames", "1-1", "--json"]) == 0
+    record = __import__("json").loads(capsys.readouterr().out)["records"][0]
+    stack = band_stack(load_preset(path))
+    assert len(stack.oceans) >= 2
+    rest = (record["rest_x_m"], record["rest_y_m"])
+    parts = [surface_at(o.modes(bound_share=1.0), *rest, 0.0, invert=False).displacement[2] for o in stack.oceans]
+    # float64 sums of the same modes in another grouping: roundoff only
+    assert record["height_m"] == pytest.approx(sum(parts), abs=1e-9)

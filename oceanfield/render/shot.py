@@ -8,7 +8,15 @@ atomically: a failed command leaves no partial file.
 
 Positions on the command line are in the tile's own axes and metres (x along image
 columns, y along rows), or in the scene's horizontal axes and units with
-``--scene-units``; the sea repeats with the tile, so any position within ±100 km works.
+``--scene-units``; any position within ±100 km works.
+
+A banded preset (a ``bands`` section) is summed from the modes of every band joined
+(``BandStack.modes``): each band's waves lie on its own tile's lattice, so the sum is the
+banded sea at the position asked for on the whole plane, never wrapped onto one tile. Its
+scene mesh covers the composite's extent (``composite_extent_m``; without one, band 0's
+tile) and its points are the bands' exact Fourier sums at the mesh's vertices
+(``BandStack.composite``): every wave the mesh's own grid can hold, the shorter ones left
+out rather than aliased; the material wires the ``composite_*`` maps when there are any.
 """
 
 from __future__ import annotations
@@ -171,14 +179,27 @@ def _frames_and_times(preset, frames_text: str | None) -> tuple[list[int], np.nd
 
 
 def _ocean(preset):
+    """The preset's sea: an ``Ocean`` for one tile, a ``BandStack`` for a banded preset
+    (both answer ``modes()``)."""
+    if preset.bands.active:
+        from ..preset.banding import band_stack
+
+        return band_stack(preset, foam_memory=0.0)
     from ..surface.synth import Ocean
 
-    if preset.bands.active:  # a single tile's sums would describe a sea the render does not show
-        raise ValueError(
-            "bands: probe, float and scene do not take a banded preset yet; allowed: a single-tile "
-            "preset (leave the bands section out)"
-        )
     return Ocean.from_preset(preset, velocity=False, foam_memory=0.0)
+
+
+def _banded(ocean) -> bool:
+    return hasattr(ocean, "oceans")
+
+
+def _largest_tile(ocean):
+    return ocean.largest_tile if _banded(ocean) else ocean.tile
+
+
+def _finest_spacing(ocean) -> float:
+    return ocean.finest_spacing if _banded(ocean) else ocean.tile.spacing
 
 
 def probe_table(preset, ocean, probes: Sequence[ProbePoint], frames: Sequence[int], times: np.ndarray):
@@ -219,8 +240,8 @@ def probe_table(preset, ocean, probes: Sequence[ProbePoint], frames: Sequence[in
 
 
 def _tolerance(ocean) -> float:
-    """Inversion tolerance: a hundred-millionth of the tile (7.7 µm on a 768 m tile)."""
-    return 1e-8 * ocean.tile.size
+    """Inversion tolerance: a hundred-millionth of the (widest band's) tile (7.7 µm on a 768 m tile)."""
+    return 1e-8 * _largest_tile(ocean).size
 
 
 def body_table(preset, ocean, bodies, frames: Sequence[int], times: np.ndarray):
@@ -238,7 +259,7 @@ def body_table(preset, ocean, bodies, frames: Sequence[int], times: np.ndarray):
                "orientation_w", "orientation_X", "orientation_Y", "orientation_Z", "waterplane_samples", "residual_m"]
     motions = []
     for body in bodies:
-        motion = body_motion(modes, body, times, spacing=ocean.tile.spacing)
+        motion = body_motion(modes, body, times, spacing=_finest_spacing(ocean))
         position = motion.position @ axes.T / mpu
         rotation = axes @ motion.rotation @ axes.T
         matrix = np.zeros((len(times), 4, 4))
@@ -334,64 +355,92 @@ def run_float_command(args) -> int:
     return 0
 
 
-def _mesh_stride(preset, requested: int | None) -> int:
-    n = preset.tile.resolution
+def mesh_extent(preset, ocean) -> tuple[float, int, str]:
+    """(metres, texels, what) the scene's sea mesh spans: the tile; for a banded preset the
+    composite's extent and resolution, or without a composite band 0's tile (twice the
+    reach for a laid-out stack)."""
+    if not _banded(ocean):
+        return preset.tile.size_m, preset.tile.resolution, "tile resolution"
+    if preset.bands.composite_extent_m is not None:
+        return preset.bands.composite_extent_m, preset.bands.composite_resolution, "bands.composite_resolution"
+    tile = ocean.bands[0].tile
+    return tile.size, tile.resolution, "band 0's resolution"
+
+
+def _mesh_stride(preset, requested: int | None, texels: int | None = None, what: str = "tile resolution") -> int:
+    n = preset.tile.resolution if texels is None else texels
     if requested is None:
         stride = 1
         while n // stride > DEFAULT_MESH_RESOLUTION and n % (stride * 2) == 0:
             stride *= 2
         return stride
     if requested < 2 or requested > n or n % requested:
-        raise ValueError(f"--mesh-resolution: {requested} is not allowed; allowed: a divisor of the tile "
-                         f"resolution {n} from 2 up (e.g. {n // 4 if n % 4 == 0 else n // 2})")
+        raise ValueError(f"--mesh-resolution: {requested} is not allowed; allowed: a divisor of the "
+                         f"{what} {n} from 2 up (e.g. {n // 4 if n % 4 == 0 else n // 2})")
     return n // requested
 
 
 def sea_mesh(preset, ocean, frames: Sequence[int], times: np.ndarray, stride: int):
-    """The decimated displaced grid of each frame: every ``stride``-th texel of the maps."""
+    """The displaced grid of each frame at every ``stride``-th texel of the maps.
+
+    One tile: the maps' texels, with one row and column more so the mesh closes at the
+    far edges (they take the first row's and column's values: the tile repeats). A band
+    stack: the composite's exact sums at the vertices (:func:`mesh_extent`), every wave
+    the mesh's grid holds; the sea does not repeat, so the mesh ends at the last texel.
+    """
     from ..io.usd import SeaMesh
     from ..surface.maps import map_channels, scene_axes
 
     scene = preset.scene
-    n = preset.tile.resolution // stride
-    size = preset.tile.size_m
+    banded = _banded(ocean)
+    size, texels, _ = mesh_extent(preset, ocean)
+    n = texels // stride
     spacing = size / n
-    index = np.arange(n + 1)
-    # Rest grid in internal axes, one row and column more than the texels so the mesh
-    # closes at the far edges (they take the first row's and column's values).
-    rest = np.zeros((n + 1, n + 1, 3))
+    m = n if banded else n + 1  # vertices per side
+    index = np.arange(m)
+    rest = np.zeros((m, m, 3))
     rest[..., 0] = index[None, :] * spacing
     rest[..., 1] = index[:, None] * spacing
     rest_scene = rest @ scene_axes(scene.up_axis).T / scene.metres_per_unit
-    points = np.empty((len(frames), (n + 1) ** 2, 3), dtype=np.float32)
+    points = np.empty((len(frames), m * m, 3), dtype=np.float32)
     normals = np.empty_like(points)
     for f, t in enumerate(times):
-        fields = ocean.frame(float(t))
+        fields = ocean.composite(float(t), extent=size, resolution=n) if banded else ocean.frame(float(t))
+        step = 1 if banded else stride
         for name, target in (("displacement", points), ("normal", normals)):
             channels = map_channels(fields, name, metres_per_unit=scene.metres_per_unit, up_axis=scene.up_axis)
             # map channels are in file row order (y = 0 last): back to the tile's rows first
-            vector = np.stack([channels[c][::-1][::stride, ::stride] for c in ("R", "G", "B")], axis=-1)
-            vector = np.pad(vector, ((0, 1), (0, 1), (0, 0)), mode="wrap")
+            vector = np.stack([channels[c][::-1][::step, ::step] for c in ("R", "G", "B")], axis=-1)
+            if not banded:
+                vector = np.pad(vector, ((0, 1), (0, 1), (0, 0)), mode="wrap")
             target[f] = (vector + (rest_scene if name == "displacement" else 0.0)).reshape(-1, 3)
-    quad = (index[:-1, None] * (n + 1) + index[None, :-1]).ravel()
+    quad = (index[:-1, None] * m + index[None, :-1]).ravel()
     # Counter-clockwise seen from above: +x, then +y (internal axes; the scene map is a rotation).
-    indices = np.stack([quad, quad + 1, quad + n + 2, quad + n + 1], axis=-1).ravel().astype(np.int32)
-    texels = preset.tile.resolution
+    indices = np.stack([quad, quad + 1, quad + m + 1, quad + m], axis=-1).ravel().astype(np.int32)
     u = rest[..., 0] / size + 0.5 / texels
     v = rest[..., 1] / size + 0.5 / texels  # the maps put y = 0 in the image's bottom row
     st = np.stack([u, v], axis=-1).reshape(-1, 2).astype(np.float32)
-    return SeaMesh(np.full(n * n, 4, dtype=np.int32), indices, st, points, normals)
+    return SeaMesh(np.full((m - 1) ** 2, 4, dtype=np.int32), indices, st, points, normals)
 
 
 def _texture_files(preset, maps_root: Path, stage_path: Path, frames: Sequence[int]) -> tuple[dict, int]:
-    """Each map's file per frame, relative to the stage's folder; and how many are missing."""
+    """Each map's file per frame, relative to the stage's folder; and how many are missing.
+
+    A banded preset's material takes its ``composite_*`` maps (the mesh's extent); without
+    a composite it has no textures (each band's maps span a tile of their own)."""
     files: dict[str, list[str]] = {}
     missing = 0
     base = stage_path.resolve().parent
-    for name in preset.maps:
+    if preset.bands.active:
+        from ..preset.banding import band_map_names
+
+        names = [(file_name, name) for file_name, band, name in band_map_names(preset) if band is None]
+    else:
+        names = [(name, name) for name in preset.maps]
+    for file_name, name in names:
         paths = []
         for frame in frames:
-            target = (maps_root / preset.output.relative_path(preset.name, name, frame)).resolve()
+            target = (maps_root / preset.output.relative_path(preset.name, file_name, frame)).resolve()
             missing += not target.is_file()
             relative = Path(os.path.relpath(target, base)).as_posix()
             paths.append(relative if relative.startswith("../") else f"./{relative}")
@@ -425,7 +474,9 @@ def run_scene_command(args) -> int:
     bodies = [parse_body(text, i + 1, scene) for i, text in enumerate(args.body)]
     _unique_names("--at", [p.name for p in probes])
     _unique_names("--body", [b.name for b in bodies])
-    stride = _mesh_stride(preset, args.mesh_resolution)
+    ocean = _ocean(preset)
+    extent, texels, what = mesh_extent(preset, ocean)
+    stride = _mesh_stride(preset, args.mesh_resolution, texels, what)
     frames, times = _frames_and_times(preset, args.frames)
     maps_root = Path(args.maps) if args.maps else Path("renders")
     if args.render_maps:
@@ -437,7 +488,6 @@ def run_scene_command(args) -> int:
         print(summary.line(), file=sys.stderr)
         if not summary.ok:
             raise ValueError(f"--render-maps: {len(summary.failed)} frames failed to render; the stage was not written")
-    ocean = _ocean(preset)
     mesh = sea_mesh(preset, ocean, frames, times, stride)
     probe_positions = {}
     if probes:
@@ -449,15 +499,21 @@ def run_scene_command(args) -> int:
                 notes={k: v for k, v in _TEXTURE_NOTES.items() if k in textures})
     from .. import __version__
 
-    n = preset.tile.resolution // stride
+    n = texels // stride
+    quads = n - 1 if preset.bands.active else n
+    over = (f"{len(ocean.bands)} bands' exact sums over {extent:g} m" if preset.bands.active
+            else f"a {extent:g} m tile")
     path = write_stage(
         out, metres_per_unit=preset.scene.metres_per_unit, up_axis=preset.scene.up_axis, fps=preset.time.fps,
         frames=frames, mesh=mesh, look=look, probes=probe_positions, bodies=body_transforms,
         comment=f"oceanfield {__version__}: preset {preset.name}, frames {frames[0]}-{frames[-1]}, "
-                f"sea mesh {n}x{n} quads over a {preset.tile.size_m:g} m tile",
+                f"sea mesh {quads}x{quads} quads, {over}",
     )
-    print(f"scene written to {path}: {len(frames)} frames, a {n}x{n} sea mesh, "
+    print(f"scene written to {path}: {len(frames)} frames, a {quads}x{quads} sea mesh, "
           f"{len(probes)} probes, {len(bodies)} bodies", file=sys.stderr)
+    if preset.bands.active and not textures:
+        print("oceanfield: note: the material has no textures: a banded preset wires its composite maps, "
+              "and this one has none (set bands.composite_extent_m)", file=sys.stderr)
     if missing:
         print(f"oceanfield: warning: the material refers to {missing} map files not rendered yet under "
               f"{maps_root}; render them with `oceanfield render {args.preset} --frames "

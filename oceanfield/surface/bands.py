@@ -416,6 +416,30 @@ class BandStack:
                     numba.set_num_threads(threads)
         return out
 
+    def modes(self, *, bound_share: float = 0.99):
+        """The travelling sinusoids of the whole stack: every band's ``Ocean.modes`` joined.
+
+        Each band's wave vectors lie on its own tile's lattice, so the joined set is not
+        periodic on any one tile: Re Σ c·e^{i(k·x − ωt)} over it is the banded sea at any
+        (x, y) in metres on the whole plane, with no wrapping onto a tile. The bands carry
+        disjoint wavenumber ranges, so no wave is counted twice; at a point of a
+        :meth:`composite` grid fine enough to hold every band's waves the sums equal the
+        composite's fields. ``bound_share`` is passed to every band (see ``Ocean.modes``).
+        """
+        from .modes import WaveModes
+
+        return WaveModes.join(*(ocean.modes(bound_share=bound_share) for ocean in self.oceans))
+
+    @property
+    def largest_tile(self) -> Tile:
+        """The widest band's tile (band 0's for a laid-out stack)."""
+        return max((band.tile for band in self.bands), key=lambda tile: tile.size)
+
+    @property
+    def finest_spacing(self) -> float:
+        """The smallest texel spacing of any band, in metres."""
+        return min(band.tile.spacing for band in self.bands)
+
     def moments(self) -> list[tuple[float, float]]:
         """Each band's (variance m², mean-square slope) in expectation (:func:`band_moments`)."""
         return [band_moments(self.sea_state, band) for band in self.bands]
