@@ -77,7 +77,7 @@ def _check_position(option: str, text: str, x: float, y: float) -> None:
     if abs(x) > MAX_DISTANCE_M or abs(y) > MAX_DISTANCE_M:
         raise ValueError(
             f"{option}: {text!r} is {max(abs(x), abs(y)):.6g} m from the tile's origin; allowed: within "
-            f"±{MAX_DISTANCE_M:.0f} m (the sea repeats with the tile, so every spot on it is that close)"
+            f"±{MAX_DISTANCE_M:.0f} m (a single tile repeats, and a banded sea is laid out for a shot's reach)"
         )
 
 
