@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import json
 import os
+import queue
 import re
 import shutil
 import signal
@@ -142,3 +143,75 @@ def test_an_interrupt_before_rendering_is_one_line_and_status_130(tmp_path, pres
     captured = capsys.readouterr()
     assert code == 130
     assert captured.err == "oceanfield: interrupted (Ctrl-C)\n"
+
+
+
+def _signal_inside_native_code(signum: int) -> None:
+    """Deliver ``signum`` while native code calls back into Python — as numba does through
+    llvmlite while it compiles or loads a kernel — where an exception the handler raises
+    is swallowed (``Exception ignored on calling ctypes callback function``)."""
+    import ctypes
+
+    @ctypes.CFUNCTYPE(None)
+    def callback() -> None:
+        signal.raise_signal(signum)
+        for _ in range(1000):  # the handler runs here, between bytecodes of the callback
+            pass
+
+    callback()
+
+
+@pytest.mark.parametrize("signum", [signal.SIGINT, signal.SIGTERM], ids=["ctrl-c", "sigterm"])
+def test_a_signal_swallowed_inside_native_code_still_stops_the_render(tmp_path, preset_file, signum, capsys,
+                                                                       monkeypatch):
+    """On a fresh install the kernels compile while frames render; a signal landing inside
+    llvmlite's callbacks cannot raise there. The render must still stop at the next frame,
+    say so once (RenderInterrupted, the frames done recorded) and print no traceback."""
+    import oceanfield.render.job as job
+    from oceanfield.preset import load_preset
+    from oceanfield.render import plan_render, render
+
+    preset = load_preset(preset_file("swallowed", settings={"tile": {"resolution": 32},
+                                                             "time": {"last_frame": 1006}}))
+    encode = job.encode_frame
+    calls = []
+
+    def encode_then_signal(plan, frame, fields, scales):
+        calls.append(frame)
+        if len(calls) == 2:
+            _signal_inside_native_code(signum)
+        return encode(plan, frame, fields, scales)
+
+    monkeypatch.setattr(job, "encode_frame", encode_then_signal)
+    with pytest.raises(job.RenderInterrupted) as stopped:
+        render(plan_render(preset, root=tmp_path), workers=1)
+    assert stopped.value.signum == signum
+    assert stopped.value.summary.written == [1001, 1002]  # the frame in hand is finished, no more
+    assert calls == [1001, 1002]
+    assert "Exception ignored" not in capsys.readouterr().err
+
+
+def test_a_worker_told_to_stop_ends_quietly_whatever_native_code_then_raises(monkeypatch):
+    """A stop cut short inside native code can leave it failing its own way (numba: "no
+    compiled object yet"); once the worker was told to stop, that failure is the stop."""
+    import oceanfield.render.job as job
+
+    def failing(*args, **kwargs):
+        job._STOP_REQUESTED.set()
+        raise RuntimeError("no compiled object yet")
+
+    monkeypatch.setattr(job, "_render_frames", failing)
+    monkeypatch.setattr(job.signal, "signal", lambda *args: None)  # leave this process's handlers alone
+    monkeypatch.setattr(job.sys, "unraisablehook", job.sys.unraisablehook)
+    try:
+        job._process_worker(None, [], 1, False, queue.Queue())  # returns quietly
+        job._STOP_REQUESTED.clear()
+
+        def broken(*args, **kwargs):
+            raise RuntimeError("a real failure")
+
+        monkeypatch.setattr(job, "_render_frames", broken)
+        with pytest.raises(RuntimeError, match="a real failure"):
+            job._process_worker(None, [], 1, False, queue.Queue())
+    finally:
+        job._STOP_REQUESTED.clear()

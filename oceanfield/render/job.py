@@ -170,9 +170,29 @@ class _WorkerStopped(Exception):
     """A local worker process was told to stop (SIGTERM from the render that started it)."""
 
 
+#: Set in a local worker once its render told it to stop (see :func:`_stop_worker`).
+_STOP_REQUESTED = threading.Event()
+
+
 def _stop_worker(signum, frame) -> None:  # noqa: ARG001 - a signal handler's signature
+    """SIGTERM in a local worker: stop now, or at the next frame where now is not possible.
+
+    The exception stops the worker wherever Python runs; but a signal that lands while
+    native code calls back into Python (numba compiling or loading a kernel through
+    llvmlite) raises inside that callback, where the exception is swallowed. The flag then
+    stops the worker before its next frame, and :func:`_quiet_swallowed_stop` keeps the
+    swallowed exception from printing a traceback.
+    """
     signal.signal(signal.SIGTERM, signal.SIG_IGN)  # once is enough: finish cleaning up
+    _STOP_REQUESTED.set()
     raise _WorkerStopped
+
+
+def _quiet_swallowed_stop(unraisable) -> None:
+    """``sys.unraisablehook`` of a local worker: a swallowed stop is expected, not an error."""
+    if isinstance(unraisable.exc_value, _WorkerStopped):
+        return
+    sys.__unraisablehook__(unraisable)
 
 
 def _process_worker(plan: RenderPlan, frames: list[int], threads: int, overwrite: bool, events) -> None:
@@ -184,13 +204,19 @@ def _process_worker(plan: RenderPlan, frames: list[int], threads: int, overwrite
     goes away (a killed render must not leave workers writing on behind its back).
     """
     signal.signal(signal.SIGINT, signal.SIG_IGN)
+    sys.unraisablehook = _quiet_swallowed_stop
     signal.signal(signal.SIGTERM, _stop_worker)
     parent = os.getppid()
     try:
         _render_frames(plan, frames, threads=threads, overwrite=overwrite, report=events.put,
-                       should_stop=lambda: os.getppid() != parent)
+                       should_stop=lambda: _STOP_REQUESTED.is_set() or os.getppid() != parent)
     except _WorkerStopped:
         pass
+    except Exception:
+        # A stop that landed inside native code can leave it failing in its own way (numba
+        # whose kernel compilation was cut short); once told to stop, that is the stop.
+        if not _STOP_REQUESTED.is_set():
+            raise
 
 
 def _dask_frames(plan: RenderPlan, frames: list[int], threads: int, overwrite: bool,
@@ -233,22 +259,32 @@ class RenderInterrupted(KeyboardInterrupt):
 def _signals_interrupt():
     """SIGINT and SIGTERM raise :class:`RenderInterrupted` once; later ones are ignored
     while the render stops. Outside the main thread signals cannot be caught: no change."""
-    if threading.current_thread() is not threading.main_thread():
-        yield
-        return
     received: list[int] = []
+    if threading.current_thread() is not threading.main_thread():
+        yield received
+        return
 
     def handler(signum, frame) -> None:  # noqa: ARG001 - a signal handler's signature
         if not received:
             received.append(signum)
             raise RenderInterrupted(signum)
 
+    def quiet(unraisable) -> None:
+        # A signal that lands while native code calls back into Python (numba loading a
+        # kernel through llvmlite) raises inside that callback, where it is swallowed: the
+        # render then stops at its next frame (``received``), without this traceback.
+        if not isinstance(unraisable.exc_value, RenderInterrupted):
+            hook(unraisable)
+
+    hook = sys.unraisablehook
+    sys.unraisablehook = quiet
     previous = {number: signal.signal(number, handler) for number in (signal.SIGINT, signal.SIGTERM)}
     try:
-        yield
+        yield received
     finally:
         for number, old in previous.items():
             signal.signal(number, old)
+        sys.unraisablehook = hook
 
 
 @contextmanager
@@ -308,7 +344,7 @@ def render(plan: RenderPlan, *, workers: int | None = None, scheduler: str | Any
     if not plan.frames:
         return summary
     interrupted: RenderInterrupted | None = None
-    with _signals_interrupt():
+    with _signals_interrupt() as received:
         try:
             # Reach the scheduler before anything is created, so a wrong address writes nothing.
             client, own_client = _connect(scheduler) if scheduler is not None else (None, False)
@@ -317,14 +353,23 @@ def render(plan: RenderPlan, *, workers: int | None = None, scheduler: str | Any
                 if removed and announce is not None:
                     announce(removed)
                 _update_manifest(plan, [])  # claim the folder at once: a killed first run still leaves it
-                _run(plan, summary, client, count, cores, overwrite, progress, build_progress)
+                _run(plan, summary, client, count, cores, overwrite, progress, build_progress,
+                     stop=lambda: bool(received))
+                if received:  # an interrupt swallowed where it landed: the frames stopped, say so
+                    raise RenderInterrupted(received[0])
             finally:
                 if own_client:
                     client.close()
         except RenderInterrupted as error:
             interrupted = error
-        except KeyboardInterrupt:  # raised by a handler other than ours (not the main thread)
-            interrupted = RenderInterrupted(signal.SIGINT)
+        except KeyboardInterrupt:  # another handler's (not the main thread), or a swallowed one of ours
+            interrupted = RenderInterrupted(received[0] if received else signal.SIGINT)
+        except Exception:
+            if not received:
+                raise
+            # the signal landed inside native code, which then failed in its own way
+            # (numba whose kernel compilation was cut short): that failure is the interrupt
+            interrupted = RenderInterrupted(received[0])
         finally:
             _OCEANS.clear()  # the render is over: do not keep its Ocean (12 bytes a texel)
         summary.written.sort()
@@ -375,7 +420,8 @@ def default_workers(plan: RenderPlan, *, cores: int | None = None, memory: int |
 
 def _run(plan: RenderPlan, summary: RenderSummary, client, count: int, cores: int, overwrite: bool,
          progress: Callable[[FrameResult], None] | None,
-         build_progress: Callable[[int], None] | None = None) -> None:
+         build_progress: Callable[[int], None] | None = None, *,
+         stop: Callable[[], bool] | None = None) -> None:
     lock = threading.Lock()
 
     def record(result: FrameResult) -> None:
@@ -396,14 +442,15 @@ def _run(plan: RenderPlan, summary: RenderSummary, client, count: int, cores: in
     threads = max(1, cores // count)
     if count == 1:
         _render_frames(plan, plan.frames, threads=threads, overwrite=overwrite, report=record,
-                       build_progress=build_progress)
+                       build_progress=build_progress, should_stop=stop)
     else:
-        _render_on_processes(plan, count, threads, overwrite, record, build_progress)
+        _render_on_processes(plan, count, threads, overwrite, record, build_progress, stop=stop)
 
 
 def _render_on_processes(plan: RenderPlan, count: int, threads: int, overwrite: bool,
                          record: Callable[[FrameResult], None],
-                         build_progress: Callable[[int], None] | None = None) -> None:
+                         build_progress: Callable[[int], None] | None = None, *,
+                         stop: Callable[[], bool] | None = None) -> None:
     """``count`` workers, each with a contiguous share of the frames: this process renders
     the first share itself (it has already paid for its imports and compiled kernels) and
     spawns a long-lived process for each other share; their results arrive through a
@@ -443,7 +490,9 @@ def _render_on_processes(plan: RenderPlan, count: int, threads: int, overwrite: 
                 worker.start()
         collector.start()
         _render_frames(plan, own, threads=threads, overwrite=overwrite, report=record,
-                       build_progress=build_progress)
+                       build_progress=build_progress, should_stop=stop)
+        if stop is not None and stop():  # interrupted where the signal could not raise: stop the workers
+            raise KeyboardInterrupt
         collector.join()
     except BaseException:  # interrupted or failed here: stop the others too
         for worker in workers:
