@@ -382,7 +382,7 @@ class BandStack:
         first = self.oceans[0]
         if first.whitecap_coverage is None:
             return
-        cov = sum(whitecaps.jacobian_covariance(o.amplitudes, o.tile.dk, o.lateral_factor) for o in self.oceans)
+        cov = sum(ocean.jacobian_covariance for ocean in self.oceans)  # each computed once, by its Ocean
         threshold = whitecaps.fold_threshold_for_coverage(cov, first.whitecap_coverage, first.foam_ramp)
         for ocean in self.oceans:
             ocean.fold_threshold = threshold

@@ -361,11 +361,12 @@ class Ocean:
     def _foam_threshold(self, explicit: float | None) -> tuple[float | None, float]:
         """(target whitecap share or None, fold threshold): an explicit threshold as given,
         else the one that foams the wind's whitecap coverage (see ``whitecaps``)."""
+        self.jacobian_covariance = None  # kept when computed: a band stack sums its bands'
         if explicit is not None:
             return None, float(explicit)
         share = min(sea_whitecap_coverage(self.sea_state) * self.whitecap_scale, 1.0)
-        cov = whitecaps.jacobian_covariance(self._h0, self.tile.dk, self.lateral_factor)
-        return share, whitecaps.fold_threshold_for_coverage(cov, share, self.foam_ramp)
+        self.jacobian_covariance = whitecaps.jacobian_covariance(self._h0, self.tile.dk, self.lateral_factor)
+        return share, whitecaps.fold_threshold_for_coverage(self.jacobian_covariance, share, self.foam_ramp)
 
     @property
     def realised_hs(self) -> float:
