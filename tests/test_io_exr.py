@@ -471,3 +471,27 @@ def test_failed_write_keeps_the_previous_frame(tmp_path, monkeypatch):
     monkeypatch.undo()
     np.testing.assert_array_equal(read_exr(path)[0]["Y"], np.ones((4, 4), np.float32))
     assert not any(is_temporary(p) for p in tmp_path.iterdir())
+
+
+@pytest.mark.parametrize("negate", [False, True])
+@pytest.mark.parametrize("divisor", [1.0, 0.01, 0.3048])
+def test_strided_views_convert_like_numpy(negate, divisor):
+    """A strided float32 view with a sign and a divisor gives exactly the halves (and floats)
+    of numpy's own arithmetic: −x rounds to −(x rounded) (IEEE 754 round to nearest even is
+    symmetric), and the division is float32's."""
+    rng = np.random.default_rng(5)
+    packed = (rng.normal(0, 3, (33, 40)) + 1j * rng.normal(0, 3, (33, 40))).astype(np.complex64)
+    packed[0, :4] = [0.0, -0.0, 6.1e-5 + 1j * 1e-8, 65519.0 * 0.01]
+    view = packed.imag[::-1]  # the kind of view a render hands over
+    expected = np.divide(-view if negate else view, divisor, dtype=np.float32)
+    for precision, dtype in (("half", np.float16), ("float", np.float32)):
+        got = to_pixels("R", view, precision, negate=negate, divisor=divisor)
+        assert got.dtype == dtype and got.flags.c_contiguous
+        np.testing.assert_array_equal(got.view(np.uint16 if dtype == np.float16 else np.uint32),
+                                      expected.astype(dtype).view(np.uint16 if dtype == np.float16 else np.uint32))
+    np.testing.assert_array_equal(view, packed.imag[::-1])  # the source is left alone
+
+
+def test_negated_overflow_is_refused():
+    with pytest.raises(ValueError, match=r"channel 'B': value 70000 exceeds"):
+        to_pixels("B", np.array([[1.0, 70000.0]], np.float32), "half", negate=True)

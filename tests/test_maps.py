@@ -8,7 +8,7 @@ import numpy as np
 import pytest
 
 from oceanfield.surface.fields import Fields
-from oceanfield.surface.maps import MAPS, layered_channels, map_channels
+from oceanfield.surface.maps import MAPS, layered_channels, map_channels, map_sources
 
 #: float32 division by metres_per_unit is correctly rounded: relative error ≤ 2**-24, with
 #: room for the reciprocal's own rounding.
@@ -189,3 +189,20 @@ def test_velocity_requested_without_velocity_field():
 def test_layered_bad_names(names, message):
     with pytest.raises(ValueError, match=message):
         layered_channels(_fields(), names)
+
+
+@pytest.mark.parametrize("up_axis", ["y", "z"])
+@pytest.mark.parametrize("metres_per_unit", [1.0, 0.01])
+@pytest.mark.parametrize("name", MAPS)
+def test_sources_materialise_to_the_channels(name, metres_per_unit, up_axis):
+    """map_sources are views (no copy) that give map_channels' arrays bit for bit once negated
+    and divided in float32 as documented."""
+    fields = _fields(n=6)
+    channels = map_channels(fields, name, metres_per_unit=metres_per_unit, up_axis=up_axis)
+    sources = map_sources(fields, name, metres_per_unit=metres_per_unit, up_axis=up_axis)
+    assert list(sources) == list(channels)
+    for channel, source in sources.items():
+        assert source.array.base is not None  # a view into the frame
+        value = -source.array if source.negate else source.array
+        made = np.divide(value, source.divisor, dtype=np.float32) if source.divisor != 1.0 else value
+        np.testing.assert_array_equal(np.asarray(made, np.float32).view(np.uint32), channels[channel].view(np.uint32))

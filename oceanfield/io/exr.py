@@ -93,8 +93,6 @@ PRECISIONS: tuple[str, ...] = tuple(_PIXEL_DTYPES)
 
 #: Largest finite half-float value (IEEE 754 binary16).
 _HALF_MAX = float(np.finfo(np.float16).max)
-#: Smallest magnitude that rounds to infinity in binary16: 65504 + half its last step (32).
-_HALF_OVERFLOW = _HALF_MAX + 16.0
 
 #: Header attributes describing the image layout; the writer sets them, the reader omits them.
 _LAYOUT_ATTRIBUTES = frozenset({
@@ -379,24 +377,32 @@ def _check_precision(what: str, value: object) -> None:
         raise ValueError(f"{what}: got {value!r}; expected one of {', '.join(PRECISIONS)}")
 
 
-def to_pixels(name: str, array: ArrayLike, precision: str) -> np.ndarray:
+def to_pixels(name: str, array: ArrayLike, precision: str, *, negate: bool = False,
+              divisor: float = 1.0) -> np.ndarray:
     """The C-contiguous array of the pixel type (``"half"`` or ``"float"``) a file stores.
+
+    The stored values are ``(−array if negate else array) / divisor``, divided in float32
+    for float32 input, so a caller can hand over a strided view of its data and let the
+    conversion make the only copy (a render's maps are views into the frame's buffer).
 
     Raises ValueError when a finite value does not fit in a half float (±65504).
     """
     array = np.asarray(array)
+    if divisor != 1.0:
+        array = np.divide(array, divisor, dtype=np.float32 if array.dtype == np.float32 else None)
     if precision == "float":
-        return np.ascontiguousarray(array, dtype=np.float32)
+        return np.ascontiguousarray(-array if negate else array, dtype=np.float32)
+    if array.dtype == np.float16:  # already halves (encoded earlier): nothing can overflow
+        return np.ascontiguousarray(-array if negate else array)
     with np.errstate(over="ignore", invalid="ignore"):
         half = np.ascontiguousarray(array, dtype=np.float16)
-    # Values below 65520 in magnitude round to at most 65504 (IEEE 754 binary16, round to
-    # nearest even): a float reduction over the source rules overflow out ten times faster
-    # than testing the halves (NaN falls through to the full test).
-    if array.size == 0 or float(np.max(np.abs(array))) < _HALF_OVERFLOW:
-        return half
-    infinite = np.isinf(half)
-    if infinite.any():
-        overflow = infinite & np.isfinite(array)
+    bits = half.view(np.uint16)
+    if negate:  # −x rounds to −(x rounded): flip the sign bits of the halves
+        np.bitwise_xor(bits, np.uint16(0x8000), out=bits)
+    # An exponent of all ones is infinity or NaN; only then look for finite values that
+    # overflowed (values from 65520 on round to infinity: IEEE 754 binary16, round to nearest even).
+    if bits.size and int((bits & np.uint16(0x7FFF)).max()) >= 0x7C00:
+        overflow = np.isinf(half) & np.isfinite(array)
         if overflow.any():
             peak = float(np.max(np.abs(array[overflow])))
             raise ValueError(

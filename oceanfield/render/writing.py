@@ -113,7 +113,7 @@ class FileJob:
 def encode_frame(plan: RenderPlan, frame: int, fields, png_scales: dict[str, float] | None = None) -> list[FileJob]:
     """Every file of one frame as :class:`FileJob` s: scene axes, scene units, pixel types."""
     from ..io.exr import to_pixels
-    from ..surface.maps import layered_channels, map_channels
+    from ..surface.maps import map_channels, map_sources
 
     preset = plan.preset
     output, scene = preset.output, preset.scene
@@ -124,13 +124,15 @@ def encode_frame(plan: RenderPlan, frame: int, fields, png_scales: dict[str, flo
         if banded is not None:  # band<b>_<map> or composite_<map>: that band's fields and size
             fields, name, tile_size = banded[file_name]
         if output.format == "exr":
-            if name == LAYERS_MAP:
-                channels = layered_channels(fields, preset.maps, metres_per_unit=scene.metres_per_unit,
-                                            up_axis=scene.up_axis)
-                pixels = {c: to_pixels(c, a, output.precision_for(c.split(".")[0])) for c, a in channels.items()}
-            else:
-                channels = map_channels(fields, name, metres_per_unit=scene.metres_per_unit, up_axis=scene.up_axis)
-                pixels = {c: to_pixels(c, a, output.precision_for(name)) for c, a in channels.items()}
+            # Views into the frame, converted to pixels in one pass each (no float32 copies).
+            layers = preset.maps if name == LAYERS_MAP else (name,)
+            pixels = {}
+            for layer in layers:
+                sources = map_sources(fields, layer, metres_per_unit=scene.metres_per_unit, up_axis=scene.up_axis)
+                for channel, source in sources.items():
+                    channel = f"{layer}.{channel}" if name == LAYERS_MAP else channel
+                    pixels[channel] = to_pixels(channel, source.array, output.precision_for(layer),
+                                                negate=source.negate, divisor=source.divisor)
             attributes = _attributes(plan, frame, name, tile_size)
             if banded is not None:
                 attributes[f"{ATTRIBUTE_PREFIX}band"] = file_name.split("_")[0]  # band<b> or composite

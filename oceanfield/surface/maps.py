@@ -42,13 +42,23 @@ from __future__ import annotations
 
 import math
 from collections.abc import Iterable
+from typing import NamedTuple
 
 import numpy as np
 from numpy.typing import NDArray
 
 from oceanfield.surface.fields import Fields
 
-__all__ = ["FILE_ROWS_FLIPPED", "MAPS", "UP_AXES", "map_channels", "layered_channels", "scene_axes"]
+__all__ = [
+    "FILE_ROWS_FLIPPED",
+    "MAPS",
+    "UP_AXES",
+    "ChannelSource",
+    "map_channels",
+    "map_sources",
+    "layered_channels",
+    "scene_axes",
+]
 
 #: The maps a frame can be written as.
 MAPS: tuple[str, ...] = ("displacement", "normal", "foam", "height", "velocity")
@@ -59,6 +69,9 @@ UP_AXES: tuple[str, ...] = ("y", "z")
 #: Whether file row 0 (the image's top row) holds the tile's last texel row (y = L − texel):
 #: true, so that y = 0 is the image's bottom row (see the module notes).
 FILE_ROWS_FLIPPED = True
+
+#: Scene X, Y, Z as (internal component, negated) for each up axis (module notes).
+_SCENE_COMPONENTS = {"z": ((0, False), (1, False), (2, False)), "y": ((0, False), (2, False), (1, True))}
 
 #: OpenEXR channel names of a vector map's scene X, Y, Z components.
 _VECTOR_CHANNELS = ("R", "G", "B")
@@ -110,6 +123,33 @@ def map_channels(
     """
     _check_options(metres_per_unit, up_axis)
     return _map(fields, _check_name(fields, name), float(metres_per_unit), up_axis)
+
+
+class ChannelSource(NamedTuple):
+    """Where one channel's values come from, before any copy: the file holds
+    ``(−array if negate else array) / divisor``, computed in float32."""
+
+    array: NDArray[np.float32]  # a view into the frame, rows already in file order
+    negate: bool
+    divisor: float
+
+
+def map_sources(
+    fields: Fields,
+    name: str,
+    *,
+    metres_per_unit: float = 1.0,
+    up_axis: str = "y",
+) -> dict[str, ChannelSource]:
+    """The channels of `map_channels` as views into the frame plus the sign and divisor that
+    turn them into file values, so a writer can convert in one pass without copies.
+
+    Materialising every source as ``np.divide(−a or a, divisor, dtype=float32)`` (or a
+    contiguous copy when the divisor is 1) gives exactly `map_channels`' arrays. Same
+    parameters and errors as `map_channels`.
+    """
+    _check_options(metres_per_unit, up_axis)
+    return _sources(fields, _check_name(fields, name), float(metres_per_unit), up_axis)
 
 
 def layered_channels(
@@ -182,13 +222,11 @@ def _check_name(fields: Fields, name: str) -> str:
     return name
 
 
-def _map(
-    fields: Fields, name: str, metres_per_unit: float, up_axis: str
-) -> dict[str, NDArray[np.float32]]:
+def _sources(fields: Fields, name: str, metres_per_unit: float, up_axis: str) -> dict[str, ChannelSource]:
     if name == "height":
-        return {_SCALAR_CHANNEL: _scaled(fields.height, metres_per_unit)}
+        return {_SCALAR_CHANNEL: ChannelSource(fields.height[::-1], False, metres_per_unit)}
     if name == "foam":
-        return {_SCALAR_CHANNEL: _scaled(fields.foam, 1.0)}
+        return {_SCALAR_CHANNEL: ChannelSource(fields.foam[::-1], False, 1.0)}
     if name == "displacement":
         vector = (fields.displacement_x, fields.displacement_y, fields.height)
         scale = metres_per_unit
@@ -200,11 +238,16 @@ def _map(
         velocity = fields.velocity
         vector = (velocity[..., 0], velocity[..., 1], velocity[..., 2])
         scale = metres_per_unit
-    scene = _to_scene_axes(*vector, up_axis=up_axis)
     return {
-        channel: _scaled(component, scale)
-        for channel, component in zip(_VECTOR_CHANNELS, scene)
+        channel: ChannelSource(vector[index][::-1], negate, scale)
+        for channel, (index, negate) in zip(_VECTOR_CHANNELS, _SCENE_COMPONENTS[up_axis])
     }
+
+
+def _map(
+    fields: Fields, name: str, metres_per_unit: float, up_axis: str
+) -> dict[str, NDArray[np.float32]]:
+    return {channel: _materialised(source) for channel, source in _sources(fields, name, metres_per_unit, up_axis).items()}
 
 
 def scene_axes(up_axis: str) -> NDArray[np.float64]:
@@ -222,14 +265,13 @@ def _to_scene_axes(
     x: NDArray[np.float32], y: NDArray[np.float32], z: NDArray[np.float32], *, up_axis: str
 ) -> tuple[NDArray[np.float32], NDArray[np.float32], NDArray[np.float32]]:
     """Scene (X, Y, Z) of an internal vector (x, y, z); both frames right-handed."""
-    if up_axis == "z":
-        return x, y, z
-    return x, z, -y
+    vector = (x, y, z)
+    return tuple(-vector[i] if negate else vector[i] for i, negate in _SCENE_COMPONENTS[up_axis])
 
 
-def _scaled(component: NDArray[np.float32], metres_per_unit: float) -> NDArray[np.float32]:
-    """One C-contiguous float32 channel in file row order (y = 0 last), in scene units."""
-    component = component[::-1]  # file rows: the tile's last row first (module notes)
-    if metres_per_unit != 1.0:
-        return np.divide(component, metres_per_unit, dtype=np.float32)
+def _materialised(source: ChannelSource) -> NDArray[np.float32]:
+    """One C-contiguous float32 channel in file row order, in scene units."""
+    component = -source.array if source.negate else source.array
+    if source.divisor != 1.0:
+        return np.divide(component, source.divisor, dtype=np.float32)
     return np.ascontiguousarray(component, dtype=np.float32)
