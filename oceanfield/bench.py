@@ -265,6 +265,41 @@ def render_benchmark(resolution: int, frames: int, cores: int, *, cold: bool = T
     }
 
 
+#: Frames of each default-workers render, by resolution: a few seconds of work each.
+_WORKERS_FRAMES = {256: 96, 512: 48, 1024: 24, 2048: 8}
+
+
+def workers_benchmark(resolution: int, cores: int, *, frames: int | None = None, tries: int = 2) -> dict[str, object]:
+    """The same render with 1 … ``cores`` worker processes, and the count chosen by default.
+
+    Each count renders ``frames`` frames of ``resolution``² (as a user runs it, a fresh
+    process) ``tries`` times, interleaved so drift in machine load hits every count alike;
+    its best time counts. Returns the times by count, the default count and how much slower
+    the default is than the best (1.0 when it is the best).
+    """
+    import shutil
+    import tempfile
+
+    from .preset.schema import load_preset
+    from .render.job import default_workers, plan_render
+
+    frames = frames or _WORKERS_FRAMES.get(resolution, 16)
+    preset = load_preset("moderate_breeze", overrides=(*_RENDER_OVERRIDES, f"tile.resolution={resolution}",
+                                                       f"time.last_frame={1000 + frames}"))
+    root = Path(tempfile.mkdtemp(prefix="oceanfield-bench-"))
+    try:
+        chosen = default_workers(plan_render(preset, root=root), cores=cores)
+        times: dict[int, float] = {}
+        for _ in range(tries):
+            for count in range(1, cores + 1):
+                seconds = _timed_run(_render_command(root / f"w{count}", resolution, frames, "--workers", str(count)))
+                times[count] = min(times.get(count, math.inf), seconds)
+    finally:
+        shutil.rmtree(root, ignore_errors=True)
+    best = min(times.values())
+    return {"frames": frames, "times": times, "default": chosen, "default_over_best": times[chosen] / best}
+
+
 def analyzer_benchmark(resolution: int, frames: int, workers: int) -> dict[str, float]:
     """Time the analyzer streaming ``frames`` height frames of ``resolution``² and measuring them.
 
@@ -295,6 +330,9 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--render-frames", type=int, default=48, help="frames of the end-to-end render (0 = skip)")
     parser.add_argument("--render-size", type=int, default=1024, help="resolution of the end-to-end render")
     parser.add_argument("--skip-cold", action="store_true", help="skip the cold start (it compiles every kernel)")
+    parser.add_argument("--workers-sizes", default="512,1024,2048",
+                        help="resolutions at which renders with 1 … cores workers are timed against the "
+                             "default count (empty = skip)")
     parser.add_argument("--analyze-frames", type=int, default=240, help="frames the analyzer streams (0 = skip)")
     parser.add_argument("--analyze-size", type=int, default=512, help="resolution of the analyzed frames")
     parser.add_argument("--bands-reach", type=float, default=2000.0, help="reach in metres of the band stack (0 = skip)")
@@ -347,6 +385,16 @@ def main(argv: list[str] | None = None) -> int:
             print(f"  cold (empty kernel cache, as after install) {row['cold_one_frame_job_s']:.2f} s: "
                   f"{row['cold_one_frame_job_s'] - row['one_frame_job_s']:.2f} s of kernel compilation "
                   "(`oceanfield compile` pays it once per farm image)")
+    workers_sizes = [int(s) for s in args.workers_sizes.split(",") if s]
+    if workers_sizes:
+        print(f"\nDefault workers: renders with 1 … {args.workers} worker processes, best of two each, "
+              "as a user runs them")
+        print(f"{'N':>6} {'frames':>7} {'seconds by workers':>28} {'default':>8} {'default/best':>13}")
+        for n in workers_sizes:
+            row = workers_benchmark(n, args.workers)
+            times = "  ".join(f"{count}: {seconds:.2f}" for count, seconds in row["times"].items())
+            print(f"{n:>6} {row['frames']:>7} {times:>28} {row['default']:>8} {row['default_over_best']:>13.3f}")
+        print("Target: default/best <= 1.05.")
     if args.analyze_frames > 0:
         row = analyzer_benchmark(args.analyze_size, args.analyze_frames, args.workers)
         print(f"\nAnalyzer: {args.analyze_frames} frames of {args.analyze_size}² heights (in memory)")

@@ -13,9 +13,11 @@ from __future__ import annotations
 
 import errno
 import math
+import os
 import queue
 import threading
 import time
+from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any, Callable, Iterable
@@ -162,21 +164,49 @@ def _banded_fields(plan: RenderPlan, frame_fields) -> dict[str, tuple[Any, str, 
 
 
 def write_jobs(jobs: Iterable[FileJob]) -> list[Path]:
-    """Write encoded files, each atomically; returns the paths written."""
+    """Write encoded files, each atomically and all at once; returns the paths written.
+
+    A frame's files go out on threads of their own: the file libraries release Python's
+    lock, so one file's serial steps (opening, syncing, renaming, checking) overlap the
+    others' compression (1024², three ZIP half files on 2 cores: 78 ms against 87 ms one
+    after another). On failure every other file is still finished or cleaned up (each is
+    atomic) and the first failure, in the order given, is raised.
+    """
+    jobs = list(jobs)
+    if len(jobs) <= 1:
+        return [_write_job(job) for job in jobs]
+    futures = [_file_threads().submit(_write_job, job) for job in jobs]
+    errors = [future.exception() for future in futures]
+    for error in errors:
+        if error is not None:
+            raise error
+    return [future.result() for future in futures]
+
+
+def _write_job(job: FileJob) -> Path:
     from ..io.exr import write_exr
     from ..io.png import write_png16
 
-    written = []
-    for job in jobs:
-        job.path.parent.mkdir(parents=True, exist_ok=True)
-        if job.kind == "exr":
-            precision = {c: ("half" if a.dtype == np.float16 else "float") for c, a in job.channels.items()}
-            write_exr(job.path, job.channels, precision=precision, compression=job.compression,
-                      attributes=job.attributes)
-        else:
-            write_png16(job.path, job.channels[""], value_range=job.value_range)
-        written.append(job.path)
-    return written
+    job.path.parent.mkdir(parents=True, exist_ok=True)
+    if job.kind == "exr":
+        precision = {c: ("half" if a.dtype == np.float16 else "float") for c, a in job.channels.items()}
+        write_exr(job.path, job.channels, precision=precision, compression=job.compression,
+                  attributes=job.attributes)
+    else:
+        write_png16(job.path, job.channels[""], value_range=job.value_range)
+    return job.path
+
+
+_FILE_THREADS: list[ThreadPoolExecutor] = []
+if hasattr(os, "register_at_fork"):  # a forked child has none of its parent's threads
+    os.register_at_fork(after_in_child=_FILE_THREADS.clear)
+
+
+def _file_threads() -> ThreadPoolExecutor:
+    """The process's file-writing threads (made on first use; a frame has a handful of files)."""
+    if not _FILE_THREADS:
+        _FILE_THREADS.append(ThreadPoolExecutor(max_workers=4, thread_name_prefix="oceanfield-file"))
+    return _FILE_THREADS[0]
 
 
 def render_frame_files(plan: RenderPlan, frame: int, fields, png_scales: dict[str, float] | None = None) -> list[Path]:
