@@ -34,18 +34,18 @@ __all__ = [
 ]
 
 
-@numba.njit(cache=True, fastmath=False)
+@numba.njit(cache=True, fastmath=False, nogil=True)
 def bound_spectrum_kernel(h0, slot, rotation, pny, pnx, k_sum, k_diff, mean, out):  # pragma: no cover
     _pair_sum(h0, slot, rotation, rotation.real * 0.0, False, pny, pnx, k_sum, k_diff, mean, out)
 
 
-@numba.njit(cache=True, fastmath=False)
+@numba.njit(cache=True, fastmath=False, nogil=True)
 def bound_rate_kernel(h0, slot, rotation, omega, pny, pnx, k_sum, k_diff, out):  # pragma: no cover
     # ∂ĥ₂/∂t: each pair's term times −i(ωᵢ ± ωⱼ) (its bound frequency); the mean has none.
     _pair_sum(h0, slot, rotation, omega, True, pny, pnx, k_sum, k_diff, 0.0, out)
 
 
-@numba.njit(parallel=True, cache=True, fastmath=False)
+@numba.njit(parallel=True, cache=True, fastmath=False, nogil=True)
 def _pair_sum(h0, slot, rotation, omega, rate, pny, pnx, k_sum, k_diff, mean, out):  # pragma: no cover
     m = out.shape[0]
     n = h0.shape[0]
@@ -101,7 +101,7 @@ def _pair_sum(h0, slot, rotation, omega, rate, pny, pnx, k_sum, k_diff, mean, ou
     out[0, 0] += mean
 
 
-@numba.njit(cache=True, fastmath=False)
+@numba.njit(cache=True, fastmath=False, nogil=True)
 def bound_add_kernel(spectrum, dk, packed):  # pragma: no cover - compiled
     m = spectrum.shape[0]
     n = packed.shape[1]

@@ -76,7 +76,7 @@ def _evolved(a, b, e):  # pragma: no cover - compiled
             a.imag * c - a.real * s - b.imag * c + b.real * s)
 
 
-@numba.njit(parallel=True, cache=True, fastmath=False)
+@numba.njit(parallel=True, cache=True, fastmath=False, nogil=True)
 def rotation_kernel(omega_table, t, out):  # pragma: no cover - compiled
     # e^{-iωt} once per distinct |k|² (ω depends on |k| alone): far fewer sines and cosines
     # than texels, computed with the phase in float64.
@@ -85,7 +85,7 @@ def rotation_kernel(omega_table, t, out):  # pragma: no cover - compiled
         out[q] = complex(math.cos(phase), -math.sin(phase))
 
 
-@numba.njit(parallel=True, cache=True, fastmath=False)
+@numba.njit(parallel=True, cache=True, fastmath=False, nogil=True)
 def spectra_kernel(h0, slots, rotation, dk, lateral, out):  # pragma: no cover - compiled
     n = h0.shape[0]
     half = n // 2
@@ -164,7 +164,7 @@ def spectra_kernel(h0, slots, rotation, dk, lateral, out):  # pragma: no cover -
             out[3, my, mx] = complex(fyy * hr + fxy * hi, fxy * hr - fyy * hi)
 
 
-@numba.njit(parallel=True, cache=True, fastmath=False)
+@numba.njit(parallel=True, cache=True, fastmath=False, nogil=True)
 def surface_kernel(fields, fold_threshold, foam_ramp):  # pragma: no cover - compiled
     n = fields.shape[1]
     # Row by row: compute into small row buffers, then write each plane's row on its own
@@ -211,7 +211,7 @@ def surface_kernel(fields, fold_threshold, foam_ramp):  # pragma: no cover - com
             fields[3, iy, ix] = complex(foam_row[ix], nz_row[ix])
 
 
-@numba.njit(parallel=True, cache=True, fastmath=False)
+@numba.njit(parallel=True, cache=True, fastmath=False, nogil=True)
 def velocity_kernel(h0, slots, omega_table, rotation, dk, lateral, out):  # pragma: no cover - compiled
     n = h0.shape[0]
     half = n // 2
@@ -255,7 +255,7 @@ def velocity_kernel(h0, slots, omega_table, rotation, dk, lateral, out):  # prag
             out[1, iy, ix] = complex(vr, vi)
 
 
-@numba.njit(parallel=True, cache=True, fastmath=False)
+@numba.njit(parallel=True, cache=True, fastmath=False, nogil=True)
 def jacobian_spectra_kernel(h0, slots, rotation, dk, lateral, out):  # pragma: no cover - compiled
     # The three lateral-displacement derivatives alone, packed as (∂Dx/∂x + i ∂Dy/∂y,
     # ∂Dx/∂y): what lingering foam needs from a past instant, in two transforms.
@@ -288,7 +288,7 @@ def jacobian_spectra_kernel(h0, slots, rotation, dk, lateral, out):  # pragma: n
             out[1, iy, ix] = complex(fxy * hr, fxy * hi)
 
 
-@numba.njit(parallel=True, cache=True, fastmath=False)
+@numba.njit(parallel=True, cache=True, fastmath=False, nogil=True)
 def lingering_foam_kernel(derivatives, fields, fold_threshold, foam_ramp, weight):  # pragma: no cover
     # foam = max(foam, weight · fold(J_past)) in place of the frame's foam (plane 3, real).
     n = fields.shape[1]

@@ -34,6 +34,9 @@ Rabiner, L. R., Schafer, R. W. & Rader, C. M. (1969). The chirp z-transform algo
 from __future__ import annotations
 
 import math
+import os
+import threading
+from contextlib import contextmanager
 from dataclasses import dataclass
 from typing import Sequence
 
@@ -69,6 +72,12 @@ MAX_SLOPE_SHARE = 0.15
 MAX_HEIGHT_SHARE = 0.15
 _MAX_BANDS = 1 + len(_IRRATIONAL_FACTORS)
 _SERIAL_TEXELS = 256 * 256
+#: Rough single-thread costs for ordering a frame's tasks (measured on one core, 2026):
+#: a bound-wave pair about 4 ns, a texel's packed spectra about 5 ns, a small band's whole
+#: frame about (6 + log2 texels) ns a texel. Only their order matters, not their values.
+_PAIR_NS = 4.0
+_SPECTRA_NS = 5.0
+_FRAME_NS = 6.0
 _SIMPLE_DENOMINATOR = 16
 _RATIO_MARGIN = 0.01
 _SLIVER = 1.5  # a last band spanning less than this ratio of wavenumbers joins the one before
@@ -352,6 +361,11 @@ class BandStack:
             self._bind_energetic_bands()
         if options.get("fold_threshold") is None:
             self._share_whitecaps()
+        workers = options.get("fft_workers")
+        self._workers = workers if workers is not None else (os.cpu_count() or 1)
+        self._executor = None
+        self._lock = threading.Lock()
+        self._plan()
 
     def _bind_energetic_bands(self) -> None:
         """"auto" bound waves for the bands that hold at least ``_BOUND_BAND_SHARE`` of the
@@ -395,26 +409,114 @@ class BandStack:
         """Each band's :class:`Fields` at time ``t`` (a pure function of t), filling
         ``buffers`` (from :meth:`new_buffers`) when given.
 
-        Bands under 256² texels run their kernels on one thread: each parallel kernel
-        costs a thread hand-over, which outweighs the work on a small tile (and on a busy
-        machine can cost a scheduler slice). The kernels work texel by texel, so the
-        result is the same bits either way.
+        The bands are spread over the cores rather than each over all of them: on a small
+        tile every parallel step costs a thread hand-over that outweighs its work. A frame
+        runs in two phases on ``threads`` threads (the kernels' thread count, at most the
+        ``fft_workers`` given; :meth:`_schedule` orders the work):
+
+        1. independent single-threaded tasks on a pool, largest first: each small band's
+           whole frame (under 256² texels), and each wide band's bound-wave pair sum and
+           packed spectra;
+        2. each wide band's bound waves added, transforms and surface kernel, on all threads.
+
+        Every step computes the same numbers in the same order whoever runs it, and the
+        kernels work texel by texel and the transforms line by line, so the bits are those
+        of each band's own ``Ocean.frame`` (tested).
         """
         import numba
 
-        buffers = [None] * len(self.oceans) if buffers is None else buffers
-        threads = numba.get_num_threads()
-        out = []
-        for ocean, buffer in zip(self.oceans, buffers):
-            small = ocean.tile.resolution**2 < _SERIAL_TEXELS
-            if small:
-                numba.set_num_threads(1)
-            try:
-                out.append(ocean.frame(t, buffer=buffer))
-            finally:
-                if small:
-                    numba.set_num_threads(threads)
+        from .synth import _check_finite
+
+        _check_finite("t", t, low=-1e12)
+        t = float(t)
+        buffers = [None] * len(self.oceans) if buffers is None else list(buffers)
+        if len(buffers) != len(self.oceans):
+            raise ValueError(
+                f"buffers: a list of {len(buffers)} is not allowed; allowed: one buffer per band "
+                f"({len(self.oceans)}), from new_buffers()"
+            )
+        buffers = [ocean._frame_buffer(buffer) for ocean, buffer in zip(self.oceans, buffers)]
+        threads = max(1, min(numba.get_num_threads(), self._workers))
+        with self._lock:
+            rotations, spectra = self._rotations, [None] * len(self.oceans)
+            out: list = [None] * len(self.oceans)
+
+            def small_frame(i: int) -> None:
+                ocean = self.oceans[i]
+                rotation = ocean._rotation(t, rotations[i])
+                bound = None if ocean.bound is None else ocean.bound.spectrum(ocean._h0, rotation)
+                ocean._spectra(rotation, buffers[i], bound)
+                ocean._transform(buffers[i], 1)
+                out[i] = ocean._finish(t, rotation, buffers[i])
+
+            def pairs(i: int) -> None:
+                ocean = self.oceans[i]
+                spectra[i] = ocean.bound.spectrum(ocean._h0, rotations[i])
+
+            def packed(i: int) -> None:
+                ocean = self.oceans[i]
+                ocean._spectra(rotations[i], buffers[i], None)
+
+            steps = {"frame": small_frame, "pairs": pairs, "spectra": packed}
+            for i in self._wide:  # their rotations first: the pair sums and spectra need them
+                self.oceans[i]._rotation(t, rotations[i])
+            tasks = [(steps[kind], i) for kind, i in self._schedule]
+            if threads > 1 and len(tasks) > 1:
+                pool = self._pool(threads)
+                for future in [pool.submit(_one_thread, step, i) for step, i in tasks]:
+                    future.result()
+            else:
+                with _kernel_threads(1):
+                    for step, i in tasks:
+                        step(i)
+            for i in self._wide:
+                ocean = self.oceans[i]
+                if spectra[i] is not None:
+                    from ._bound_kernels import bound_add_kernel
+
+                    bound_add_kernel(spectra[i], ocean.bound.dk, buffers[i])
+                ocean._transform(buffers[i], ocean.fft_workers)
+                out[i] = ocean._finish(t, rotations[i], buffers[i])
         return out
+
+    def _plan(self) -> None:
+        """Which bands run on all threads (``_wide``) and the pool's tasks, largest first
+        (``_schedule``: greedy longest-first keeps the threads evenly loaded), with
+        per-band rotation tables reused by every frame."""
+        wide, tasks = [], []
+        for i, ocean in enumerate(self.oceans):
+            texels = ocean.tile.resolution**2
+            pair_cost = 0.0 if ocean.bound is None else _PAIR_NS * ocean.bound.parents * (ocean.bound.parents + 1) / 2
+            if texels >= _SERIAL_TEXELS:
+                wide.append(i)
+                tasks.append((_SPECTRA_NS * texels, "spectra", i))
+                if ocean.bound is not None:
+                    tasks.append((pair_cost, "pairs", i))
+            else:
+                tasks.append((texels * (_FRAME_NS + math.log2(texels)) + pair_cost, "frame", i))
+        tasks.sort(key=lambda task: -task[0])
+        self._wide = tuple(wide)
+        self._schedule = tuple((kind, i) for _, kind, i in tasks)
+        self._rotations = [np.empty(ocean._omega_used.shape, dtype=np.complex128) for ocean in self.oceans]
+
+    def _pool(self, threads: int):
+        """The thread pool of :meth:`frames` (made again after a fork or for another size)."""
+        from concurrent.futures import ThreadPoolExecutor
+
+        key = (os.getpid(), threads)
+        if self._executor is None or self._executor[0] != key:
+            self._executor = (key, ThreadPoolExecutor(threads, thread_name_prefix="oceanfield-band"))
+        return self._executor[1]
+
+    def __getstate__(self) -> dict:
+        state = dict(self.__dict__)
+        state["_executor"] = None
+        del state["_lock"]
+        return state
+
+    def __setstate__(self, state: dict) -> None:
+        self.__dict__.update(state)
+        self._lock = threading.Lock()
 
     def modes(self, *, bound_share: float = 0.99):
         """The travelling sinusoids of the whole stack: every band's ``Ocean.modes`` joined.
@@ -590,6 +692,32 @@ class BandStack:
                 worst = max(worst, float(value[quiet].max()))
             excess = max(excess, float((value - natural).max()))
         return {"max_where_decorrelated": worst, "max_excess": excess, "shifts": looked}
+
+
+@contextmanager
+def _kernel_threads(count: int):
+    """The compiled kernels on ``count`` threads in this thread, restored after."""
+    import numba
+
+    before = numba.get_num_threads()
+    if before == count:
+        yield
+        return
+    numba.set_num_threads(count)
+    try:
+        yield
+    finally:
+        numba.set_num_threads(before)
+
+
+def _one_thread(step, index: int) -> None:
+    """A task of :meth:`BandStack.frames` on a pool thread: its kernels on that thread alone
+    (numba's thread count is per calling thread)."""
+    import numba
+
+    if numba.get_num_threads() != 1:
+        numba.set_num_threads(1)
+    step(index)
 
 
 def _on_lattice(small: NDArray[np.complex128], indices, n: int) -> NDArray[np.complex128]:

@@ -426,15 +426,22 @@ class Ocean:
         have finished with) to reuse memory instead of allocating: a render loop that does
         so avoids the page faults of fresh memory every frame.
         """
-        import scipy.fft
-
-        from . import _kernels
-
         _check_finite("t", t, low=-1e12)
+        buffer = self._frame_buffer(buffer)
+        rotation = self._rotation(float(t))
+        bound = None if self.bound is None else self.bound.spectrum(self._h0, rotation)
+        self._spectra(rotation, buffer, bound)
+        self._transform(buffer, self.fft_workers)
+        return self._finish(float(t), rotation, buffer)
+
+    # The steps of a frame, in order. A band stack (``surface.bands``) runs them itself to
+    # spread its bands over the cores; the bits are the same whoever calls them.
+    def _frame_buffer(self, buffer: NDArray[np.complex64] | None) -> NDArray[np.complex64]:
+        """``buffer`` checked for :meth:`frame` (a new one for None)."""
         n = self.tile.resolution
         if buffer is None:
-            buffer = self.new_buffer()
-        elif (
+            return self.new_buffer()
+        if (
             not isinstance(buffer, np.ndarray)
             or buffer.shape != (4, n, n)
             or buffer.dtype != np.complex64
@@ -451,18 +458,44 @@ class Ocean:
                 f"buffer: {received} is not allowed; "
                 f"allowed: a writable C-contiguous complex64 array of shape (4, {n}, {n}) from new_buffer()"
             )
-        rotation = np.empty(self._omega_used.shape, dtype=np.complex128)
-        _kernels.rotation_kernel(self._omega_used, float(t), rotation)
+        return buffer
+
+    def _rotation(self, t: float, out: NDArray[np.complex128] | None = None) -> NDArray[np.complex128]:
+        """e^{−iωt} per rotation slot (into ``out`` when given)."""
+        from . import _kernels
+
+        rotation = np.empty(self._omega_used.shape, dtype=np.complex128) if out is None else out
+        _kernels.rotation_kernel(self._omega_used, t, rotation)
+        return rotation
+
+    def _spectra(self, rotation: NDArray[np.complex128], buffer: NDArray[np.complex64],
+                 bound: NDArray[np.complex128] | None) -> None:
+        """The packed spectra of the frame into ``buffer``, with the bound waves' spectrum
+        (``self.bound.spectrum(h0, rotation)``; None without bound waves) added."""
+        from . import _kernels
+
         _kernels.spectra_kernel(self._h0, self._slots, rotation, self.tile.dk, self.lateral_factor, buffer)
-        if self.bound is not None:
-            self.bound.add_to(buffer, self._h0, rotation)
-        # h(x) = Σ ĥ e^{ik·x}: an unnormalised inverse transform (norm="forward").
-        scipy.fft.ifft2(buffer, axes=(-2, -1), norm="forward", overwrite_x=True, workers=self.fft_workers)
+        if bound is not None:
+            from ._bound_kernels import bound_add_kernel
+
+            bound_add_kernel(bound, self.bound.dk, buffer)
+
+    @staticmethod
+    def _transform(buffer: NDArray[np.complex64], workers: int) -> None:
+        """h(x) = Σ ĥ e^{ik·x} for the four packed arrays: unnormalised inverse transforms."""
+        import scipy.fft
+
+        scipy.fft.ifft2(buffer, axes=(-2, -1), norm="forward", overwrite_x=True, workers=workers)
+
+    def _finish(self, t: float, rotation: NDArray[np.complex128], buffer: NDArray[np.complex64]) -> Fields:
+        """Jacobian, normal and foam from the transformed arrays, lingering foam, velocity."""
+        from . import _kernels
+
         _kernels.surface_kernel(buffer, self.fold_threshold, self.foam_ramp)
         if self.foam_memory > 0.0 and self.lateral_factor > 0.0:
-            self._linger(float(t), buffer)
+            self._linger(t, buffer)
         velocity = self._velocity(rotation) if self.velocity else None
-        return _fields_from_packed(float(t), buffer, velocity)
+        return _fields_from_packed(t, buffer, velocity)
 
     def bound_spectrum(self, t: float):
         """Spectrum of the bound waves' height at time t, or None when this ocean adds none.
