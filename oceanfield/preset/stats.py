@@ -67,13 +67,11 @@ def fold_warning(preset) -> str | None:
 
 
 def expected_folded_share(preset) -> float:
-    """The share of the preset's surface expected to fold (J < 0), from its spectrum
-    (for a banded preset, in band 0: the long waves, where the folding happens)."""
-    from ..surface.folding import folded_share_estimate
+    """The share of the preset's surface expected to fold (J < 0), from its spectrum (for a
+    banded preset, of the bands' summed surface: ``surface.folding.folded_share_of_bands``)."""
+    from ..surface.folding import folded_share_of_bands
 
-    band = _report_bands(preset)[0]
-    return folded_share_estimate(preset.sea_state(), band.tile, preset.surface.lateral_factor,
-                                 wavenumber_range=(band.k_low, band.k_high))
+    return folded_share_of_bands(preset.sea_state(), _report_bands(preset), preset.surface.lateral_factor)
 
 
 def _report_bands(preset) -> tuple:
