@@ -35,3 +35,7 @@ def test_benchmark_prints_frame_render_and_analyzer_figures(capsys):
     assert workers and float(workers.group(1)) > 0 and float(workers.group(2)) == 1.0  # one core: one count
     band = re.search(r"bare FFTs of all bands ([0-9.]+) ms: ratio ([0-9.]+)", out)
     assert band and float(band.group(1)) > 0 and float(band.group(2)) > 0
+    cpu = re.search(r"ratio [0-9.]+ \(target <= 1.3\); CPU time ratio ([0-9.]+); bound waves in (\d+) band", out)
+    assert cpu and float(cpu.group(1)) > 0
+    linear = re.search(r"without bound waves ([0-9.]+) ms: ratio ([0-9.]+); CPU time ratio ([0-9.]+)", out)
+    assert linear and all(float(value) > 0 for value in linear.groups())
