@@ -412,7 +412,7 @@ class BandStack:
         The bands are spread over the cores rather than each over all of them: on a small
         tile every parallel step costs a thread hand-over that outweighs its work. A frame
         runs in two phases on ``threads`` threads (the kernels' thread count, at most the
-        ``fft_workers`` given; :meth:`_schedule` orders the work):
+        ``fft_workers`` given; :meth:`_plan` orders the work):
 
         1. independent single-threaded tasks on a pool, largest first: each small band's
            whole frame (under 256² texels), and each wide band's bound-wave pair sum and
@@ -462,8 +462,11 @@ class BandStack:
                 self.oceans[i]._rotation(t, rotations[i])
             tasks = [(steps[kind], i) for kind, i in self._schedule]
             if threads > 1 and len(tasks) > 1:
-                pool = self._pool(threads)
-                for future in [pool.submit(_one_thread, step, i) for step, i in tasks]:
+                from concurrent.futures import wait
+
+                futures = [self._pool(threads).submit(_one_thread, step, i) for step, i in tasks]
+                wait(futures)  # all of them, so none still writes after an error is raised
+                for future in futures:
                     future.result()
             else:
                 with _kernel_threads(1):
@@ -472,9 +475,7 @@ class BandStack:
             for i in self._wide:
                 ocean = self.oceans[i]
                 if spectra[i] is not None:
-                    from ._bound_kernels import bound_add_kernel
-
-                    bound_add_kernel(spectra[i], ocean.bound.dk, buffers[i])
+                    ocean._add_bound(spectra[i], buffers[i])
                 ocean._transform(buffers[i], ocean.fft_workers)
                 out[i] = ocean._finish(t, rotations[i], buffers[i])
         return out

@@ -476,9 +476,13 @@ class Ocean:
 
         _kernels.spectra_kernel(self._h0, self._slots, rotation, self.tile.dk, self.lateral_factor, buffer)
         if bound is not None:
-            from ._bound_kernels import bound_add_kernel
+            self._add_bound(bound, buffer)
 
-            bound_add_kernel(bound, self.bound.dk, buffer)
+    def _add_bound(self, bound: NDArray[np.complex128], buffer: NDArray[np.complex64]) -> None:
+        """Add the bound waves' spectrum (and its slopes) to the packed spectra in ``buffer``."""
+        from ._bound_kernels import bound_add_kernel
+
+        bound_add_kernel(bound, self.bound.dk, buffer)
 
     @staticmethod
     def _transform(buffer: NDArray[np.complex64], workers: int) -> None:
