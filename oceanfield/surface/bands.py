@@ -604,7 +604,7 @@ class BandStack:
                 packed[0] += lattice
                 packed[1] += 1j * (1j * kx) * lattice
                 packed[2] += 1j * ky * lattice
-            sums = fourier_sum(packed, tile.dk, spacing, resolution, origin, workers=ocean.fft_workers)
+            sums = fourier_sum(packed, tile.dk, spacing, resolution, origin, workers=self._workers)  # every band on all cores
             for index_pair, (a, b) in enumerate(zip(names[0::2], names[1::2])):
                 total[a] += sums[index_pair].real
                 total[b] += sums[index_pair].imag
