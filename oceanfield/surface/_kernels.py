@@ -32,6 +32,8 @@ The normal's three components sit in the imaginary parts of slots 1–3, one arr
 so they form a (N, N, 3) view without a copy.
 
 Kernels are compiled on first use and cached on disk (``cache=True``), never at import.
+They release the GIL (``nogil``): a band stack (``bands``) runs several bands' kernels at
+once, one thread each.
 """
 
 from __future__ import annotations
