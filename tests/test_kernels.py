@@ -86,7 +86,7 @@ def test_spectra_kernel_matches_reference(n, t, lateral):
     rotation = np.exp(-1j * omega_table * t)
     out = np.empty((4, n, n), np.complex64)
     out[...] = np.nan  # every slot must be written, including the zeros
-    _kernels.spectra_kernel(h0, _every_slot(omega_table), rotation, dk, lateral, out)
+    _kernels.spectra_kernel(h0, _kernels.slot_index(_every_slot(omega_table), n), rotation, dk, lateral, out)
     expected = _kernels.spectra_reference(h0.astype(np.complex128), omega, t, dk, lateral)
     for slot in range(4):
         _close(out[slot], expected[slot])
@@ -98,7 +98,7 @@ def test_spectra_kernel_gives_real_fields(n):
     unpacking the kernel's output gives spectra with A(−k) = conj A(k)."""
     h0, omega_table, _, dk = _lattice_case(n, seed=7)
     out = np.empty((4, n, n), np.complex64)
-    _kernels.spectra_kernel(h0, _every_slot(omega_table), np.exp(-1j * omega_table * 2.0), dk, 1.3, out)
+    _kernels.spectra_kernel(h0, _kernels.slot_index(_every_slot(omega_table), n), np.exp(-1j * omega_table * 2.0), dk, 1.3, out)
     fields = np.fft.ifft2(out.astype(np.complex128), norm="forward")
     for slot in range(4):
         a, b = _unpack(out[slot].astype(np.complex128))
@@ -113,7 +113,7 @@ def test_spectra_kernel_gives_real_fields(n):
 def _transformed_fields(n: int, seed: int, lateral: float):
     h0, omega_table, _, dk = _lattice_case(n, seed=seed)
     out = np.empty((4, n, n), np.complex64)
-    _kernels.spectra_kernel(h0, _every_slot(omega_table), np.exp(-1j * omega_table * 1.1), dk, lateral, out)
+    _kernels.spectra_kernel(h0, _kernels.slot_index(_every_slot(omega_table), n), np.exp(-1j * omega_table * 1.1), dk, lateral, out)
     return np.fft.ifft2(out, norm="forward").astype(np.complex64)
 
 
@@ -176,7 +176,7 @@ def test_kernels_accept_a_lattice_with_only_low_waves():
     n = 48
     h0, omega_table, _, dk = _lattice_case(n)
     out = np.ones((4, n, n), np.complex64)
-    _kernels.spectra_kernel(h0, _every_slot(omega_table), np.exp(-1j * omega_table * 0.5), dk, 1.0, out)
+    _kernels.spectra_kernel(h0, _kernels.slot_index(_every_slot(omega_table), n), np.exp(-1j * omega_table * 0.5), dk, 1.0, out)
     half = n // 2
     assert np.all(out[:, 0, 0] == 0)
     assert np.all(out[:, half, :] == 0)
@@ -195,9 +195,26 @@ def test_compact_slots_give_the_same_spectra_as_every_slot():
     t = 2.75
     compact = np.empty((4, 48, 48), np.complex64)
     rotation = np.exp(-1j * ocean._omega_used * t)
-    _kernels.spectra_kernel(ocean._h0, ocean._slots, rotation, ocean.tile.dk, 1.0, compact)
+    _kernels.spectra_kernel(ocean._h0, _kernels.slot_index(ocean._slots, 48), rotation, ocean.tile.dk, 1.0, compact)
     full = np.empty_like(compact)
-    _kernels.spectra_kernel(ocean._h0, _every_slot(ocean._omega), np.exp(-1j * ocean._omega * t),
+    omega, _ = ocean._omega_by_q()
+    _kernels.spectra_kernel(ocean._h0, _kernels.slot_index(_every_slot(omega), 48), np.exp(-1j * omega * t),
                             ocean.tile.dk, 1.0, full)
     np.testing.assert_array_equal(compact, full)
-    assert ocean._omega_used.size < ocean._omega.size / 2
+    assert ocean._omega_used.size < omega.size / 2
+
+
+@pytest.mark.parametrize("n", [16, 30])
+def test_slot_index_is_the_slot_of_each_waves_q(n):
+    """Row r, column c of the half lattice holds slots[nx² + ny²] for that wave index, and −1
+    at the mean and beyond the table."""
+    half = n // 2
+    slots = np.arange(1, half * half + 2, dtype=np.int32)  # q ≤ (N/2)²: the carried disc
+    index = _kernels.slot_index(slots, n)
+    assert index.shape == (half + 1, n) and index.dtype == np.int32
+    for r in range(half + 1):
+        for c in range(n):
+            ny = r if r < half else r - n
+            nx = c if c < half else c - n
+            q = nx * nx + ny * ny
+            assert index[r, c] == (slots[q] if 0 < q < slots.size else -1)

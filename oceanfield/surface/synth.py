@@ -245,14 +245,17 @@ class Ocean:
         self.velocity = bool(velocity)
         self.fft_workers = fft_workers if fft_workers is not None else (os.cpu_count() or 1)
         self._check_memory()
-        self._h0, self._omega, self.lattice_variance, self.loop_info, used = self._build(build_progress)
+        self._h0, omega, self.lattice_variance, self.loop_info, used = self._build(build_progress)
         self.whitecap_coverage, self.fold_threshold = self._foam_threshold(fold_threshold)
         # Rotations are needed only for the q = nx² + ny² that carry energy: slot 0 stands
         # for all others (their amplitudes are zero), slots 1… for the used ones.
         used = np.flatnonzero(used)
-        self._slots = np.zeros(self._omega.size, dtype=np.int32)
+        # The full table of ω is not kept (2 bytes a texel): `frequencies` recomputes it.
+        self._slots = np.zeros(omega.size, dtype=np.int32)
         self._slots[used] = np.arange(1, used.size + 1, dtype=np.int32)
-        self._omega_used = np.concatenate([[0.0], self._omega[used]])
+        self._omega_used = np.concatenate([[0.0], omega[used]])
+        del omega
+        self._index: NDArray[np.int32] | None = None  # slots per wave index (_kernels.slot_index)
         self.bound = self._bound_waves(bound_waves)
 
     @classmethod
@@ -342,21 +345,28 @@ class Ocean:
             realised_sum = float(realised.sum())
         variance = float(target.sum())
         self.realised_variance = realised_sum
-        # ω depends on |k| alone: one value per q = nx² + ny² ≤ (N/2)².
-        omega = sea.angular_frequency(np.sqrt(np.arange(half * half + 1, dtype=np.float64)) * tile.dk)
+        omega, info = self._omega_by_q(used)
+        return h0, omega, variance, info, used
+
+    def _omega_by_q(self, used: NDArray[np.bool_] | None = None) -> tuple[NDArray[np.float64], LoopInfo | None]:
+        """ω for each q = nx² + ny² ≤ (N/2)² (it depends on |k| alone), after the loop's
+        quantisation, and the loop's frequency shifts over the ``used`` q (None: not asked)."""
+        half = self.tile.resolution // 2
+        omega = self.sea_state.angular_frequency(np.sqrt(np.arange(half * half + 1, dtype=np.float64)) * self.tile.dk)
         info = None
         if self.loop_period is not None:
             step = 2.0 * math.pi / self.loop_period
             quantised = np.round(omega / step) * step
-            shift = np.abs(quantised - omega)[used]
-            relative = shift / omega[used]
-            info = LoopInfo(
-                self.loop_period,
-                float(shift.max()) if shift.size else 0.0,
-                float(relative.max()) if relative.size else 0.0,
-            )
+            if used is not None:
+                shift = np.abs(quantised - omega)[used]
+                relative = shift / omega[used]
+                info = LoopInfo(
+                    self.loop_period,
+                    float(shift.max()) if shift.size else 0.0,
+                    float(relative.max()) if relative.size else 0.0,
+                )
             omega = quantised
-        return h0, omega, variance, info, used
+        return omega, info
 
     def _foam_threshold(self, explicit: float | None) -> tuple[float | None, float]:
         """(target whitecap share or None, fold threshold): an explicit threshold as given,
@@ -474,7 +484,9 @@ class Ocean:
         (``self.bound.spectrum(h0, rotation)``; None without bound waves) added."""
         from . import _kernels
 
-        _kernels.spectra_kernel(self._h0, self._slots, rotation, self.tile.dk, self.lateral_factor, buffer)
+        if self._index is None:  # made on the first frame (probes and modes never need it)
+            self._index = _kernels.slot_index(self._slots, self.tile.resolution)
+        _kernels.spectra_kernel(self._h0, self._index, rotation, self.tile.dk, self.lateral_factor, buffer)
         if bound is not None:
             self._add_bound(bound, buffer)
 
@@ -596,15 +608,16 @@ class Ocean:
         """
         from .modes import WaveModes
 
+        omega, _ = self._omega_by_q()
         ny, nx = self.tile.wave_indices()
-        q = np.minimum(nx * nx + ny * ny, self._omega.size - 1)
+        q = np.minimum(nx * nx + ny * ny, omega.size - 1)
         keep = self._h0 != 0
         kx = np.broadcast_to(nx * self.tile.dk, keep.shape)[keep]
         ky = np.broadcast_to(ny * self.tile.dk, keep.shape)[keep]
         height = 2.0 * self._h0[keep].astype(np.complex128)
         k = np.hypot(kx, ky)
         lateral = 1j * self.lateral_factor * height
-        linear = WaveModes(kx, ky, self._omega[q[keep]], height, lateral * kx / k, lateral * ky / k)
+        linear = WaveModes(kx, ky, omega[q[keep]], height, lateral * kx / k, lateral * ky / k)
         if self.bound is None:
             return linear
         # the bound waves the frames add: one mode per pair of parents and sign (surface.bound)
@@ -622,9 +635,10 @@ class Ocean:
     @property
     def frequencies(self) -> NDArray[np.float64]:
         """ω(k) in rad/s on the lattice in FFT layout (after loop quantisation); a new array."""
+        omega, _ = self._omega_by_q()
         ny, nx = self.tile.wave_indices()
-        q = np.minimum(nx * nx + ny * ny, self._omega.size - 1)
-        return self._omega[q]
+        q = np.minimum(nx * nx + ny * ny, omega.size - 1)
+        return omega[q]
 
 
 def _add_bound_rate(packed: NDArray[np.complex64], rate: NDArray[np.complex128], n: int) -> None:
