@@ -461,7 +461,7 @@ class BandStack:
             for i in self._wide:  # their rotations first: the pair sums and spectra need them
                 self.oceans[i]._rotation(t, rotations[i])
             tasks = [(steps[kind], i) for kind, i in self._schedule]
-            if threads > 1 and len(tasks) > 1:
+            if threads > 1 and len(tasks) > 1 and _concurrent_kernels_allowed():
                 from concurrent.futures import wait
 
                 futures = [self._pool(threads).submit(_one_thread, step, i) for step, i in tasks]
@@ -709,6 +709,19 @@ def _kernel_threads(count: int):
         yield
     finally:
         numba.set_num_threads(before)
+
+
+def _concurrent_kernels_allowed() -> bool:
+    """Whether numba's threading layer may run kernels from several threads at once: the
+    OpenMP and TBB layers may; the fallback "workqueue" layer (a machine without libgomp
+    or TBB) may not, and aborts the process if it is tried (numba documentation, "The
+    Threading Layers"), so band frames then run their tasks one after another."""
+    import numba
+
+    try:
+        return numba.threading_layer() != "workqueue"
+    except ValueError:  # no parallel kernel has run yet in this process: not known
+        return False
 
 
 def _one_thread(step, index: int) -> None:
