@@ -26,6 +26,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from . import spectra
+from ._brent import bounded_minimum
 from .constants import GRAVITY, SEAWATER_DENSITY
 from .dispersion import angular_frequency, check_depth, group_velocity, phase_velocity, wavenumber
 from .spreading import SPREADING, cos2s_exponent, elfouhaily_delta, spreading, wrap_angle
@@ -453,15 +454,8 @@ class SeaState:
         density = self.frequency_spectrum(grid)
         i = int(np.argmax(density))
         lo, hi = grid[max(i - 1, 0)], grid[min(i + 1, len(grid) - 1)]
-        from scipy import optimize  # here, not at the top: a render that needs no statistics skips it
-
-        result = optimize.minimize_scalar(
-            lambda w: -float(self.frequency_spectrum(np.array([w]))[0]),
-            bounds=(lo, hi),
-            method="bounded",
-            options={"xatol": 1e-10 * hi},
-        )
-        return float(result.x)
+        peak = bounded_minimum(lambda w: -float(self.frequency_spectrum(np.array([w]))[0]), lo, hi, xatol=1e-10 * hi)
+        return float(peak)
 
     def _direction_moments(self, index: int) -> tuple[float, float, float]:
         """(m0, a1, b1) of one component: a1 + i b1 = ∫∫ S D e^{iθ} dθ dω (Kuik et al. 1988)."""
@@ -480,23 +474,27 @@ class SeaState:
         dtheta = 2.0 * np.pi / theta.size
         cos_mean = (d * np.cos(theta)[None, :]).sum(axis=1) * dtheta
         sin_mean = (d * np.sin(theta)[None, :]).sum(axis=1) * dtheta
-        from scipy import integrate  # here, not at the top: only statistics need it
-
-        m0_grid = integrate.trapezoid(density, omega)
-        a1 = integrate.trapezoid(density * cos_mean, omega) / m0_grid
-        b1 = integrate.trapezoid(density * sin_mean, omega) / m0_grid
+        m0_grid = _trapezoid(density, omega)
+        a1 = _trapezoid(density * cos_mean, omega) / m0_grid
+        b1 = _trapezoid(density * sin_mean, omega) / m0_grid
         m0 = self._moment(index, 0)
         return m0, a1 * m0, b1 * m0
 
     def statistics(self) -> SeaStatistics:
         """Integral statistics of the whole sea (see :class:`SeaStatistics`)."""
-        if "total" not in self._cache:
-            self._cache["total"] = self._statistics(range(len(self.components)))
-        return self._cache["total"]
+        return self._statistics_of(tuple(range(len(self.components))))
 
     def component_statistics(self) -> list[SeaStatistics]:
         """Statistics of each component on its own, in order."""
-        return [self._statistics([i]) for i in range(len(self.components))]
+        return [self._statistics_of((i,)) for i in range(len(self.components))]
+
+    def _statistics_of(self, indices: tuple[int, ...]) -> SeaStatistics:
+        """Statistics of the components ``indices``, computed once (a sea of one component
+        has the same figures on its own as in total: its warnings and its Ocean share them)."""
+        key = ("statistics", indices)
+        if key not in self._cache:
+            self._cache[key] = self._statistics(indices)
+        return self._cache[key]
 
     def _statistics(self, indices) -> SeaStatistics:
         indices = list(indices)
@@ -537,6 +535,11 @@ class SeaState:
 
 
 # -- constructors ------------------------------------------------------------------------
+
+
+def _trapezoid(y: NDArray[np.float64], x: NDArray[np.float64]) -> float:
+    """∫ y dx by the trapezoid rule on the nodes x (the sum scipy's ``trapezoid`` forms)."""
+    return (np.diff(x) * (y[1:] + y[:-1]) / 2.0).sum()
 
 
 def _direction_and_spread(direction: float, spreading_name: str, spread: float | None) -> tuple[float, float]:

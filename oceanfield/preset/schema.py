@@ -246,8 +246,13 @@ class Preset:
     source: Path | None = field(default=None, compare=False)
 
     def sea_state(self) -> SeaState:
-        """The preset's sea in SI units: :func:`to_sea_state` of this preset."""
-        return to_sea_state(self)
+        """The preset's sea in SI units: :func:`to_sea_state` of this preset, built once (so
+        its statistics, which the warnings and the Ocean's bound waves both ask for, are too)."""
+        sea = self.__dict__.get("_sea_state")
+        if sea is None:
+            sea = to_sea_state(self)
+            object.__setattr__(self, "_sea_state", sea)  # frozen: a cache, not a field
+        return sea
 
 
 # -- public functions --------------------------------------------------------------------

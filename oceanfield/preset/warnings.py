@@ -13,7 +13,7 @@ from dataclasses import replace
 
 from ..physics.constants import SURFACE_TENSION
 from ..physics.seastate import SeaState
-from .schema import Preset, _component, to_sea_state
+from .schema import Preset, _component
 
 __all__ = ["preset_warnings"]
 
@@ -41,9 +41,9 @@ def preset_warnings(preset: Preset, *, sea_state: SeaState | None = None) -> lis
     ----------
     preset : Preset
     sea_state : SeaState, optional
-        ``to_sea_state(preset)``, if already built.
+        ``preset.sea_state()``, if already built.
     """
-    sea_state = to_sea_state(preset) if sea_state is None else sea_state
+    sea_state = preset.sea_state() if sea_state is None else sea_state
     sea, tile = preset.sea, preset.tile
     if preset.bands.active:
         # Band 0's tile and the shortest wave the bands carry stand for the tile.

@@ -28,7 +28,8 @@ import math
 
 import numpy as np
 from numpy.typing import NDArray
-from scipy import optimize, special
+
+from ..physics._brent import bracketed_root
 
 __all__ = ["jacobian_covariance", "jacobian_share_below", "fold_threshold_for_coverage"]
 
@@ -88,10 +89,12 @@ def jacobian_share_below(cov: NDArray[np.float64], threshold: float, *, _model=N
     conditional mean μ and deviation σ: P = 1 for u ≤ 0, else Φ((−√u − μ)/σ) +
     Φ((μ − √u)/σ). The outer integral over (a, b) is a trapezoid rule on ±8 σ.
     """
+    from scipy.special import ndtr  # here: scipy.special loads with the FFTs a frame needs anyway
+
     product, mean, spread, weight = _model if _model is not None else _conditional_model(cov)
     u = product - threshold
     root = np.sqrt(np.maximum(u, 0.0))
-    tail = special.ndtr((-root - mean) / spread) + special.ndtr((mean - root) / spread)
+    tail = ndtr((-root - mean) / spread) + ndtr((mean - root) / spread)
     return float(np.sum(weight * np.where(u <= 0.0, 1.0, np.minimum(tail, 1.0))))
 
 
@@ -106,7 +109,7 @@ def fold_threshold_for_coverage(cov: NDArray[np.float64], share: float, foam_ram
     model = _conditional_model(cov)
     scale = math.sqrt(float(np.trace(cov))) + 1.0
     low, high = 1.0 - 100.0 * scale * scale, 1.0 + 100.0 * scale * scale
-    quantile = optimize.brentq(
+    quantile = bracketed_root(
         lambda t: jacobian_share_below(cov, t, _model=model) - share, low, high, xtol=1e-9, rtol=1e-12
     )
     return float(quantile) + 0.5 * foam_ramp
