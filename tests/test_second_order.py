@@ -8,6 +8,7 @@ import numpy as np
 import pytest
 
 from oceanfield.physics.second_order import (
+    bound_wave_kernel_matrix,
     bound_wave_kernels,
     second_order_statistics,
     tayfun_crest_trough_ratio,
@@ -66,6 +67,22 @@ def test_kernels_are_symmetric_and_rotate_with_the_pair():
         for x, y, z in zip(a, b, r):
             np.testing.assert_allclose(x, y, rtol=1e-9, atol=1e-12)
             np.testing.assert_allclose(x, z, rtol=1e-9, atol=1e-12)
+
+
+@pytest.mark.parametrize("depth", [math.inf, 30.0, 4.0])
+def test_the_pair_matrix_is_the_broadcast_kernels_to_the_bit(depth):
+    """``bound_wave_kernel_matrix`` evaluates half the pairs and mirrors them: it must give
+    exactly the numbers of the broadcast formula (the bound waves of every frame depend on
+    them), also for opposed waves of one length (k⁺ = 0) and the diagonal (k⁻ = 0)."""
+    rng = np.random.default_rng(11)
+    n = rng.integers(-30, 31, size=(300, 2))
+    n = np.concatenate([n[(n != 0).any(axis=1)], [[5, 2], [-5, -2], [0, 7], [0, -7]]])
+    kx, ky = n[:, 1] * 0.049087385212340517, n[:, 0] * 0.049087385212340517  # a 128 m tile's lattice
+    matrix = bound_wave_kernel_matrix(kx, ky, depth=depth)
+    broadcast = bound_wave_kernels(kx[:, None], ky[:, None], kx[None, :], ky[None, :], depth=depth)
+    for got, expected in zip(matrix, broadcast):
+        assert got.shape == (kx.size, kx.size)
+        assert np.array_equal(got, expected)
 
 
 def test_narrow_band_skewness_is_three_k_sigma():

@@ -48,6 +48,7 @@ from .constants import GRAVITY
 
 __all__ = [
     "bound_wave_kernels",
+    "bound_wave_kernel_matrix",
     "SecondOrderStatistics",
     "second_order_statistics",
     "tayfun_crest_trough_ratio",
@@ -107,30 +108,61 @@ def bound_wave_kernels(
     docstring are tested).
     """
     del gravity  # R = k tanh kh = ω²/g: g cancels
-    k1x, k1y, k2x, k2y = np.broadcast_arrays(*(np.asarray(v, dtype=np.float64) for v in (k1x, k1y, k2x, k2y)))
-    k1 = np.hypot(k1x, k1y)
-    k2 = np.hypot(k2x, k2y)
-    r1 = _k_tanh(k1, depth)
-    r2 = _k_tanh(k2, depth)
-    s1 = np.sqrt(r1)
-    s2 = np.sqrt(r2)
+    k1x, k1y, k2x, k2y = (np.asarray(v, dtype=np.float64) for v in (k1x, k1y, k2x, k2y))
+    k1, r1, s1, a1 = _wave_terms(k1x, k1y, depth)
+    k2, r2, s2, a2 = _wave_terms(k2x, k2y, depth)
+    core_plus, core_minus = _symmetric_cores(k1x, k1y, k2x, k2y, k1, r1, s1, a1, k2, r2, s2, a2, depth)
+    return 0.25 * (core_plus + r1 + r2), 0.25 * (core_minus + r1 + r2)
+
+
+def bound_wave_kernel_matrix(kx: ArrayLike, ky: ArrayLike, *, depth: float = math.inf,
+                             ) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
+    """B⁺ and B⁻ in 1/m for every ordered pair (i, j) of the waves (kx, ky), as (P, P) arrays.
+
+    The same numbers, to the bit, as ``bound_wave_kernels(kx[:, None], ky[:, None],
+    kx[None, :], ky[None, :])``, at about half the cost: every term of the formula but
+    the final R₁ + R₂ is symmetric in the pair, also in floating point (its sums and
+    products commute exactly, and the difference terms change sign twice), so it is
+    evaluated for i ≤ j only and mirrored.
+    """
+    kx = np.ravel(np.asarray(kx, dtype=np.float64))
+    ky = np.ravel(np.asarray(ky, dtype=np.float64))
+    k, r, s, a = _wave_terms(kx, ky, depth)
+    i, j = np.triu_indices(kx.size)
+    cores = _symmetric_cores(kx[i], ky[i], kx[j], ky[j], k[i], r[i], s[i], a[i], k[j], r[j], s[j], a[j], depth)
+    kernels = []
+    for core in cores:
+        full = np.empty((kx.size, kx.size))
+        full[i, j] = core
+        full[j, i] = core
+        kernels.append(0.25 * (full + r[:, None] + r[None, :]))
+    return kernels[0], kernels[1]
+
+
+def _wave_terms(kx: NDArray[np.float64], ky: NDArray[np.float64], depth: float):
+    """k, R = k tanh kh, √R and k² − R² of each wave."""
+    k = np.hypot(kx, ky)
+    r = _k_tanh(k, depth)
+    return k, r, np.sqrt(r), k**2 - r**2
+
+
+def _symmetric_cores(k1x, k1y, k2x, k2y, k1, r1, s1, a1, k2, r2, s2, a2, depth: float):
+    """D±/√(R₁R₂) − (k₁·k₂ ∓ R₁R₂)/√(R₁R₂): the kernels less ¼ and R₁ + R₂ (broadcast)."""
     s12 = s1 * s2
     dot = k1x * k2x + k1y * k2y
     k_sum = np.hypot(k1x + k2x, k1y + k2y)
     k_diff = np.hypot(k1x - k2x, k1y - k2y)
     with np.errstate(divide="ignore", invalid="ignore"):
-        d_plus = ((s1 + s2) * (s1 * (k2**2 - r2**2) + s2 * (k1**2 - r1**2))
+        d_plus = ((s1 + s2) * (s1 * a2 + s2 * a1)
                   + 2.0 * (s1 + s2) ** 2 * (dot - r1 * r2)) / ((s1 + s2) ** 2 - _k_tanh(k_sum, depth))
-        d_minus = ((s1 - s2) * (s1 * (k2**2 - r2**2) - s2 * (k1**2 - r1**2))
+        d_minus = ((s1 - s2) * (s1 * a2 - s2 * a1)
                    + 2.0 * (s1 - s2) ** 2 * (dot + r1 * r2)) / ((s1 - s2) ** 2 - _k_tanh(k_diff, depth))
     # k₁ = k₂: the difference wave has no wavenumber and no frequency (0/0); the mean level
     # of a wave train is the set-down (Longuet-Higgins & Stewart 1964), which D⁻ = 0 gives.
     d_minus = np.where(k_diff > 1e-12 * np.maximum(k1, k2), d_minus, 0.0)
     # Two opposed waves of one length in deep water: the sum wave has k⁺ = 0 and D⁺ its limit.
     d_plus = np.where(np.isfinite(d_plus), d_plus, 0.0)
-    b_plus = 0.25 * (d_plus / s12 - (dot - r1 * r2) / s12 + r1 + r2)
-    b_minus = 0.25 * (d_minus / s12 - (dot + r1 * r2) / s12 + r1 + r2)
-    return b_plus, b_minus
+    return d_plus / s12 - (dot - r1 * r2) / s12, d_minus / s12 - (dot + r1 * r2) / s12
 
 
 def tayfun_crest_trough_ratio(steepness: ArrayLike) -> NDArray[np.float64]:

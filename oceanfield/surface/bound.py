@@ -41,7 +41,12 @@ from dataclasses import dataclass
 import numpy as np
 from numpy.typing import NDArray
 
-from ..physics.second_order import SecondOrderStatistics, bound_wave_kernels, second_order_statistics
+from ..physics.second_order import (
+    SecondOrderStatistics,
+    bound_wave_kernel_matrix,
+    bound_wave_kernels,
+    second_order_statistics,
+)
 from ..physics.seastate import SeaState
 from .amplitudes import cell_variance
 from .tile import Tile
@@ -283,7 +288,7 @@ def bound_waves(
     ny, nx, variance = ny[chosen], nx[chosen], variance[chosen]
     kx, ky = nx * dk, ny * dk
     depth = sea_state.depth
-    kernels = bound_wave_kernels(kx[:, None], ky[:, None], kx[None, :], ky[None, :], depth=depth)
+    kernels = bound_wave_kernel_matrix(kx, ky, depth=depth)
     sum_kernel, difference_kernel = pair_kernels(kx, ky, depth=depth, lateral_factor=lateral_factor,
                                                  kernels=kernels)
     slot = slots[nx * nx + ny * ny].astype(np.int32)
