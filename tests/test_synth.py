@@ -665,6 +665,26 @@ def test_fft_threads_do_not_change_the_bits():
     assert np.array_equal(one.velocity, two.velocity)
 
 
+def test_the_amplitudes_are_the_same_bits_built_on_any_number_of_threads():
+    """The build spreads blocks of lattice rows over ``fft_workers`` threads and sums their
+    per-ring variances in block order: h0, the variances and the foam threshold must not
+    depend on the thread count (512²: four blocks, three threads at a time)."""
+    sea = _sea()
+    tile = Tile(200.0, 512)
+    one = Ocean(sea, tile, seed=5, fft_workers=1, bound_waves=False)
+    three = Ocean(sea, tile, seed=5, fft_workers=3, bound_waves=False)
+    assert synth._build_threads(3, 512, 256 * 256 + 1) == 3
+    assert np.array_equal(one._h0, three._h0)
+    assert (one.lattice_variance, one.realised_variance, one.fold_threshold) == (
+        three.lattice_variance, three.realised_variance, three.fold_threshold)
+
+
+def test_huge_lattices_build_their_blocks_one_at_a_time():
+    """Blocks in flight stay within the build's memory budget: at 16384² one at a time."""
+    assert synth._build_threads(64, 16384, 8192 * 8192 + 1) == 1
+    assert synth._build_threads(64, 1024, 512 * 512 + 1) > 8
+
+
 def test_reused_buffer_gives_the_same_bits_as_a_fresh_one():
     ocean = Ocean(_sea(), Tile(200.0, 64), seed=6)
     buffer = ocean.new_buffer()

@@ -318,29 +318,37 @@ class Ocean:
         rings = half * half + 1  # one per q = nx² + ny² ≤ (N/2)², the carried disc
         target = np.zeros(rings)
         realised = np.zeros(rings)
-        for start in range(0, n, _BLOCK_ROWS):
-            rows = slice(start, min(start + _BLOCK_ROWS, n))
+
+        def amplitude_block(rows: slice) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
             ny, nx = tile.wave_indices(rows)
             carried = tile.carried(ny, nx) & self._in_range(ny, nx)
             # E|h0|² = (∫ over the cell Ψ dk)/2 (DESIGN convention), with E|ξ|² = 1.
             cell = np.where(carried, amplitudes.cell_variance(sea, tile.dk, ny, nx, width=width), 0.0)
             block = amplitude_noise(self.seed, ny, nx, self.band) * np.sqrt(cell / 2.0)
             q = np.where(carried, nx * nx + ny * ny, 0).ravel()  # waves not carried hold nothing
-            target += np.bincount(q, cell.ravel(), minlength=rings)
-            realised += np.bincount(q, 2.0 * (block.real.ravel() ** 2 + block.imag.ravel() ** 2), minlength=rings)
             h0[rows] = block
+            return (np.bincount(q, cell.ravel(), minlength=rings),
+                    np.bincount(q, 2.0 * (block.real.ravel() ** 2 + block.imag.ravel() ** 2), minlength=rings))
+
+        blocks = [slice(start, min(start + _BLOCK_ROWS, n)) for start in range(0, n, _BLOCK_ROWS)]
+        threads = _build_threads(self.fft_workers, n, rings)
+        for rows, (block_target, block_realised) in zip(blocks, _in_order(amplitude_block, blocks, threads)):
+            target += block_target  # summed in block order: the same bits on any number of threads
+            realised += block_realised
             if progress is not None:  # rows of the lattice done (a long build at 8192² and up)
                 progress(rows.stop - rows.start)
         used = target > 0
         if self.wave_heights == "as_requested":
             # Each ring of equal |k| holds exactly its target (see ``amplitudes``).
             scale = np.append(amplitudes.ring_scale(realised, target), 0.0).astype(np.float32)
-            realised_sum = 0.0
-            for start in range(0, n, _BLOCK_ROWS):
-                rows = slice(start, min(start + _BLOCK_ROWS, n))
+            def rescale_block(rows: slice) -> float:
                 ny, nx = tile.wave_indices(rows)
                 h0[rows] *= scale[np.minimum(nx * nx + ny * ny, rings)]  # beyond the disc: 0 already
-                realised_sum += 2.0 * float(np.square(h0[rows].view(np.float32), dtype=np.float64).sum())
+                return 2.0 * float(np.square(h0[rows].view(np.float32), dtype=np.float64).sum())
+
+            realised_sum = 0.0
+            for block_sum in _in_order(rescale_block, blocks, threads):
+                realised_sum += block_sum
         else:
             realised_sum = float(realised.sum())
         variance = float(target.sum())
@@ -646,6 +654,45 @@ def _add_bound_rate(packed: NDArray[np.complex64], rate: NDArray[np.complex128],
     m = rate.shape[0]
     index = np.fft.fftfreq(m, d=1.0 / m).astype(np.int64) % n
     packed[1][np.ix_(index, index)] += rate.astype(np.complex64)
+
+
+#: Memory the blocks of an amplitude build in flight at once may take together.
+_BUILD_BYTES = 1 << 30
+
+
+def _build_threads(workers: int, n: int, rings: int) -> int:
+    """Threads that build blocks of amplitude rows at once: ``workers``, fewer where the
+    blocks in flight (a block's float64 work arrays, about 40 a texel, and its two
+    per-ring sums) would take more than ``_BUILD_BYTES``."""
+    block_bytes = 8 * (40 * _BLOCK_ROWS * n + 2 * rings)
+    return max(1, min(workers, _BUILD_BYTES // block_bytes))
+
+
+def _in_order(function: Callable, items: list, threads: int):
+    """``function(item)`` for each item, yielded in order, computed ``threads`` at a time.
+
+    numpy releases Python's lock in its loops, so blocks of a build overlap on the cores;
+    the caller adds their results in order, so the sums are the same bits on any number
+    of threads. At most ``threads`` results are held at once.
+    """
+    if threads <= 1 or len(items) <= 1:
+        yield from map(function, items)
+        return
+    from collections import deque
+    from concurrent.futures import ThreadPoolExecutor
+
+    with ThreadPoolExecutor(max_workers=threads, thread_name_prefix="oceanfield-build") as pool:
+        pending = deque()
+        try:
+            for item in items:
+                if len(pending) == threads:
+                    yield pending.popleft().result()
+                pending.append(pool.submit(function, item))
+            while pending:
+                yield pending.popleft().result()
+        finally:
+            for future in pending:
+                future.cancel()
 
 
 def _bytes_text(count: float) -> str:
