@@ -684,3 +684,16 @@ def test_bound_waves_key_defaults_checks_and_reaches_the_ocean():
     assert Ocean.from_preset(preset).bound is not None
     with pytest.raises(PresetError, match=r"bound_waves: expected auto, true or false, got .*maybe"):
         load_preset("moderate_breeze", overrides=("surface.bound_waves=maybe",))
+
+
+def test_a_preset_builds_its_sea_once():
+    """``Preset.sea_state()`` is built once, so warnings, estimates and the Ocean share one
+    SeaState and its statistics; a changed copy builds its own."""
+    preset = load_preset("moderate_breeze")
+    sea = preset.sea_state()
+    assert preset.sea_state() is sea
+    calmer = dataclasses.replace(preset, sea=dataclasses.replace(
+        preset.sea, components=(dataclasses.replace(preset.sea.components[0], beaufort=3),)))
+    assert calmer.sea_state() is not sea
+    assert calmer.sea_state().statistics().hs < sea.statistics().hs
+    assert calmer == calmer and preset_hash(calmer) != preset_hash(preset)

@@ -637,3 +637,16 @@ def test_fetch_limited_pierson_moskowitz_keeps_its_shape():
     omega = np.linspace(0.3, 4.0, 50)
     pm = spectra.pierson_moskowitz(omega, peak_frequency=component.peak_frequency, alpha=component.alpha)
     np.testing.assert_allclose(SeaState((component,)).frequency_spectrum(omega), pm, rtol=1e-12)
+
+
+def test_statistics_are_computed_once_per_set_of_components():
+    """A one-component sea's own figures are its total (the render's warnings and its
+    Ocean's bound waves ask for both); a second call returns the first result."""
+    sea = SeaState((wind_sea(9.0, fetch=40e3),))
+    total = sea.statistics()
+    assert sea.component_statistics()[0] is total
+    assert sea.statistics() is total
+    two = SeaState((wind_sea(9.0, fetch=40e3), wind_sea(5.0, fetch=10e3, direction=1.0)))
+    own = two.component_statistics()
+    assert own[0] is not two.statistics()
+    assert own[0].hs == pytest.approx(total.hs, rel=1e-12)  # the same component, the same figures
