@@ -322,8 +322,14 @@ class Ocean:
         def amplitude_block(rows: slice) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
             ny, nx = tile.wave_indices(rows)
             carried = tile.carried(ny, nx) & self._in_range(ny, nx)
-            # E|h0|² = (∫ over the cell Ψ dk)/2 (DESIGN convention), with E|ξ|² = 1.
-            cell = np.where(carried, amplitudes.cell_variance(sea, tile.dk, ny, nx, width=width), 0.0)
+            # E|h0|² = (∫ over the cell Ψ dk)/2 (DESIGN convention), with E|ξ|² = 1. Only the
+            # carried waves are integrated (the disc leaves a fifth of the square out, a
+            # band most of it); each cell's integral is its own, so the values are the same.
+            cell = np.zeros(carried.shape)
+            cell[carried] = amplitudes.cell_variance(
+                sea, tile.dk, np.broadcast_to(ny, carried.shape)[carried], np.broadcast_to(nx, carried.shape)[carried],
+                width=width,
+            )
             block = amplitude_noise(self.seed, ny, nx, self.band) * np.sqrt(cell / 2.0)
             q = np.where(carried, nx * nx + ny * ny, 0).ravel()  # waves not carried hold nothing
             h0[rows] = block
