@@ -650,3 +650,22 @@ def test_statistics_are_computed_once_per_set_of_components():
     own = two.component_statistics()
     assert own[0] is not two.statistics()
     assert own[0].hs == pytest.approx(total.hs, rel=1e-12)  # the same component, the same figures
+
+
+def test_a_one_way_sea_is_evaluated_where_it_runs_and_is_the_same_bits():
+    """Where every component drops its opposing waves, Ψ is evaluated on the half-planes
+    they run in only; the values must be those of evaluating every point (the amplitudes
+    of every frame depend on them), and exactly 0 where no component runs."""
+    sea = SeaState((
+        wind_sea(11.0, fetch=60e3, direction=0.4, suppress_opposing=True),
+        wind_sea(6.0, fetch=8e3, direction=2.0, spreading="mitsuyasu", suppress_opposing=True),
+    ))
+    n = np.arange(-64, 64)
+    kx, ky = n[None, :] * 0.05, n[:, None] * 0.05
+    psi = sea.directional_spectrum(kx, ky)
+    whole = sea._directional_spectrum(kx, ky)
+    assert psi.shape == (128, 128)
+    assert np.array_equal(psi, whole)
+    theta = np.arctan2(ky, kx) + 0.0 * kx
+    behind = (np.cos(theta - 0.4) < -1e-9) & (np.cos(theta - 2.0) < -1e-9)
+    assert behind.sum() > 1000 and np.all(psi[behind] == 0.0)

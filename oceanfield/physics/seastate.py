@@ -376,6 +376,21 @@ class SeaState:
         """
         kx = np.asarray(kx, dtype=np.float64)
         ky = np.asarray(ky, dtype=np.float64)
+        shape = np.broadcast_shapes(kx.shape, ky.shape)
+        if all(getattr(c, "suppress_opposing", False) for c in self.components) and math.prod(shape) > _WHOLE_PLANE:
+            # Every component drops the waves running against it: where all of them do, Ψ is
+            # exactly 0 (a finite density times D = 0). Only the rest is evaluated; each value
+            # is its own, so they are the same bits as evaluating the whole plane.
+            theta = np.arctan2(ky, kx)
+            ahead = np.zeros(shape, dtype=bool)
+            for component in self.components:
+                ahead |= np.abs(wrap_angle(theta - component.direction)) <= 0.5 * np.pi
+            out = np.zeros(shape)
+            out[ahead] = self._directional_spectrum(np.broadcast_to(kx, shape)[ahead], np.broadcast_to(ky, shape)[ahead])
+            return out
+        return self._directional_spectrum(kx, ky)
+
+    def _directional_spectrum(self, kx: NDArray[np.float64], ky: NDArray[np.float64]) -> NDArray[np.float64]:
         k = np.hypot(kx, ky)
         mask = k > 0
         kk = np.where(mask, k, 1.0)
@@ -535,6 +550,11 @@ class SeaState:
 
 
 # -- constructors ------------------------------------------------------------------------
+
+
+#: Spectra of more points than this, of a sea whose every component drops its opposing
+#: waves, are evaluated where they can be nonzero only (a lattice block, not a few nodes).
+_WHOLE_PLANE = 4096
 
 
 def _trapezoid(y: NDArray[np.float64], x: NDArray[np.float64]) -> float:
