@@ -671,12 +671,15 @@ def test_the_amplitudes_are_the_same_bits_built_on_any_number_of_threads():
     depend on the thread count (512²: four blocks, three threads at a time)."""
     sea = _sea()
     tile = Tile(200.0, 512)
-    one = Ocean(sea, tile, seed=5, fft_workers=1, bound_waves=False)
-    three = Ocean(sea, tile, seed=5, fft_workers=3, bound_waves=False)
+    one = Ocean(sea, tile, seed=5, fft_workers=1, bound_waves=True)
+    three = Ocean(sea, tile, seed=5, fft_workers=3, bound_waves=True)  # threshold beside bound waves
     assert synth._build_threads(3, 512, 256 * 256 + 1) == 3
     assert np.array_equal(one._h0, three._h0)
     assert (one.lattice_variance, one.realised_variance, one.fold_threshold) == (
         three.lattice_variance, three.realised_variance, three.fold_threshold)
+    assert one.bound.parents > 100
+    assert np.array_equal(one.bound.sum_kernel, three.bound.sum_kernel)
+    assert one.bound.mean_offset == three.bound.mean_offset
 
 
 def test_huge_lattices_build_their_blocks_one_at_a_time():

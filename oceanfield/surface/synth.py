@@ -246,7 +246,6 @@ class Ocean:
         self.fft_workers = fft_workers if fft_workers is not None else (os.cpu_count() or 1)
         self._check_memory()
         self._h0, omega, self.lattice_variance, self.loop_info, used = self._build(build_progress)
-        self.whitecap_coverage, self.fold_threshold = self._foam_threshold(fold_threshold)
         # Rotations are needed only for the q = nx² + ny² that carry energy: slot 0 stands
         # for all others (their amplitudes are zero), slots 1… for the used ones.
         used = np.flatnonzero(used)
@@ -256,7 +255,18 @@ class Ocean:
         self._omega_used = np.concatenate([[0.0], omega[used]])
         del omega
         self._index: NDArray[np.int32] | None = None  # slots per wave index (_kernels.slot_index)
-        self.bound = self._bound_waves(bound_waves)
+        # The foam threshold and the bound waves each need the amplitudes, not each other:
+        # with threads to spare they are found at once (numpy lets both run).
+        if self.fft_workers > 1 and bound_waves is not False:
+            from concurrent.futures import ThreadPoolExecutor
+
+            with ThreadPoolExecutor(max_workers=1, thread_name_prefix="oceanfield-build") as pool:
+                foam = pool.submit(self._foam_threshold, fold_threshold)
+                self.bound = self._bound_waves(bound_waves)
+                self.whitecap_coverage, self.fold_threshold = foam.result()
+        else:
+            self.whitecap_coverage, self.fold_threshold = self._foam_threshold(fold_threshold)
+            self.bound = self._bound_waves(bound_waves)
 
     @classmethod
     def from_preset(
