@@ -191,3 +191,21 @@ def test_stats_on_a_large_tile_says_its_cost_and_shows_the_build(capsys, monkeyp
     assert re.search(r"oceanfield: stats at 64² builds the ocean and measures folding and foam on 4 frames: "
                      r"about [\d.]+ (KB|MB) of memory and \d+ s", captured.err), captured.err
     assert "building the ocean" in captured.err and "64/64" in captured.err
+
+
+def test_run_as_a_program_the_collector_is_frozen_for_a_quick_exit(monkeypatch, capsys):
+    """``oceanfield …`` (argv from the command line) freezes the garbage collector when the
+    command is done, so the interpreter's exit does not scan numba's objects again (about
+    0.2 s of every farm chunk); ``main([...])`` from Python leaves it alone."""
+    import gc
+
+    gc.unfreeze()
+    try:
+        assert main(["resolve", "moderate_breeze"]) == 0
+        assert gc.get_freeze_count() == 0
+        monkeypatch.setattr(sys, "argv", ["oceanfield", "resolve", "moderate_breeze"])
+        assert main() == 0
+        assert gc.get_freeze_count() > 0
+    finally:
+        gc.unfreeze()
+    assert capsys.readouterr().out.count("seed:") == 2  # both runs printed the resolved preset
