@@ -153,35 +153,43 @@ def main(argv: Sequence[str] | None = None) -> int:
 
     Run as a program (``argv`` None: the ``oceanfield`` command, ``python -m
     oceanfield.cli``), it tunes the garbage collector for a process that loads numba and
-    then exits. Its full collections come ten times less often (numba's set-up makes
-    millions of objects, and the two full scans of them took 0.07 s of a one-frame render;
-    the young generations are still collected as usual), and once the command is done the
-    collector is frozen: the interpreter's last collections over those objects took a
-    fifth of a second more (atexit handlers, flushes and the files written are untouched;
-    only cycles still alive are left to the operating system). Called with arguments
-    (tests, scripts), it leaves the collector alone.
+    then exits. During a render its full collections come ten times less often (numba's
+    set-up makes millions of objects, and the two full scans of them took 0.07 s of a
+    one-frame render; the young generations are still collected as usual), and once any
+    command is done the collector is frozen: the interpreter's last collections over those
+    objects took a fifth of a second more (atexit handlers, flushes and the files written
+    are untouched; only cycles still alive are left to the operating system). Called with
+    arguments (tests, scripts), it leaves the collector alone.
     """
-    import gc
-
-    if argv is None:
-        young, middle, full = gc.get_threshold()
-        gc.set_threshold(young, middle, max(full, _FULL_COLLECTION_THRESHOLD))
     try:
-        return _main(argv)
+        return _main(argv, program=argv is None)
     finally:
         if argv is None:
+            import gc
+
             gc.freeze()
 
 
-#: Collections of the middle generation between two full ones, run as a program (Python's
-#: default is 10).
+#: Collections of the middle generation between two full ones in a render run as a
+#: program (Python's default is 10).
 _FULL_COLLECTION_THRESHOLD = 100
 
 
-def _main(argv: Sequence[str] | None) -> int:
+def _tune_collector(command: str) -> None:
+    """Rarer full collections for a render (see :func:`main`); other commands as they are."""
+    if command == "render":
+        import gc
+
+        young, middle, full = gc.get_threshold()
+        gc.set_threshold(young, middle, max(full, _FULL_COLLECTION_THRESHOLD))
+
+
+def _main(argv: Sequence[str] | None, *, program: bool) -> int:
     parser = build_parser()
     args = parser.parse_args(argv)
     handler = _COMMANDS[args.command]
+    if program:
+        _tune_collector(args.command)
     try:
         with _terminate_interrupts():
             return handler(args)
