@@ -170,18 +170,12 @@ def main(argv: Sequence[str] | None = None) -> int:
             gc.freeze()
 
 
-#: Collections of the middle generation between two full ones in a render run as a
-#: program (Python's default is 10).
-_FULL_COLLECTION_THRESHOLD = 100
-
-
 def _tune_collector(command: str) -> None:
     """Rarer full collections for a render (see :func:`main`); other commands as they are."""
     if command == "render":
-        import gc
+        from .render.job import collect_rarely
 
-        young, middle, full = gc.get_threshold()
-        gc.set_threshold(young, middle, max(full, _FULL_COLLECTION_THRESHOLD))
+        collect_rarely()
 
 
 def _main(argv: Sequence[str] | None, *, program: bool) -> int:
