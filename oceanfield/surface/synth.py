@@ -674,14 +674,23 @@ def _add_bound_rate(packed: NDArray[np.complex64], rate: NDArray[np.complex128],
 
 #: Memory the blocks of an amplitude build in flight at once may take together.
 _BUILD_BYTES = 1 << 30
+#: What each block in flight beyond the first adds to the build's peak, per texel of the
+#: block (measured with tracemalloc: 15.6 MB for a second 128 × 1024 block, its per-ring
+#: sums included; 36 MB at 2048), and how much that may be per texel of the lattice: the
+#: build's peak (38.5 bytes a texel at 1024² on one thread, 27.4 at 2048²) then stays
+#: below the first frame's (about 45; the budget is 48).
+_BLOCK_BYTES_PER_TEXEL = 120
+_EXTRA_BUILD_BYTES_PER_TEXEL = 12
 
 
 def _build_threads(workers: int, n: int, rings: int) -> int:
     """Threads that build blocks of amplitude rows at once: ``workers``, fewer where the
-    blocks in flight (a block's float64 work arrays, about 40 a texel, and its two
-    per-ring sums) would take more than ``_BUILD_BYTES``."""
-    block_bytes = 8 * (40 * _BLOCK_ROWS * n + 2 * rings)
-    return max(1, min(workers, _BUILD_BYTES // block_bytes))
+    blocks in flight would take more than ``_BUILD_BYTES`` in all, or raise the build's
+    peak memory above the first frame's (a block is a large share of a small lattice:
+    one thread up to 1024², two from 2048²)."""
+    block_bytes = _BLOCK_BYTES_PER_TEXEL * _BLOCK_ROWS * n + 16 * rings
+    extra = (_EXTRA_BUILD_BYTES_PER_TEXEL * n * n) // block_bytes
+    return max(1, min(workers, _BUILD_BYTES // block_bytes, 1 + extra))
 
 
 def _in_order(function: Callable, items: list, threads: int):
