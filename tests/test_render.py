@@ -533,13 +533,18 @@ def test_looping_sequence_repeats_after_its_period(tmp_path, preset_file):
 @pytest.mark.parametrize(
     ("resolution", "frames", "cores", "memory", "expected"),
     [
-        (256, 96, 2, None, 2),      # small frames: a process per core (measured faster on 2 cores)
-        (512, 48, 2, None, 2),
-        (1024, 24, 2, None, 1),     # one process's threads fill 2 cores (measured faster)
+        # measured on 2 cores (render.job's table): short jobs on one process, long ones on two
+        (256, 96, 2, None, 1),
+        (256, 480, 2, None, 2),
+        (512, 48, 2, None, 1),
+        (512, 240, 2, None, 2),
+        (1024, 24, 2, None, 1),
+        (1024, 96, 2, None, 2),
         (2048, 8, 2, None, 1),
-        (512, 200, 16, None, 16),
-        (1024, 200, 16, None, 4),   # four threads a worker
-        (2048, 200, 16, None, 1),
+        (2048, 32, 2, None, 1),
+        (512, 200, 16, None, 3),    # 40 + 9·4 = 76 frames a further worker
+        (1024, 200, 16, None, 5),   # 49 frames a further worker
+        (2048, 200, 16, None, 5),   # 42.25
         (512, 10, 16, None, 1),     # too few frames to repay a second process's start
         (1024, 200, 16, 2 * 72 * 1024**2, 2),  # memory for two workers only
     ],

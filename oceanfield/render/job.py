@@ -404,15 +404,17 @@ def render(plan: RenderPlan, *, workers: int | None = None, scheduler: str | Any
     return summary
 
 
-#: Texels of a frame that keep one thread of its FFTs, kernels and EXR compression busy;
-#: a frame smaller than cores × this leaves threads waiting on each other, and separate
-#: worker processes (one thread each) fill the cores instead. Measured on 2 shared cores
-#: (best of two runs, 1 vs 2 workers): 256² × 96 frames 6.2 vs 5.0 s, 512² × 48 10.0 vs
-#: 7.4 s, 1024² × 24 14.1 vs 20.0 s, 2048² × 8 25.3 vs 33.1 s.
-_TEXELS_PER_THREAD = 512 * 512
-#: A worker process pays its start (interpreter, imports, kernel cache: about a second)
-#: once: give each at least this many frames.
-_FRAMES_PER_WORKER = 8
+#: Frames that repay one more local worker process, for a 1024² frame and for the
+#: (1024/N)² part that grows as frames shrink: a worker pays its start (interpreter,
+#: imports, kernel cache, its own ocean: about a second) once, and gains on every frame
+#: because separate processes keep the cores busier than one process's threads do.
+#: Fitted to renders of moderate_breeze on 2 cores (displacement + normal + foam, ZIP
+#: half; 1 vs 2 workers, seconds, interleaved): 256² × 96 frames 1.55 / 1.98, × 480
+#: 7.19 / 5.86; 512² × 48 2.01 / 2.42, × 240 9.65 / 7.75; 1024² × 24 3.21 / 3.80, × 96
+#: 11.97 / 10.90; 2048² × 8 4.69 / 5.71, × 32 14.46 / 14.76. The second worker breaks
+#: even at about 190, 83, 49 and 42 frames, which 40 + 9 (1024/N)² follows.
+_FRAMES_PER_EXTRA_WORKER = 40.0
+_SMALL_FRAME_FRAMES = 9.0
 #: Memory one worker needs per texel: a frame (32 B), h0 and ω (12 B) and two encoded
 #: frames in flight (half floats of seven channels, 14 B each).
 _WORKER_BYTES_PER_TEXEL = 72
@@ -421,16 +423,16 @@ _WORKER_BYTES_PER_TEXEL = 72
 def default_workers(plan: RenderPlan, *, cores: int | None = None, memory: int | None = None) -> int:
     """Local worker processes for a job when ``--workers`` is not given.
 
-    One process uses every core for its FFTs, kernels and EXR compression; separate
-    workers only pay where a frame is too small to keep ``cores`` threads busy
-    (:data:`_TEXELS_PER_THREAD` texels each), the job has frames enough to repay their
-    start, and the memory (``memory`` bytes, default: what is free now) holds them.
+    One more worker for every ``40 + 9 (1024/N)²`` frames of an N² job (a second worker's
+    start is repaid only by enough frames; see :data:`_FRAMES_PER_EXTRA_WORKER`), at most
+    ``cores``, and no more than the memory (``memory`` bytes, default: what is free now)
+    holds. Each worker gets cores/workers threads.
     """
     cores = cores or os.cpu_count() or 1
-    texels = plan.preset.tile.resolution ** 2
-    useful_threads = max(1, texels // _TEXELS_PER_THREAD)
-    count = max(1, cores // useful_threads)
-    count = min(count, max(1, len(plan.frames) // _FRAMES_PER_WORKER))
+    n = plan.preset.tile.resolution
+    texels = n * n
+    per_worker = _FRAMES_PER_EXTRA_WORKER + _SMALL_FRAME_FRAMES * (1024.0 / n) ** 2
+    count = max(1, min(cores, 1 + int(len(plan.frames) // per_worker)))
     if memory is None:
         from ..surface.synth import available_memory
 
