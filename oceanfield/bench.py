@@ -210,6 +210,10 @@ def _timed_run(command: list[str], env: dict[str, str] | None = None) -> float:
     return elapsed
 
 
+#: Runs of each timed fresh-process render (their median counts).
+_PROCESS_RUNS = 3
+
+
 def render_benchmark(resolution: int, frames: int, cores: int, *, cold: bool = True) -> dict[str, float]:
     """A whole render against its floors: bare FFTs plus bare OpenEXR writes of the same data.
 
@@ -220,7 +224,8 @@ def render_benchmark(resolution: int, frames: int, cores: int, *, cold: bool = T
     temporary, no checks); the FFT floor is the four complex inverse transforms of every
     frame on every core. Start-up: a one-frame job of the same size, warm (kernels
     cached) against that frame's own compute and write, and cold (an empty kernel cache,
-    as on the first run after install).
+    as on the first run after install). The render and the warm job are each the median
+    of three runs.
     """
     import shutil
     import tempfile
@@ -263,9 +268,12 @@ def render_benchmark(resolution: int, frames: int, cores: int, *, cold: bool = T
         frame_one = time_call(lambda: ocean.frame(0.04 * next(counter), buffer=buffer), repeat=5)
         del ocean, buffer, fields
         workers = default_workers(plan_render(preset, root=root), cores=cores)
-        end_to_end = _timed_run(_render_command(root / "job", resolution, frames))
+        # Medians of three fresh processes: one run of a few seconds drifts with the machine.
+        end_to_end = statistics.median(_timed_run(_render_command(root / "job", resolution, frames))
+                                       for _ in range(_PROCESS_RUNS))
         _timed_run(_render_command(root / "one", resolution, 1))  # kernels cached for what follows
-        one_frame = _timed_run(_render_command(root / "one", resolution, 1))
+        one_frame = statistics.median(_timed_run(_render_command(root / "one", resolution, 1))
+                                      for _ in range(_PROCESS_RUNS))
         cold_one = float("nan")
         if cold:
             env = dict(os.environ, NUMBA_CACHE_DIR=str(root / "empty-kernel-cache"))
