@@ -14,7 +14,7 @@ import numpy as np
 
 from oceanfield.physics.seastate import SeaState, wind_sea
 from oceanfield.preset.schema import load_preset
-from oceanfield.preset.stats import expected_folded_share, fold_warning
+from oceanfield.preset.stats import expected_folded_share, fold_warning, summed_surface_shares
 from oceanfield.surface.bands import Band, BandStack
 from oceanfield.surface.folding import folded_share_estimate, folded_share_of_bands
 from oceanfield.surface.tile import Tile
@@ -29,19 +29,27 @@ def test_summed_bands_fold_as_their_summed_covariance_predicts():
     lateral = 5.0
     estimate = folded_share_of_bands(sea, bands, lateral)
     alone = folded_share_estimate(sea, bands[0].tile, lateral, wavenumber_range=(0.0, 1.5))
-    measured = []
+    measured, foamed, modelled = [], [], []
     for seed in range(3):
         stack = BandStack(sea, bands, seed=seed, lateral_factor=lateral, fold_threshold=0.0, bound_waves=False)
+        modelled.append(summed_surface_shares(stack.oceans, 0.0, stack.oceans[0].foam_ramp))  # what `stats` reports
         for i in range(3):
             for origin in ((0.0, 0.0), (100.0, 60.0)):
                 # two of the small band's tiles at its own spacing: every wave of both bands
                 fields = stack.composite(5.88 * i / 3, extent=2 * small, resolution=256, origin=origin)
                 measured.append(float(np.mean(fields.jacobian < 0.0)))
+                foamed.append(float(np.mean(fields.foam > 0.5)))
     share = float(np.mean(measured))
     # 18 samples of a share near 0.09 scatter by about ±0.002 (standard error, measured);
     # 15 % of the share allows for the estimate's own sampling error (±0.0013) and more
     assert abs(share - estimate) <= 0.15 * estimate, (share, estimate)
     assert share > 3.0 * alone  # band 0 alone misses most of the folding
+    # The shares `stats` reports for a banded preset (Gaussian model of the summed Jacobian,
+    # from each stack's realised amplitudes) against the same frames, to the same 15 %.
+    folded_model = float(np.mean([m[0] for m in modelled]))
+    foam_model = float(np.mean([m[1] for m in modelled]))
+    assert abs(share - folded_model) <= 0.15 * folded_model, (share, folded_model)
+    assert abs(float(np.mean(foamed)) - foam_model) <= 0.15 * foam_model, (np.mean(foamed), foam_model)
 
 
 def test_a_banded_preset_warns_of_folding_its_first_band_alone_would_not_show():
@@ -58,3 +66,14 @@ def test_one_band_is_the_single_tile_estimate():
     preset = load_preset("moderate_breeze", overrides=("surface.lateral_factor=4", "tile.resolution=128"))
     tile = Tile(preset.tile.size_m, 128)
     assert expected_folded_share(preset) == folded_share_estimate(preset.sea_state(), tile, 4.0)
+
+
+def test_stats_of_a_banded_preset_report_the_summed_surface():
+    """`stats` of open_ocean_horizon: the foam share is the wind's whitecap share the bands'
+    shared threshold was solved for (band 0's frames alone showed none of it), and the
+    folded share is the summed surface's."""
+    from oceanfield.preset.stats import sea_report
+
+    report = sea_report(load_preset("open_ocean_horizon", overrides=("surface.lateral_factor=4",)))
+    assert abs(report["foam_surface_share"] - report["whitecap_coverage"]) <= 1e-3 * report["whitecap_coverage"] + 1e-6
+    assert abs(report["folded_surface_share"] - 0.120) <= 0.01  # the expected share above, to its sampling

@@ -16,7 +16,7 @@ from typing import Any
 
 import numpy as np
 
-__all__ = ["sea_report", "format_sea_report", "fold_fraction", "surface_shares", "fold_warning",
+__all__ = ["sea_report", "format_sea_report", "fold_fraction", "surface_shares", "summed_surface_shares", "fold_warning",
            "expected_folded_share"]
 
 _FOLD_SAMPLES = 4  # frames spread over a peak period, averaged for the folded fraction
@@ -41,6 +41,29 @@ def surface_shares(ocean, *, times: list[float] | None = None) -> tuple[float, f
         folded.append(float(np.mean(fields.jacobian < 0.0)))
         foamy.append(float(np.mean(fields.foam > 0.5)))
     return float(np.mean(folded)), float(np.mean(foamy))
+
+
+def summed_surface_shares(oceans, fold_threshold: float, foam_ramp: float) -> tuple[float, float]:
+    """(folded share, foam share) of the surface several bands make together.
+
+    The summed surface's Jacobian comes from the bands' summed derivatives, whose
+    covariances add (independent amplitudes); the shares are those of the Gaussian model
+    of that Jacobian (``surface.whitecaps``, which the bands' shared fold threshold is
+    solved on): J < 0, and foam above ½, i.e. J < threshold − ramp/2. No frames: no band's
+    own frames show the sum.
+    """
+    from ..surface import whitecaps
+
+    covariance = sum(
+        ocean.jacobian_covariance if ocean.jacobian_covariance is not None
+        else whitecaps.jacobian_covariance(ocean.amplitudes, ocean.tile.dk, ocean.lateral_factor)
+        for ocean in oceans
+    )
+    if not np.any(np.diag(covariance) > 0.0):  # no lateral displacement: nothing folds or foams
+        return 0.0, 0.0
+    folded = whitecaps.jacobian_share_below(covariance, 0.0)
+    foamy = whitecaps.jacobian_share_below(covariance, fold_threshold - 0.5 * foam_ramp) if math.isfinite(fold_threshold) else 0.0
+    return folded, foamy
 
 
 def fold_fraction(ocean, *, times: list[float] | None = None) -> float:
@@ -122,8 +145,11 @@ def sea_report(preset, *, build_progress=None) -> dict[str, Any]:
         oceans = [Ocean.from_preset(preset, velocity=False, foam_memory=0.0, build_progress=build_progress)]
     ocean = oceans[0]
     tile = ocean.tile
-    folded, foamy = surface_shares(ocean)
     threshold = ocean.fold_threshold
+    if preset.bands.active:  # the surface seen is the bands' sum, not band 0
+        folded, foamy = summed_surface_shares(oceans, threshold, ocean.foam_ramp)
+    else:
+        folded, foamy = surface_shares(ocean)
     banding = _band_rows(sea, _report_bands(preset), preset)
     captured = ocean.lattice_variance / total.m0
     shortest = 2.0 * math.pi / tile.nyquist
@@ -264,9 +290,10 @@ def format_sea_report(report: dict[str, Any]) -> str:
         f"height: Hs {report['total']['hs_m']:.2f} m asked, {tile['realised_hs_m']:.2f} m in this tile "
         f"(seed {tile['seed']}, wave heights {tile['wave_heights'].replace('_', ' ')})"
     )
+    summed = " (the bands' summed surface, from its Jacobian statistics)" if report.get("bands") else ""
     lines.append(
         f"folding: {report['folded_surface_share'] * 100:.2f} % of the surface at lateral factor "
-        f"{report['lateral_factor']:g}"
+        f"{report['lateral_factor']:g}{summed}"
     )
     lines.append(_foam_line(report))
     if report.get("bands"):
