@@ -198,15 +198,18 @@ def _write_job(job: FileJob) -> Path:
 
 
 _FILE_THREADS: list[ThreadPoolExecutor] = []
+_FILE_THREADS_LOCK = threading.Lock()
 if hasattr(os, "register_at_fork"):  # a forked child has none of its parent's threads
     os.register_at_fork(after_in_child=_FILE_THREADS.clear)
 
 
 def _file_threads() -> ThreadPoolExecutor:
-    """The process's file-writing threads (made on first use; a frame has a handful of files)."""
-    if not _FILE_THREADS:
-        _FILE_THREADS.append(ThreadPoolExecutor(max_workers=4, thread_name_prefix="oceanfield-file"))
-    return _FILE_THREADS[0]
+    """The process's file-writing threads (made on first use; a frame has a handful of files,
+    and cluster tasks on threads of one process share them)."""
+    with _FILE_THREADS_LOCK:
+        if not _FILE_THREADS:
+            _FILE_THREADS.append(ThreadPoolExecutor(max_workers=4, thread_name_prefix="oceanfield-file"))
+        return _FILE_THREADS[0]
 
 
 def render_frame_files(plan: RenderPlan, frame: int, fields, png_scales: dict[str, float] | None = None) -> list[Path]:
