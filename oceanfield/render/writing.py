@@ -199,8 +199,17 @@ def _write_job(job: FileJob) -> Path:
 
 _FILE_THREADS: list[ThreadPoolExecutor] = []
 _FILE_THREADS_LOCK = threading.Lock()
-if hasattr(os, "register_at_fork"):  # a forked child has none of its parent's threads
-    os.register_at_fork(after_in_child=_FILE_THREADS.clear)
+
+
+def _forget_file_threads() -> None:
+    """In a forked child: none of the parent's threads exist there, nor its lock's holder."""
+    global _FILE_THREADS_LOCK
+    _FILE_THREADS_LOCK = threading.Lock()
+    _FILE_THREADS.clear()
+
+
+if hasattr(os, "register_at_fork"):
+    os.register_at_fork(after_in_child=_forget_file_threads)
 
 
 def _file_threads() -> ThreadPoolExecutor:
