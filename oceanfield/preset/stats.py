@@ -54,11 +54,7 @@ def summed_surface_shares(oceans, fold_threshold: float, foam_ramp: float) -> tu
     """
     from ..surface import whitecaps
 
-    covariance = sum(
-        ocean.jacobian_covariance if ocean.jacobian_covariance is not None
-        else whitecaps.jacobian_covariance(ocean.amplitudes, ocean.tile.dk, ocean.lateral_factor)
-        for ocean in oceans
-    )
+    covariance = whitecaps.summed_jacobian_covariance(oceans)
     if not np.any(np.diag(covariance) > 0.0):  # no lateral displacement: nothing folds or foams
         return 0.0, 0.0
     folded = whitecaps.jacobian_share_below(covariance, 0.0)

@@ -396,7 +396,7 @@ class BandStack:
         first = self.oceans[0]
         if first.whitecap_coverage is None:
             return
-        cov = sum(ocean.jacobian_covariance for ocean in self.oceans)  # each computed once, by its Ocean
+        cov = whitecaps.summed_jacobian_covariance(self.oceans)  # each computed once, by its Ocean
         threshold = whitecaps.fold_threshold_for_coverage(cov, first.whitecap_coverage, first.foam_ramp)
         for ocean in self.oceans:
             ocean.fold_threshold = threshold

@@ -31,7 +31,7 @@ from numpy.typing import NDArray
 
 from ..physics._brent import bracketed_root
 
-__all__ = ["jacobian_covariance", "jacobian_share_below", "fold_threshold_for_coverage"]
+__all__ = ["jacobian_covariance", "summed_jacobian_covariance", "jacobian_share_below", "fold_threshold_for_coverage"]
 
 _BLOCK_ROWS = 128
 #: Standard-normal grid over ±8 σ in steps of 0.05 σ for the two diagonal derivatives:
@@ -80,6 +80,18 @@ def _conditional_model(cov: NDArray[np.float64]):
     mean = beta[0] * a + beta[1] * b
     spread = math.sqrt(max(cov[2, 2] - float(beta @ cov[:2, 2]), 0.0))
     return (1.0 + a) * (1.0 + b), mean, max(spread, 1e-12), weight
+
+
+def summed_jacobian_covariance(oceans) -> NDArray[np.float64]:
+    """The covariance of the summed surface of several tiles (a band stack's bands): their
+    derivatives add and their amplitudes are independent, so their covariances add. Each
+    Ocean's own (``jacobian_covariance``, kept when its foam threshold was solved) is used
+    when it has one, else computed from its amplitudes."""
+    return sum(
+        ocean.jacobian_covariance if ocean.jacobian_covariance is not None
+        else jacobian_covariance(ocean.amplitudes, ocean.tile.dk, ocean.lateral_factor)
+        for ocean in oceans
+    )
 
 
 def jacobian_share_below(cov: NDArray[np.float64], threshold: float, *, _model=None) -> float:
