@@ -331,26 +331,24 @@ def _check_out(args) -> None:
 
 def run_probe_command(args) -> int:
     """``oceanfield probe``: the surface above points, per frame, as CSV or JSON."""
-    _check_out(args)
-    preset = _load(args)
-    scene = preset.scene if args.scene_units else None
-    probes = [parse_probe(text, i + 1, scene) for i, text in enumerate(args.at)]
-    _unique_names("--at", [p.name for p in probes])
-    frames, times = _frames_and_times(preset, args.frames)
-    columns, rows, _, worst = probe_table(preset, _ocean(preset), probes, frames, times)
-    _emit(args, columns, rows, {**_metadata(preset, frames), "worst_residual_m": worst})
-    return 0
+    return _run_table_command(args, "--at", args.at, parse_probe, probe_table)
 
 
 def run_float_command(args) -> int:
     """``oceanfield float``: floating bodies' position and rotation per frame, as CSV or JSON."""
+    return _run_table_command(args, "--body", args.body, parse_body, body_table)
+
+
+def _run_table_command(args, option: str, texts: Sequence[str], parse, table) -> int:
+    """A per-frame table of things placed on the sea (probes or bodies): parse each ``option``
+    text, check their names, tabulate them over the frames and write the table."""
     _check_out(args)
     preset = _load(args)
     scene = preset.scene if args.scene_units else None
-    bodies = [parse_body(text, i + 1, scene) for i, text in enumerate(args.body)]
-    _unique_names("--body", [b.name for b in bodies])
+    items = [parse(text, i + 1, scene) for i, text in enumerate(texts)]
+    _unique_names(option, [item.name for item in items])
     frames, times = _frames_and_times(preset, args.frames)
-    columns, rows, _, worst = body_table(preset, _ocean(preset), bodies, frames, times)
+    columns, rows, _, worst = table(preset, _ocean(preset), items, frames, times)
     _emit(args, columns, rows, {**_metadata(preset, frames), "worst_residual_m": worst})
     return 0
 
