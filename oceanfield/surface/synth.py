@@ -632,16 +632,14 @@ class Ocean:
         """
         from .modes import WaveModes
 
-        omega, _ = self._omega_by_q()
         ny, nx = self.tile.wave_indices()
-        q = np.minimum(nx * nx + ny * ny, omega.size - 1)
         keep = self._h0 != 0
         kx = np.broadcast_to(nx * self.tile.dk, keep.shape)[keep]
         ky = np.broadcast_to(ny * self.tile.dk, keep.shape)[keep]
         height = 2.0 * self._h0[keep].astype(np.complex128)
         k = np.hypot(kx, ky)
         lateral = 1j * self.lateral_factor * height
-        linear = WaveModes(kx, ky, omega[q[keep]], height, lateral * kx / k, lateral * ky / k)
+        linear = WaveModes(kx, ky, self.frequencies[keep], height, lateral * kx / k, lateral * ky / k)
         if self.bound is None:
             return linear
         # the bound waves the frames add: one mode per pair of parents and sign (surface.bound)
