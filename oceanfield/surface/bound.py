@@ -108,8 +108,11 @@ class BoundWaves:
         frame: Aᵢ = 2 h0(kᵢ), so that η₁ = Re Σ A e^{i(k·x − ωt)}).
     slot : ndarray of int32
         Each parent's slot in the frame's rotation table (e^{−iωt} per |k|²).
-    sum_kernel, difference_kernel : ndarray (P, P)
-        L⁺ and L⁻ in 1/m (the Eulerian kernels less what lateral displacement holds).
+    pair_kernel : ndarray of float64, P(P + 1)
+        L⁺ and L⁻ in 1/m (the Eulerian kernels less what lateral displacement holds) of
+        each unordered pair i ≤ j, interleaved (L⁺ᵢⱼ, L⁻ᵢⱼ), row i after row i − 1: the
+        order the pair sum reads them, half the memory of the two (P, P) matrices
+        (:attr:`sum_kernel`, :attr:`difference_kernel` rebuild those).
     mean_offset : float
         Metres added to the mean level for the waves left out of the pairs.
     size : int
@@ -129,8 +132,7 @@ class BoundWaves:
     ny: NDArray[np.int64]
     nx: NDArray[np.int64]
     slot: NDArray[np.int32]
-    sum_kernel: NDArray[np.float64]
-    difference_kernel: NDArray[np.float64]
+    pair_kernel: NDArray[np.float64]
     mean_offset: float
     size: int
     dk: float
@@ -142,6 +144,16 @@ class BoundWaves:
     def parents(self) -> int:
         """Number of parent waves P."""
         return int(self.ny.size)
+
+    @property
+    def sum_kernel(self) -> NDArray[np.float64]:
+        """L⁺ as a symmetric (P, P) matrix (a new array; the frames read :attr:`pair_kernel`)."""
+        return _unpacked(self.pair_kernel[0::2], self.parents)
+
+    @property
+    def difference_kernel(self) -> NDArray[np.float64]:
+        """L⁻ as a symmetric (P, P) matrix (a new array; the frames read :attr:`pair_kernel`)."""
+        return _unpacked(self.pair_kernel[1::2], self.parents)
 
     def wave_indices(self) -> tuple[NDArray[np.int64], NDArray[np.int64]]:
         """(ny, nx) of the small spectrum's entries in FFT layout, as column and row."""
@@ -159,10 +171,7 @@ class BoundWaves:
         from ._bound_kernels import bound_spectrum_kernel
 
         out = np.empty((self.size, self.size), dtype=np.complex128)
-        bound_spectrum_kernel(
-            h0, self.slot, rotation, self.ny, self.nx,
-            self.sum_kernel, self.difference_kernel, self.mean_offset, out,
-        )
+        bound_spectrum_kernel(h0, self.slot, rotation, self.ny, self.nx, self.pair_kernel, self.mean_offset, out)
         return out
 
     def modes(self, h0: NDArray[np.complex64], omega: NDArray[np.float64], *, share: float = 1.0):
@@ -181,17 +190,18 @@ class BoundWaves:
         n = h0.shape[0]
         a = 2.0 * h0[self.ny % n, self.nx % n].astype(np.complex128)
         w = omega[self.slot]
-        i, j = np.triu_indices(self.parents)
+        i, j = np.triu_indices(self.parents)  # the order of pair_kernel
+        plus, minus = self.pair_kernel[0::2], self.pair_kernel[1::2]
         weight = np.where(i == j, 1.0, 2.0)
         off = i != j
         io, jo = i[off], j[off]
-        mean = float(np.sum(np.diagonal(self.difference_kernel) * np.abs(a) ** 2)) + self.mean_offset
+        mean = float(np.sum(minus[~off] * np.abs(a) ** 2)) + self.mean_offset
         kx = np.concatenate([self.nx[i] + self.nx[j], self.nx[io] - self.nx[jo], [0]]) * self.dk
         ky = np.concatenate([self.ny[i] + self.ny[j], self.ny[io] - self.ny[jo], [0]]) * self.dk
         frequency = np.concatenate([w[i] + w[j], w[io] - w[jo], [0.0]])
         height = np.concatenate([
-            weight * self.sum_kernel[i, j] * a[i] * a[j],
-            2.0 * self.difference_kernel[io, jo] * a[io] * np.conj(a[jo]),
+            weight * plus * a[i] * a[j],
+            2.0 * minus[off] * a[io] * np.conj(a[jo]),
             [mean],
         ])
         if share < 1.0:
@@ -211,8 +221,7 @@ class BoundWaves:
         from ._bound_kernels import bound_rate_kernel
 
         out = np.empty((self.size, self.size), dtype=np.complex128)
-        bound_rate_kernel(h0, self.slot, rotation, omega, self.ny, self.nx,
-                          self.sum_kernel, self.difference_kernel, out)
+        bound_rate_kernel(h0, self.slot, rotation, omega, self.ny, self.nx, self.pair_kernel, out)
         return out
 
     def add_to(self, packed: NDArray[np.complex64], h0: NDArray[np.complex64],
@@ -302,8 +311,7 @@ def bound_waves(
         ny=ny,
         nx=nx,
         slot=slot,
-        sum_kernel=sum_kernel,
-        difference_kernel=difference_kernel,
+        pair_kernel=_packed(sum_kernel, difference_kernel),
         mean_offset=mean_offset,
         size=4 * max_index + 2,
         dk=dk,
@@ -311,6 +319,24 @@ def bound_waves(
         parent_share=float(variance.sum() / max(lattice_variance, 1e-300)),
         harmonic_ratio=float(peak_harmonic) * stats.hs / 2.0,
     )
+
+
+def _packed(plus: NDArray[np.float64], minus: NDArray[np.float64]) -> NDArray[np.float64]:
+    """The upper triangles (i ≤ j) of L⁺ and L⁻ interleaved, row by row (``pair_kernel``)."""
+    i, j = np.triu_indices(plus.shape[0])
+    out = np.empty(2 * i.size)
+    out[0::2] = plus[i, j]
+    out[1::2] = minus[i, j]
+    return out
+
+
+def _unpacked(upper: NDArray[np.float64], p: int) -> NDArray[np.float64]:
+    """The symmetric (P, P) matrix of a packed upper triangle."""
+    i, j = np.triu_indices(p)
+    full = np.empty((p, p))
+    full[i, j] = upper
+    full[j, i] = upper
+    return full
 
 
 def _kernels_by_rows(kx: NDArray[np.float64], ky: NDArray[np.float64], depth: float,
