@@ -61,6 +61,44 @@ def test_kernels_match_their_numpy_references(depth):
     np.testing.assert_allclose(packed, expected, rtol=0, atol=1e-6)
 
 
+@pytest.mark.parametrize("depth", [math.inf, 15.0])
+def test_packed_pair_kernels_are_the_pair_matrices_upper_triangle_to_the_bit(depth):
+    """What the frames read (``pair_kernel``: i ≤ j, L⁺ and L⁻ interleaved, built a block of
+    rows at a time) is exactly the upper triangle of :func:`pair_kernels`'s matrices."""
+    ocean = Ocean(_sea(depth=depth), Tile(200.0, 64), seed=3, bound_waves=False)
+    waves = bound.bound_waves(ocean.sea_state, ocean.tile, ocean._h0, ocean._slots, ocean.lattice_variance,
+                              lateral_factor=0.8)
+    assert waves.parents > 100  # several blocks of rows at bound._PAIR_BLOCK
+    assert waves.parents * waves.parents > 2 * bound._PAIR_BLOCK
+    kx, ky = waves.nx * ocean.tile.dk, waves.ny * ocean.tile.dk
+    l_plus, l_minus = pair_kernels(kx, ky, depth=depth, lateral_factor=0.8)
+    i, j = np.triu_indices(waves.parents)
+    assert waves.pair_kernel.shape == (2 * i.size,)
+    assert np.array_equal(waves.pair_kernel[0::2], l_plus[i, j])
+    assert np.array_equal(waves.pair_kernel[1::2], l_minus[i, j])
+
+
+def test_bound_waves_of_1024_parents_build_in_little_memory():
+    """The pair coefficients of 1024 parents are built without the formula's temporaries
+    over all pairs at once (they took ~90 MB): the build's peak stays within the packed
+    result (8.4 MB) plus the two (P, P) kernel matrices (16.8 MB) and a few MB of blocks
+    (measured: 26.7 MB)."""
+    import tracemalloc
+
+    ocean = Ocean(_sea(), Tile(400.0, 512), seed=3, bound_waves=False)
+    args = (ocean.sea_state, ocean.tile, ocean._h0, ocean._slots, ocean.lattice_variance)
+    bound.bound_waves(*args, lateral_factor=1.0)  # first-use imports and caches are not the build's
+    tracemalloc.start()
+    try:
+        waves = bound.bound_waves(*args, lateral_factor=1.0)
+        kept, peak = tracemalloc.get_traced_memory()
+    finally:
+        tracemalloc.stop()
+    assert waves.parents == bound.MAX_PARENTS
+    assert kept < 9.5e6
+    assert peak < 30e6
+
+
 def test_pair_sum_equals_the_second_order_sum_in_space():
     """The bound height on the lattice equals the double sum over ordered pairs of parents
     Σᵢⱼ Re[L⁺ AᵢAⱼ e^{i(kᵢ+kⱼ)·x} + L⁻ AᵢAⱼ* e^{i(kᵢ−kⱼ)·x}] + the left-out mean, evaluated

@@ -242,10 +242,42 @@ def pair_kernels(
     if kernels is None:
         kernels = _kernels_by_rows(kx, ky, depth)
     b_plus, b_minus = kernels
-    k = np.hypot(kx, ky)
-    cosine = (kx[:, None] * kx[None, :] + ky[:, None] * ky[None, :]) / (k[:, None] * k[None, :])
-    lateral = 0.25 * lateral_factor * (k[:, None] + k[None, :]) * cosine
+    lateral = _lateral_part(kx, ky, slice(None), lateral_factor)
     return np.ascontiguousarray(b_plus - lateral), np.ascontiguousarray(b_minus + lateral)
+
+
+def _lateral_part(kx: NDArray[np.float64], ky: NDArray[np.float64], rows: slice,
+                  lateral_factor: float) -> NDArray[np.float64]:
+    """λ(kᵢ + kⱼ)(k̂ᵢ·k̂ⱼ)/4 for the pairs of rows ``rows`` with every wave j."""
+    k = np.hypot(kx, ky)
+    cosine = (kx[rows, None] * kx[None, :] + ky[rows, None] * ky[None, :]) / (k[rows, None] * k[None, :])
+    return 0.25 * lateral_factor * (k[rows, None] + k[None, :]) * cosine
+
+
+#: Pairs whose kernels are packed at once (memory only).
+_PAIR_BLOCK = 1 << 15
+
+
+def _packed_pair_kernels(kx: NDArray[np.float64], ky: NDArray[np.float64],
+                         kernels: tuple[NDArray[np.float64], NDArray[np.float64]],
+                         lateral_factor: float) -> NDArray[np.float64]:
+    """:func:`pair_kernels` packed as ``BoundWaves.pair_kernel`` (the pairs i ≤ j, L⁺ and L⁻
+    interleaved, row by row), a block of rows at a time: the same numbers without the two
+    (P, P) matrices."""
+    b_plus, b_minus = kernels
+    p = kx.size
+    out = np.empty(p * (p + 1))
+    rows = max(1, _PAIR_BLOCK // max(p, 1))
+    at = 0
+    for start in range(0, p, rows):
+        block = slice(start, min(start + rows, p))
+        lateral = _lateral_part(kx, ky, block, lateral_factor)
+        upper = np.arange(p)[None, :] >= np.arange(block.start, block.stop)[:, None]
+        count = int(np.count_nonzero(upper))
+        out[2 * at:2 * (at + count):2] = (b_plus[block] - lateral)[upper]
+        out[2 * at + 1:2 * (at + count):2] = (b_minus[block] + lateral)[upper]
+        at += count
+    return out
 
 
 def bound_waves(
@@ -298,11 +330,11 @@ def bound_waves(
     kx, ky = nx * dk, ny * dk
     depth = sea_state.depth
     kernels = bound_wave_kernel_matrix(kx, ky, depth=depth)
-    sum_kernel, difference_kernel = pair_kernels(kx, ky, depth=depth, lateral_factor=lateral_factor,
-                                                 kernels=kernels)
+    prediction = second_order_statistics(kx, ky, variance, depth=depth, kernels=kernels)
+    pair_kernel = _packed_pair_kernels(kx, ky, kernels, lateral_factor)
+    del kernels  # (P, P) each: 16 MB at 1024 parents, no longer needed
     slot = slots[nx * nx + ny * ny].astype(np.int32)
     mean_offset = _left_out_mean(tile, h0, ny, nx, lateral_factor, depth)
-    prediction = second_order_statistics(kx, ky, variance, depth=depth, kernels=kernels)
     stats = sea_state.statistics()
     kp = 2.0 * math.pi / stats.peak_wavelength
     peak_harmonic, _ = bound_wave_kernels(kp, 0.0, kp, 0.0, depth=depth)
@@ -311,7 +343,7 @@ def bound_waves(
         ny=ny,
         nx=nx,
         slot=slot,
-        pair_kernel=_packed(sum_kernel, difference_kernel),
+        pair_kernel=pair_kernel,
         mean_offset=mean_offset,
         size=4 * max_index + 2,
         dk=dk,
@@ -319,15 +351,6 @@ def bound_waves(
         parent_share=float(variance.sum() / max(lattice_variance, 1e-300)),
         harmonic_ratio=float(peak_harmonic) * stats.hs / 2.0,
     )
-
-
-def _packed(plus: NDArray[np.float64], minus: NDArray[np.float64]) -> NDArray[np.float64]:
-    """The upper triangles (i ≤ j) of L⁺ and L⁻ interleaved, row by row (``pair_kernel``)."""
-    i, j = np.triu_indices(plus.shape[0])
-    out = np.empty(2 * i.size)
-    out[0::2] = plus[i, j]
-    out[1::2] = minus[i, j]
-    return out
 
 
 def _unpacked(upper: NDArray[np.float64], p: int) -> NDArray[np.float64]:
