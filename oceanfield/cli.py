@@ -366,9 +366,15 @@ def _cmd_compile(args: argparse.Namespace) -> int:
         except OSError as error:
             raise UserError(f"--cache-dir: cannot create {folder!r} ({error.strerror or error})") from None
         os.environ["NUMBA_CACHE_DIR"] = folder
+    import time
+
+    from .io.exr import half_converter_ready
     from .surface.warmup import compile_kernels
 
     seconds = compile_kernels()
+    started = time.perf_counter()
+    half_converter_ready()  # the EXR writer's half-float converter (io._half)
+    seconds += time.perf_counter() - started
     where = os.environ.get("NUMBA_CACHE_DIR") or "numba's cache beside the package (__pycache__)"
     print(f"kernels compiled and cached in {where} ({seconds:.1f} s)")
     if args.cache_dir is not None:

@@ -167,6 +167,7 @@ def test_the_installed_command_runs():
 def test_compile_command_warms_the_kernel_cache(capsys):
     """`oceanfield compile` runs every frame path (here the kernels are cached already)."""
     assert main(["compile"]) == 0
+    assert "oceanfield.io._half" in sys.modules  # the EXR writer's half converter too
     out = capsys.readouterr().out
     assert out.startswith("kernels compiled and cached in ")
 

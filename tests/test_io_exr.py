@@ -495,3 +495,63 @@ def test_strided_views_convert_like_numpy(negate, divisor):
 def test_negated_overflow_is_refused():
     with pytest.raises(ValueError, match=r"channel 'B': value 70000 exceeds"):
         to_pixels("B", np.array([[1.0, 70000.0]], np.float32), "half", negate=True)
+
+
+# -- the compiled half converter (io._half) ----------------------------------------------------
+
+
+def _numpy_halves(values: np.ndarray) -> np.ndarray:
+    with np.errstate(all="ignore"):
+        return values.astype(np.float16).view(np.uint16)
+
+
+def test_the_compiled_half_converter_is_in_use_here():
+    """x86-64 and ARM64 have a float → half instruction; on them the converter must build
+    (a silent fall-back to numpy would cost ~12 ms of CPU a 1024² frame)."""
+    from oceanfield.io import exr
+
+    assert exr._half_converter() is not None
+
+
+def test_compiled_halves_are_numpys_at_every_rounding_boundary():
+    """IEEE 754 binary16 round to nearest even (numpy as the oracle): every finite half, the
+    float32 midpoints to its neighbours and the float32 values one step either side of
+    them, both signs, subnormals and overflow included; and a million random bit patterns.
+    (All 2³² float32 patterns were compared once when the converter was written: the same
+    bits for every non-NaN value.)"""
+    from oceanfield.io._half import convert
+
+    halves = np.arange(0x7C00, dtype=np.uint16).view(np.float16).astype(np.float32)  # 0 … 65504
+    upper = np.append(halves[1:], np.float32(65536.0))  # their midpoint, 65520, rounds to infinity
+    middle = ((halves.astype(np.float64) + upper.astype(np.float64)) / 2).astype(np.float32)
+    probes = np.concatenate([halves, middle, np.nextafter(middle, np.float32(0)),
+                             np.nextafter(middle, np.float32(np.inf))])
+    probes = np.concatenate([probes, -probes, [np.inf, -np.inf]]).astype(np.float32)
+    rng = np.random.default_rng(7)
+    patterns = rng.integers(0, 2**32, size=1 << 20, dtype=np.uint64).astype(np.uint32).view(np.float32)
+    for values in (probes, patterns[~np.isnan(patterns)]):
+        out = np.empty((1, values.size), np.uint16)
+        values = values.reshape(1, -1)
+        values.flags.writeable = False
+        convert(values, np.float32(1.0), np.uint16(0), out)
+        np.testing.assert_array_equal(out[0], _numpy_halves(values[0]))
+    nan = np.full((1, 3), np.nan, np.float32)
+    nan.flags.writeable = False
+    out = np.empty((1, 3), np.uint16)
+    assert convert(nan, np.float32(1.0), np.uint16(0), out) >= 0x7C00
+    assert np.isnan(out.view(np.float16)).all()
+
+
+def test_numpy_converts_where_the_converter_cannot_be_built(monkeypatch):
+    """Without the compiled converter to_pixels gives the same halves and errors."""
+    from oceanfield.io import exr
+
+    rng = np.random.default_rng(3)
+    view = rng.normal(0, 300, (40, 64)).astype(np.float32)[:, ::2]
+    view.flags.writeable = False  # as a frame's maps are
+    compiled = to_pixels("R", view, "half", negate=True, divisor=0.3048)
+    monkeypatch.setattr(exr, "_HALF_CONVERTER", [None])
+    fallback = to_pixels("R", view, "half", negate=True, divisor=0.3048)
+    np.testing.assert_array_equal(compiled.view(np.uint16), fallback.view(np.uint16))
+    with pytest.raises(ValueError, match=r"channel 'B': value 70000 exceeds"):
+        to_pixels("B", np.array([[1.0, 70000.0]], np.float32), "half")

@@ -69,6 +69,7 @@ __all__ = [
     "read_exr",
     "read_exr_attributes",
     "to_pixels",
+    "half_converter_ready",
     "exr_is_complete",
     "set_encoder_threads",
 ]
@@ -388,6 +389,16 @@ def to_pixels(name: str, array: ArrayLike, precision: str, *, negate: bool = Fal
     Raises ValueError when a finite value does not fit in a half float (±65504).
     """
     array = np.asarray(array)
+    if precision == "half" and array.dtype == np.float32 and array.ndim == 2:
+        convert = _half_converter()
+        if convert is not None:  # the processor's conversion instruction (``io._half``)
+            half = np.empty(array.shape, dtype=np.float16)
+            source = array.view()
+            source.flags.writeable = False  # the kernel's one signature
+            worst = convert(source, np.float32(divisor), np.uint16(0x8000 if negate else 0), half.view(np.uint16))
+            if worst >= 0x7C00:  # an infinity or NaN: was it a finite value that overflowed?
+                _check_half_range(name, half, np.divide(array, divisor, dtype=np.float32))
+            return half
     if divisor != 1.0:
         array = np.divide(array, divisor, dtype=np.float32 if array.dtype == np.float32 else None)
     if precision == "float":
@@ -402,14 +413,40 @@ def to_pixels(name: str, array: ArrayLike, precision: str, *, negate: bool = Fal
     # An exponent of all ones is infinity or NaN; only then look for finite values that
     # overflowed (values from 65520 on round to infinity: IEEE 754 binary16, round to nearest even).
     if bits.size and int((bits & np.uint16(0x7FFF)).max()) >= 0x7C00:
-        overflow = np.isinf(half) & np.isfinite(array)
-        if overflow.any():
-            peak = float(np.max(np.abs(array[overflow])))
-            raise ValueError(
-                f"channel {name!r}: value {peak:g} exceeds the half-float range ±{_HALF_MAX:g}; "
-                f"store it with precision 'float' or use larger scene units"
-            )
+        _check_half_range(name, half, array)
     return half
+
+
+def _check_half_range(name: str, half: np.ndarray, array: np.ndarray) -> None:
+    """Raise ValueError if a finite value of ``array`` became an infinite half."""
+    overflow = np.isinf(half) & np.isfinite(array)
+    if overflow.any():
+        peak = float(np.max(np.abs(array[overflow])))
+        raise ValueError(
+            f"channel {name!r}: value {peak:g} exceeds the half-float range ±{_HALF_MAX:g}; "
+            f"store it with precision 'float' or use larger scene units"
+        )
+
+
+_HALF_CONVERTER: list = []  # [io._half.convert, or None where it cannot be built], once tried
+
+
+def half_converter_ready() -> bool:
+    """Compile (or load from numba's disk cache) the float32 → half converter half-float
+    files are written with; False where it cannot be built and numpy converts instead.
+    ``oceanfield compile`` calls it so a farm image's cache holds it."""
+    return _half_converter() is not None
+
+
+def _half_converter():
+    """The compiled float32 → half converter (``io._half``), or None to convert with numpy."""
+    if not _HALF_CONVERTER:
+        try:
+            from ._half import convert
+        except Exception:  # noqa: BLE001 - no compiler for this processor: numpy converts
+            convert = None
+        _HALF_CONVERTER.append(convert)
+    return _HALF_CONVERTER[0]
 
 
 def _header_attributes(attributes: Mapping[str, Any] | None) -> dict[str, Any]:
