@@ -52,6 +52,13 @@ def convert(src, divisor, sign, out):  # pragma: no cover - compiled
     (the flipped sign bit is the half of −x: rounding to nearest even is symmetric).
     Returns the largest ``bits & 0x7FFF`` written: from 0x7C00 on, an infinity or NaN."""
     worst = np.uint16(0)
+    if divisor == 1.0:  # x / 1 is x: the loop without the division is a third faster
+        for row in range(src.shape[0]):
+            for column in range(src.shape[1]):
+                bits = _half_bits(src[row, column]) ^ sign
+                out[row, column] = bits
+                worst = max(worst, bits & np.uint16(0x7FFF))
+        return worst
     for row in range(src.shape[0]):
         for column in range(src.shape[1]):
             bits = _half_bits(src[row, column] / divisor) ^ sign
