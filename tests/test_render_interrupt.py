@@ -215,3 +215,36 @@ def test_a_worker_told_to_stop_ends_quietly_whatever_native_code_then_raises(mon
             job._process_worker(None, [], 1, False, queue.Queue())
     finally:
         job._STOP_REQUESTED.clear()
+
+
+def test_a_signal_while_the_last_frame_is_written_waits_for_it(tmp_path, preset_file, monkeypatch):
+    """Ctrl-C that lands after the last frame was handed to the writer, while it is being
+    written (the render is waiting for its writer to finish): the render still waits for
+    that file, counts it, records it, and leaves no writer thread running behind it (a
+    thread cut off when the process exits could leave a temporary, and it printed its
+    frame's line after the summary's)."""
+    import threading
+
+    import oceanfield.render.job as job
+    from oceanfield.preset import load_preset
+    from oceanfield.render import plan_render, render
+
+    preset = load_preset(preset_file("last", settings={"tile": {"resolution": 32},
+                                                        "time": {"last_frame": 1003}}))
+    write = job.write_jobs
+    main_thread = threading.main_thread().ident
+
+    def write_slowly(jobs):
+        if jobs and ".1003." in jobs[0].path.name:
+            signal.pthread_kill(main_thread, signal.SIGINT)  # the main thread now waits in close()
+            time.sleep(0.5)
+        return write(jobs)
+
+    monkeypatch.setattr(job, "write_jobs", write_slowly)
+    with pytest.raises(job.RenderInterrupted) as stopped:
+        render(plan_render(preset, root=tmp_path), workers=1)
+    assert stopped.value.summary.written == [1001, 1002, 1003]
+    assert not [t for t in threading.enumerate() if t.name == "oceanfield-writer"]
+    manifest = json.loads((tmp_path / "last" / MANIFEST_NAME).read_text())
+    assert manifest["frames_done"] == [1001, 1002, 1003]
+    assert not [n for n in os.listdir(tmp_path / "last") if is_temporary(n)]

@@ -137,10 +137,10 @@ def _render_frames(plan: RenderPlan, frames: Iterable[int], *, threads: int, ove
                 report(FrameResult(frame, "failed", time.perf_counter() - started, str(error)))
                 continue
             sink.submit(frame, jobs, started)
+        sink.close()  # inside: an interrupt while the last frames are written still waits for the one in hand
     except BaseException:
         sink.close(abort=True)
         raise
-    sink.close()
     if stop:
         for frame in todo:
             if frame not in done:
