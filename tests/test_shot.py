@@ -219,6 +219,31 @@ def test_bad_input_is_one_line_and_exit_2_with_no_file(tmp_path, preset_file, ca
     assert [p.name for p in tmp_path.iterdir()] == [path.name]
 
 
+@pytest.mark.parametrize("command", ["probe", "float", "scene"])
+@pytest.mark.parametrize("where", ["under a file", "a folder"])
+def test_an_unwritable_out_is_one_line_and_exit_2_before_any_work(tmp_path, preset_file, capsys, monkeypatch,
+                                                                   command, where):
+    """--out in a folder that cannot be made (a file stands in its way), or naming a
+    folder: one line naming --out and the path, exit 2, and said before the sea is built
+    (a probe or a scene can take minutes to compute)."""
+    import oceanfield.render.shot as shot
+
+    def no_work(preset):
+        raise AssertionError("the sea was built before --out was checked")
+
+    monkeypatch.setattr(shot, "_ocean", no_work)
+    path = preset_file(settings=SHOT)
+    suffix = ".usda" if command == "scene" else ".csv"
+    (tmp_path / "taken").write_text("a file, not a folder")
+    out = tmp_path / "taken" / f"table{suffix}" if where == "under a file" else tmp_path / f"folder{suffix}"
+    if where == "a folder":
+        out.mkdir()
+    item = {"probe": ["--at", "3,4"], "float": ["--body", "x_m=0,y_m=0,length_m=5,beam_m=2"], "scene": []}[command]
+    assert main([command, str(path), "--frames", "1001", *item, "--out", str(out)]) == 2
+    error = capsys.readouterr().err.strip().splitlines()
+    assert len(error) == 1 and error[0].startswith("oceanfield: error: --out:") and str(out) in error[0], error
+
+
 def test_usd_core_missing_is_one_line_naming_the_extra(tmp_path, preset_file, capsys, monkeypatch):
     monkeypatch.setitem(sys.modules, "pxr", None)  # import pxr now raises ImportError
     path = preset_file(settings=SHOT)

@@ -28,7 +28,7 @@ from pathlib import Path
 
 from oceanfield.io.errors import OutputError
 
-__all__ = ["OutputError", "atomic_output", "remove_stale_temporaries", "is_temporary"]
+__all__ = ["OutputError", "atomic_output", "prepare_output", "remove_stale_temporaries", "is_temporary"]
 
 _MARKER = ".oceanfield-partial-"
 _TOKEN_HEX = 16
@@ -92,6 +92,31 @@ def atomic_output(path: str | os.PathLike[str]) -> Iterator[Path]:
             raise OutputError(final, _reason(exc), exc.errno) from exc
         raise
     _fsync_folder(final.parent)
+
+
+def prepare_output(path: str | os.PathLike[str]) -> Path:
+    """Make sure a file can be written at `path`: its folder exists (made if missing) and
+    `path` is not a folder. Call it before the work whose result goes there, so a wrong
+    path is said at once, not after minutes of computing.
+
+    Raises
+    ------
+    OutputError
+        `path` is a folder, or its folder cannot be made (a file stands in the way, a
+        missing or read-only parent), naming `path` and why.
+    """
+    final = Path(path)
+    if final.is_dir():
+        raise OutputError(final, "is a folder, expected a file name")
+    folder = final.parent
+    blocker = next((p for p in (folder, *folder.parents) if p.exists() and not p.is_dir()), None)
+    if blocker is not None:
+        raise OutputError(final, f"'{blocker}' is a file, not a folder")
+    try:
+        folder.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise OutputError(final, f"cannot make its folder ({_reason(exc)})", exc.errno) from exc
+    return final
 
 
 def remove_stale_temporaries(

@@ -17,7 +17,7 @@ import os
 from pathlib import Path
 from typing import Any, Mapping, Sequence
 
-from oceanfield.io.atomic import atomic_output
+from oceanfield.io.atomic import atomic_output, prepare_output
 
 __all__ = ["TABLE_FORMATS", "table_format", "format_csv", "format_json", "write_table"]
 
@@ -67,7 +67,7 @@ def write_table(path: str | os.PathLike[str], columns: Sequence[str], rows: Sequ
     """
     final = Path(path)
     text = format_json(columns, rows, metadata) if table_format(final) == "json" else format_csv(columns, rows)
-    final.parent.mkdir(parents=True, exist_ok=True)
+    prepare_output(final)
     with atomic_output(final) as temporary:
         temporary.write_text(text, encoding="utf-8")
     return final

@@ -35,7 +35,7 @@ from typing import Mapping, Sequence
 import numpy as np
 from numpy.typing import NDArray
 
-from oceanfield.io.atomic import atomic_output
+from oceanfield.io.atomic import atomic_output, prepare_output
 
 __all__ = ["USD_SUFFIXES", "Look", "SeaMesh", "require_usd", "write_stage"]
 
@@ -183,7 +183,7 @@ def write_stage(
                 for frame, value in zip(frames, values):
                     op.Set(Gf.Matrix4d(value.tolist()), Usd.TimeCode(frame))
 
-    final.parent.mkdir(parents=True, exist_ok=True)
+    prepare_output(final)
     with atomic_output(final) as temporary:
         if not stage.GetRootLayer().Export(str(temporary)):
             raise OSError(f"USD could not export the stage to {temporary}")

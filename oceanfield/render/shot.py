@@ -329,6 +329,16 @@ def _check_out(args) -> None:
         table_format(args.out)
 
 
+def _writable_out(path) -> None:
+    """``--out`` can be written (its folder made if missing): said before any work."""
+    from ..io.atomic import OutputError, prepare_output
+
+    try:
+        prepare_output(path)
+    except OutputError as error:
+        raise ValueError(f"--out: {error}") from None
+
+
 def run_probe_command(args) -> int:
     """``oceanfield probe``: the surface above points, per frame, as CSV or JSON."""
     return _run_table_command(args, "--at", args.at, parse_probe, probe_table)
@@ -348,6 +358,8 @@ def _run_table_command(args, option: str, texts: Sequence[str], parse, table) ->
     items = [parse(text, i + 1, scene) for i, text in enumerate(texts)]
     _unique_names(option, [item.name for item in items])
     frames, times = _frames_and_times(preset, args.frames)
+    if args.out:
+        _writable_out(args.out)
     columns, rows, _, worst = table(preset, _ocean(preset), items, frames, times)
     _emit(args, columns, rows, {**_metadata(preset, frames), "worst_residual_m": worst})
     return 0
@@ -472,6 +484,7 @@ def run_scene_command(args) -> int:
     bodies = [parse_body(text, i + 1, scene) for i, text in enumerate(args.body)]
     _unique_names("--at", [p.name for p in probes])
     _unique_names("--body", [b.name for b in bodies])
+    _writable_out(out)
     ocean = _ocean(preset)
     extent, texels, what = mesh_extent(preset, ocean)
     stride = _mesh_stride(preset, args.mesh_resolution, texels, what)
