@@ -186,16 +186,45 @@ def _main(argv: Sequence[str] | None, *, program: bool) -> int:
         _tune_collector(args.command)
     try:
         with _terminate_interrupts():
-            return handler(args)
+            status = handler(args)
+            sys.stdout.flush()  # here, where a reader gone away is caught, not at exit
+            return status
     except UserError as error:
         return _fail(str(error))
     except ValueError as error:  # validation at a public boundary: the user's input
         return _fail(str(error))
+    except BrokenPipeError:  # the reader went away (`oceanfield presets | head -1`)
+        return _closed_pipe()
+    except OSError as error:  # a file the command could not read or write: one line naming it
+        return _fail(_file_error_text(error))
     except KeyboardInterrupt as error:  # Ctrl-C, or SIGTERM (see _terminate_interrupts)
         signum = getattr(error, "signum", signal.SIGINT)
         print(f"{_PROG}: {'interrupted (Ctrl-C)' if signum == signal.SIGINT else 'stopped by SIGTERM'}",
               file=sys.stderr)
         return 128 + signum  # the shell's convention: 130 for SIGINT, 143 for SIGTERM
+
+
+def _file_error_text(error: OSError) -> str:
+    """``path: reason`` for the operating system's errors; our own file errors say it already."""
+    text = str(error)
+    if text.startswith("[Errno") and error.filename is not None:
+        return f"{error.filename}: {error.strerror}"
+    return text
+
+
+def _closed_pipe() -> int:
+    """Stop quietly when stdout's reader has gone: point stdout at /dev/null so the
+    interpreter's last flush does not fail again, and return SIGPIPE's status (141), as
+    a program killed by the signal would."""
+    import os
+
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        os.close(devnull)
+    except (OSError, ValueError, AttributeError):  # no real stdout (a test's capture)
+        pass
+    return 128 + getattr(signal, "SIGPIPE", 13)
 
 
 class _Terminated(KeyboardInterrupt):

@@ -217,3 +217,26 @@ def test_run_as_a_program_the_collector_is_frozen_for_a_quick_exit(monkeypatch, 
         gc.unfreeze()
         gc.set_threshold(*threshold)
     assert capsys.readouterr().out.count("seed:") == 2  # both runs printed the resolved preset
+
+
+def test_output_cut_short_by_a_closed_pipe_ends_quietly():
+    """`oceanfield presets | head -1`: the reader goes away; the command stops without a
+    traceback and with the status of a process ended by SIGPIPE (141), as `yes | head` does."""
+    process = subprocess.Popen([sys.executable, "-m", "oceanfield.cli", "presets"], stdout=subprocess.PIPE,
+                               stderr=subprocess.PIPE)
+    process.stdout.close()  # nobody reads: the first print meets a broken pipe
+    _, err = process.communicate(timeout=120)
+    assert process.returncode == 141, err.decode()
+    assert err.decode() == ""
+
+
+def test_a_file_error_reaching_the_command_line_is_one_line_and_exit_2(monkeypatch, capsys):
+    """A file the command cannot read or write (an OSError no room turned into a message of
+    its own) still ends as one line naming the path, exit 2, never a traceback."""
+    def unwritable(args):
+        raise FileNotFoundError(2, "No such file or directory", "/nowhere/table.csv")
+
+    monkeypatch.setitem(cli._COMMANDS, "presets", unwritable)
+    assert main(["presets"]) == 2
+    error = capsys.readouterr().err.strip().splitlines()
+    assert error == ["oceanfield: error: /nowhere/table.csv: No such file or directory"]
