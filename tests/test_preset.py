@@ -227,6 +227,10 @@ MALFORMED = [
     _case("override with invalid YAML",
           _ONE_WIND_SEA,
           "--set maps=[height: invalid YAML", None, overrides=("maps=[height",)),
+    _case("override of text YAML cannot read, with the quoting that passes it",
+          _ONE_WIND_SEA,
+          """invalid YAML: expected '<document start>', but found '<scalar>'; if the value is text, quote it: """
+          """--set 'output.pattern="{map}_####.{ext}"'""", None, overrides=("output.pattern={map}_####.{ext}",)),
     _case("override of an unknown key",
           _ONE_WIND_SEA,
           "--set tile.resolutoin=1024: unknown key `resolutoin` in tile — did you mean `resolution`?",
@@ -550,6 +554,14 @@ def test_override_can_create_a_section_and_replace_a_list(tmp_path):
     assert preset.output.precision_for("displacement") == "float"
     assert preset.output.precision_for("normal") == "half"
     assert preset.sea.components[0].significant_height_m == 1.0
+
+
+def test_the_quoting_an_override_error_advises_reads_the_text(tmp_path):
+    """The advice of an unreadable --set value works as written (the shell passes what is
+    inside its single quotes)."""
+    path = _write(tmp_path, {"p.yaml": _ONE_WIND_SEA})
+    preset = load_preset(path, overrides=('output.pattern="{map}_####.{ext}"',))
+    assert preset.output.relative_path("p", "height", 1001) == "p/height_1001.exr"
 
 
 def test_outside_output_is_allowed_when_asked(tmp_path):

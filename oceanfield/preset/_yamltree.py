@@ -322,8 +322,13 @@ def apply_override(tree: Node, text: str, errors: list[str]) -> None:
     if parts[0] == "extends":
         errors.append(f"{where}: extends cannot be changed by an override; load the other preset instead")
         return
-    ok, value = _parse_yaml(raw, lambda mark: where, errors)
+    problems: list[str] = []
+    ok, value = _parse_yaml(raw, lambda mark: where, problems)
     if not ok:
+        # The value is YAML, so text with braces or a colon (a file pattern's `{map}`) is
+        # read as a mapping: say how to pass it as text.
+        advice = f"; if the value is text, quote it: --set '{key.strip()}=\"{raw.strip()}\"'"
+        errors.extend(p + advice if "invalid YAML" in p and '"' not in raw else p for p in problems)
         return
     value = value if value is not None else Node(None, where)
     _set_where(value, where)
