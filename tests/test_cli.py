@@ -86,6 +86,14 @@ def test_stats_text_names_each_component_and_the_total(capsys):
     assert re.search(r"second order: skewness [0-9.]+, mean crest / mean trough [0-9.]+", out)
 
 
+@pytest.mark.parametrize("size, texel", [("768", "(6 m texels"), ("20", "(31.2 cm texels")])
+def test_stats_gives_the_texel_in_the_unit_that_suits_it(capsys, size, texel):
+    """A 768 m tile at 128² has 6 m texels ("6 m", not "600.0 cm"); 20 m at 64², 31.2 cm ones."""
+    assert main(["stats", "fresh_chop", "--set", f"tile.size_m={size}",
+                 "--set", f"tile.resolution={128 if size == '768' else 64}"]) == 0
+    assert texel in capsys.readouterr().out
+
+
 def test_resolve_round_trips_to_identical_settings_and_pixels(capsys, tmp_path):
     assert main(["resolve", "shallow_coastal", *SMALL]) == 0
     text = capsys.readouterr().out

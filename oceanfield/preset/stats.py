@@ -256,6 +256,8 @@ def _band_rows(sea, bands, preset) -> dict[str, Any]:
 
 def format_sea_report(report: dict[str, Any]) -> str:
     """The report as aligned text for a terminal."""
+    from .preview import length_text
+
     lines = [f"{report['preset']}: {report['description']}"]
     depth = report["depth_m"]
     lines.append(f"depth: {'deep' if depth is None else f'{depth:g} m'}")
@@ -273,7 +275,7 @@ def format_sea_report(report: dict[str, Any]) -> str:
         )
     tile = report["tile"]
     lines.append(
-        f"{'band 0' if report.get('bands') else 'tile'}: {tile['size_m']:g} m at {tile['resolution']}² ({tile['texel_m'] * 100:.1f} cm texels, "
+        f"{'band 0' if report.get('bands') else 'tile'}: {tile['size_m']:g} m at {tile['resolution']}² ({length_text(tile['texel_m'])} texels, "
         f"{tile['tile_over_peak_wavelength']:.1f} peak wavelengths across)"
     )
     where = "the bands'" if report.get("bands") else "the tile's"
