@@ -180,6 +180,18 @@ def test_compile_command_warms_the_kernel_cache(capsys):
     assert out.startswith("kernels compiled and cached in ")
 
 
+def test_compile_covers_the_probes_kernel_too():
+    """`oceanfield probe`, `float` and `scene` sum waves at points with their own kernel: a
+    farm image compiled with `oceanfield compile` must hold it as well, or every node pays
+    its compilation (seconds) on each shot command."""
+    code = ("from oceanfield.surface import _sums\n"
+            "from oceanfield.surface.warmup import compile_kernels\n"
+            "compile_kernels()\n"
+            "print('SIGNATURES', len(_sums.surface_point_kernel.signatures))\n")
+    result = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=300)
+    assert "SIGNATURES 1" in result.stdout, result.stdout + result.stderr
+
+
 def test_compile_refuses_a_cache_dir_once_numba_is_loaded(capsys, tmp_path):
     import numba  # noqa: F401 - loaded, as in any process that has rendered
 

@@ -7,8 +7,9 @@ on disk (``cache=True``), in ``__pycache__`` beside the package or under the fol
 by the ``NUMBA_CACHE_DIR`` environment variable. A fresh install therefore pays several
 seconds of compilation on its first render, and so does every farm node whose package
 folder is read-only or whose cache is lost. :func:`compile_kernels` synthesises a small
-frame through every path a render can take (plain, velocity, lingering foam), so that
-running it once while a farm image is built leaves every kernel compiled in that cache.
+frame through every path a render can take (plain, velocity, lingering foam), and sums
+the waves at a point as the shot commands (probe, float, scene) do, so that running it
+once while a farm image is built leaves every kernel compiled in that cache.
 Machine code is cached per CPU model: build the image on the nodes' kind of CPU.
 """
 
@@ -25,6 +26,7 @@ _RESOLUTION = 32  # the kernels' machine code depends on array types, not sizes
 def compile_kernels() -> float:
     """Run every frame path once on a tiny tile; returns the seconds it took."""
     from ..physics.seastate import SeaState, wind_sea
+    from .probes import surface_at
     from .synth import Ocean
     from .tile import Tile
 
@@ -34,4 +36,6 @@ def compile_kernels() -> float:
     for options in ({}, {"velocity": True}, {"foam_memory": 1.0, "foam_samples": 2}, {"loop_period": 20.0}):
         ocean = Ocean(sea, tile, seed=1, **options)
         ocean.frame(0.5, buffer=ocean.new_buffer())
+    # the exact sums at points of `probe`, `float` and `scene` (the rest position's inversion included)
+    surface_at(ocean.modes(), [3.0], [4.0], [0.5])
     return time.perf_counter() - started
