@@ -118,9 +118,9 @@ def build_parser() -> argparse.ArgumentParser:
     scene.add_argument("--render-maps", action="store_true", help="render the map sequences into --maps first")
     _add_shot_arguments(scene, table=False)
     compile_ = commands.add_parser(
-        "compile", help="compile the frame kernels into numba's cache once (for a farm image)",
-        description="Compile every frame kernel into numba's on-disk cache, so that no render pays for "
-                    "compilation. Run it once when a farm image is built; point the nodes at the same "
+        "compile", help="compile the frame and probe kernels into numba's cache once (for a farm image)",
+        description="Compile every frame kernel and the probes' into numba's on-disk cache, so that no render, "
+                    "probe, float or scene pays for compilation. Run it once when a farm image is built; point the nodes at the same "
                     "folder with the NUMBA_CACHE_DIR environment variable.")
     compile_.add_argument("--cache-dir", default=None, metavar="DIR",
                           help="cache folder (default: $NUMBA_CACHE_DIR, else numba's own beside the package)")
