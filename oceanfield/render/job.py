@@ -67,11 +67,12 @@ class RenderSummary:
         return not self.failed and len(self.written) + len(self.skipped) == self.requested
 
     def line(self) -> str:
-        rate = len(self.written) / self.wall_seconds if self.wall_seconds > 0 else 0.0
+        rate = ""
+        if self.written and self.wall_seconds > 0:  # (none written: no rate, not "0.00 frames/s")
+            rate = f" ({len(self.written) / self.wall_seconds:.2f} frames/s)"
         return (
             f"{len(self.written)} written, {len(self.skipped)} skipped (already complete), "
-            f"{len(self.failed)} failed of {self.requested} frames in {self.wall_seconds:.1f} s "
-            f"({rate:.2f} frames/s)"
+            f"{len(self.failed)} failed of {self.requested} frames in {self.wall_seconds:.1f} s{rate}"
         )
 
 
