@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import json
 import math
+import re
 import sys
 from pathlib import Path
 
@@ -242,6 +243,31 @@ def test_an_unwritable_out_is_one_line_and_exit_2_before_any_work(tmp_path, pres
     assert main([command, str(path), "--frames", "1001", *item, "--out", str(out)]) == 2
     error = capsys.readouterr().err.strip().splitlines()
     assert len(error) == 1 and error[0].startswith("oceanfield: error: --out:") and str(out) in error[0], error
+
+
+def test_the_render_a_scene_advises_makes_the_maps_its_material_names(tmp_path, preset_file, capsys, usd):
+    """A scene written before its maps says which render makes them; that command, run as
+    printed, must make exactly those files, with the scene's own settings (its --set
+    options too: without them the maps came out at the preset file's resolution)."""
+    import shlex
+
+    from pxr import Usd, UsdShade
+
+    path = preset_file(settings=SHOT)
+    stage_path, maps = tmp_path / "shot.usda", tmp_path / "maps dir"
+    assert main(["scene", str(path), "--frames", "1001-1002", "--out", str(stage_path), "--maps", str(maps),
+                 "--set", "tile.resolution=32", "--set", "seed=11"]) == 0
+    advice = re.search(r"render them with `([^`]*)`", capsys.readouterr().err)
+    assert advice, "no render command advised"
+    command = shlex.split(advice.group(1))
+    assert command[:2] == ["oceanfield", "render"]
+    assert main(command[1:]) == 0
+    stage = Usd.Stage.Open(str(stage_path))
+    files = [Path(shader.GetInput("file").Get(Usd.TimeCode(1002)).resolvedPath)
+             for shader in (UsdShade.Shader(p) for p in stage.Traverse() if p.GetName().endswith("Texture"))]
+    assert files and all(f.is_file() for f in files), files
+    channels, attributes = read_exr(files[0])
+    assert next(iter(channels.values())).shape[0] == 32 and attributes["oceanfield.seed"] == 11
 
 
 def test_usd_core_missing_is_one_line_naming_the_extra(tmp_path, preset_file, capsys, monkeypatch):

@@ -526,7 +526,11 @@ def run_scene_command(args) -> int:
         print("oceanfield: note: the material has no textures: a banded preset wires its composite maps, "
               "and this one has none (set bands.composite_extent_m)", file=sys.stderr)
     if missing:
+        import shlex
+
+        # the render that makes exactly these files: the same preset and --set options, quoted for a shell
+        command = ["oceanfield", "render", str(args.preset), *(t for o in args.overrides for t in ("--set", o)),
+                   "--frames", f"{frames[0]}-{frames[-1]}", "--out", str(maps_root)]
         print(f"oceanfield: warning: the material refers to {missing} map files not rendered yet under "
-              f"{maps_root}; render them with `oceanfield render {args.preset} --frames "
-              f"{frames[0]}-{frames[-1]} --out {maps_root}` or add --render-maps", file=sys.stderr)
+              f"{maps_root}; render them with `{shlex.join(command)}` or add --render-maps", file=sys.stderr)
     return 0
