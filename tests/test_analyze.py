@@ -624,7 +624,9 @@ def test_error_unreadable_file(tmp_path, capsys):
 def test_error_gap_in_the_frame_numbers(tmp_path, capsys):
     pattern = _small_sequence(tmp_path, count=20)
     (tmp_path / "h.1010.exr").unlink()
-    assert "1010 are missing" in _error(capsys, pattern, *BASIC)
+    assert "sequence: frame 1010 is missing between 1001 and 1020" in _error(capsys, pattern, *BASIC)
+    (tmp_path / "h.1012.exr").unlink()
+    assert "sequence: frames 1010, 1012 are missing between 1001 and 1020" in _error(capsys, pattern, *BASIC)
 
 
 def test_error_non_square_frames_need_a_crop(tmp_path, capsys):

@@ -203,7 +203,8 @@ def select_frames(files: list[tuple[int | None, Path]], frames: str | None) -> l
         if missing:
             shown = ", ".join(str(m) for m in missing[:5]) + (", ..." if len(missing) > 5 else "")
             raise ValueError(
-                f"sequence: frames {shown} are missing between {numbers[0]} and {numbers[-1]}; the analysis "
+                f"sequence: {'frame' if len(missing) == 1 else 'frames'} {shown} {'is' if len(missing) == 1 else 'are'} "
+                f"missing between {numbers[0]} and {numbers[-1]}; the analysis "
                 f"needs evenly spaced frames (use --frames A-B to pick a complete run)"
             )
     return files
