@@ -109,6 +109,7 @@ def test_scene_of_a_banded_preset_reads_back(tmp_path, capsys):
                  "--at", "p=5,6", "--maps", str(tmp_path / "maps")]) == 0
     err = capsys.readouterr().err
     assert "15x15 sea mesh" in err and "not rendered yet" in err
+    assert ": 2 frames, a 15x15 sea mesh, 1 probe, 0 bodies\n" in err
     stage = Usd.Stage.Open(str(out))
     mesh = next(UsdGeom.Mesh(p) for p in stage.Traverse() if p.IsA(UsdGeom.Mesh))
     points = np.array(mesh.GetPointsAttr().Get(Usd.TimeCode(2)))

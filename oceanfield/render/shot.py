@@ -520,8 +520,9 @@ def run_scene_command(args) -> int:
         comment=f"oceanfield {__version__}: preset {preset.name}, frames {frames[0]}-{frames[-1]}, "
                 f"sea mesh {quads}x{quads} quads, {over}",
     )
-    print(f"scene written to {path}: {len(frames)} frames, a {quads}x{quads} sea mesh, "
-          f"{len(probes)} probes, {len(bodies)} bodies", file=sys.stderr)
+    print(f"scene written to {path}: {len(frames)} frame{'s' * (len(frames) != 1)}, a {quads}x{quads} sea mesh, "
+          f"{len(probes)} probe{'s' * (len(probes) != 1)}, {len(bodies)} {'body' if len(bodies) == 1 else 'bodies'}",
+          file=sys.stderr)
     if preset.bands.active and not textures:
         print("oceanfield: note: the material has no textures: a banded preset wires its composite maps, "
               "and this one has none (set bands.composite_extent_m)", file=sys.stderr)
