@@ -206,7 +206,7 @@ def _material(stage, look: Look, frames: Sequence[int], Sdf, Usd, UsdShade):
 
     reader = UsdShade.Shader.Define(stage, f"{root}/TextureCoordinates")
     reader.CreateIdAttr("UsdPrimvarReader_float2")
-    reader.CreateInput("varname", Sdf.ValueTypeNames.Token).Set("st")
+    reader.CreateInput("varname", Sdf.ValueTypeNames.String).Set("st")  # a string since USD 21.11
     reader_output = reader.CreateOutput("result", Sdf.ValueTypeNames.Float2)
 
     for name, files in look.textures.items():
