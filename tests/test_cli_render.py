@@ -146,6 +146,16 @@ def test_progress_lines_summary_and_exit_status(tmp_path, preset_file, capsys):
     assert re.fullmatch(r"0 written, 4 skipped \(already complete\), 0 failed of 4 frames in \d+\.\d s", lines[5])
 
 
+def test_a_one_frame_job_says_frame_not_frames(tmp_path, preset_file, capsys):
+    """A farm chunk is often one frame: "rendering 1 frame", "of 1 frame", not "1 frames"."""
+    out = tmp_path / "out"
+    assert main(_render_args(preset_file(), out, "--frames", "1003")) == 0
+    lines = capsys.readouterr().out.splitlines()
+    assert lines[0] == f"rendering 1 frame of tiny (displacement, normal, foam) into {out / 'tiny'}"
+    assert re.fullmatch(r"1 written, 0 skipped \(already complete\), 0 failed of 1 frame in \d+\.\d s "
+                        r"\(\d+\.\d\d frames/s\)", lines[2]), lines
+
+
 def test_a_frame_that_cannot_be_written_fails_the_run(tmp_path, preset_file, capsys):
     out = tmp_path / "out"
     path = preset_file()

@@ -48,7 +48,7 @@ class RenderEstimate:
 
     def line(self, frames: int, workers: int) -> str:
         return (f"estimate: about {_bytes_text(self.memory_bytes)} of memory and {_duration(self.total_seconds)} "
-                f"for {frames} frames on {workers} worker{'s' if workers != 1 else ''} "
+                f"for {frames} frame{'s' if frames != 1 else ''} on {workers} worker{'s' if workers != 1 else ''} "
                 f"({_duration(self.build_seconds)} of it building the ocean)")
 
 

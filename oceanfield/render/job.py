@@ -72,8 +72,13 @@ class RenderSummary:
             rate = f" ({len(self.written) / self.wall_seconds:.2f} frames/s)"
         return (
             f"{len(self.written)} written, {len(self.skipped)} skipped (already complete), "
-            f"{len(self.failed)} failed of {self.requested} frames in {self.wall_seconds:.1f} s{rate}"
+            f"{len(self.failed)} failed of {_count(self.requested, 'frame')} in {self.wall_seconds:.1f} s{rate}"
         )
+
+
+def _count(number: int, noun: str) -> str:
+    """``"1 frame"``, ``"2 frames"``."""
+    return f"{number} {noun}{'' if number == 1 else 's'}"
 
 
 def _set_threads(threads: int) -> None:
@@ -802,7 +807,7 @@ def run_render_command(args) -> int:
     if not plan.frames:
         print(f"nothing to render: chunk {args.chunk} of {len(parse_frames(args.frames, preset.time.frames))} frames is empty")
         return 0
-    print(f"rendering {len(plan.frames)} frames of {preset.name} ({', '.join(preset.maps)}) into {plan.folder}")
+    print(f"rendering {_count(len(plan.frames), 'frame')} of {preset.name} ({', '.join(preset.maps)}) into {plan.folder}")
     cores = os.cpu_count() or 1
     workers = args.workers if args.workers is not None else default_workers(plan, cores=cores)
     building = None
