@@ -665,6 +665,12 @@ def test_no_warnings_for_a_sensible_preset():
         ("output: {compression: dwaa}\n", "dwaa is lossy and would blur the values of displacement"),
         ("sea:\n  components:\n    - wind_speed_mps: 10\n      fetch_km: 3000\n",
          "fetch_km 3000 km is more than the wind of `wind sea` needs: the sea is fully developed"),
+        # a loop of a fractional number of frames is not seamless in a frame sequence
+        ("time: {loop_period_s: 10.01}\n", "time.loop_period_s 10.01 s is 240.24 frames at 24 fps"),
+        # a loop rounds every frequency to a multiple of 2π/T: 12 s puts the 7.49 s peak at 6 s
+        ("time: {loop_period_s: 12}\n", "rounds the peak period of `wind sea` from 7.49 s to 6 s"),
+        # ... and 2 s rounds it to frequency 0: the peak waves stand still
+        ("time: {loop_period_s: 2}\n", "the peak waves of `wind sea` (7.49 s period) are rounded to frequency 0"),
     ],
 )
 def test_each_warning_fires(tmp_path, text, fragment):

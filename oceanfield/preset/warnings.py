@@ -25,6 +25,8 @@ _MAX_UNRESOLVED_VARIANCE = 0.05
 _MAX_HEIGHT_TO_DEPTH = 0.4
 _MAX_CAPILLARY_SPEED_ERROR = 0.05
 _MIN_PEAK_VARIANCE_KEPT = 0.9
+_MAX_LOOP_FREQUENCY_SHIFT = 0.05  # of a component's peak frequency
+_LOOP_PEAK_PERIODS = 10.0  # a loop this many peak periods long shifts the peak by at most 1/20
 
 
 def preset_warnings(preset: Preset, *, sea_state: SeaState | None = None) -> list[str]:
@@ -34,8 +36,9 @@ def preset_warnings(preset: Preset, *, sea_state: SeaState | None = None) -> lis
     peak wavelengths of every component, that the lattice resolves and holds at least
     95 % of the variance, that Hs/depth stays below 0.4 (beyond it linear theory is a
     stretch), that ripples the tile resolves are not ones surface tension would speed up
-    by more than 5 % while it is off, that the small-wave cut-off spares the peak, and
-    that data maps are not written lossy. All thresholds are common practice.
+    by more than 5 % while it is off, that the small-wave cut-off spares the peak, that a
+    loop is a whole number of frames and moves no component's peak frequency by more than
+    5 %, and that data maps are not written lossy. All thresholds are common practice.
 
     Parameters
     ----------
@@ -114,10 +117,56 @@ def preset_warnings(preset: Preset, *, sea_state: SeaState | None = None) -> lis
                 f"(clean water: {SURFACE_TENSION:g})"
             )
 
+    warnings.extend(_loop_warnings(preset, sea_state))
+
     lossy = [name for name in preset.maps if name in DATA_MAPS]
     if preset.output.format == "exr" and preset.output.compression == "dwaa" and lossy:
         warnings.append(
             f"output.compression dwaa is lossy and would blur the values of {', '.join(lossy)}; "
             f"use zip or piz for data maps"
         )
+    return warnings
+
+
+def _loop_warnings(preset: Preset, sea_state: SeaState) -> list[str]:
+    """A loop that is not a whole number of frames, or so short that rounding every
+    frequency to a multiple of 2π/T moves a component's peak by more than 5 %.
+
+    The rounding moves a frequency ω by at most half a step, π/T: relative to the peak,
+    Tp/(2T), so a loop of 10 peak periods keeps the peak within 5 % (the waves then run
+    within 5 % of their speed); a loop under two peak periods rounds the peak to 0.
+    """
+    time = preset.time
+    period = time.loop_period_s
+    if period is None:
+        return []
+    warnings = []
+    frames = period * time.fps
+    whole = max(1, round(frames))
+    if abs(frames - whole) > 1e-6 * whole:
+        warnings.append(
+            f"time.loop_period_s {period:g} s is {frames:.6g} frames at {time.fps:g} fps: a frame sequence "
+            f"repeats seamlessly only over a whole number of frames (e.g. {whole / time.fps:g} s, {whole} frames)"
+        )
+    step = 2.0 * math.pi / period
+    for item, stats in zip(preset.sea.components, sea_state.component_statistics()):
+        if not (math.isfinite(stats.tp) and stats.tp > 0.0):
+            continue
+        peak = 2.0 * math.pi / stats.tp
+        rounded = round(peak / step) * step
+        shift = abs(rounded - peak) / peak
+        if shift <= _MAX_LOOP_FREQUENCY_SHIFT:
+            continue
+        needed = f"use a loop of at least {_LOOP_PEAK_PERIODS * stats.tp:.3g} s ({_LOOP_PEAK_PERIODS:g} peak periods)"
+        if rounded == 0.0:
+            warnings.append(
+                f"time.loop_period_s {period:g} s is too short: the peak waves of `{item.label}` "
+                f"({stats.tp:.3g} s period) are rounded to frequency 0 and stand still; {needed}"
+            )
+        else:
+            warnings.append(
+                f"time.loop_period_s {period:g} s rounds the peak period of `{item.label}` from {stats.tp:.3g} s "
+                f"to {2.0 * math.pi / rounded:.3g} s: its waves run {shift:.0%} too "
+                f"{'fast' if rounded > peak else 'slow'} for their length; {needed}"
+            )
     return warnings
