@@ -91,7 +91,8 @@ def build_parser() -> argparse.ArgumentParser:
     render.add_argument("--workers", type=int, default=None, help="local worker processes (default: chosen from the job size, the cores and the free memory)")
     render.add_argument("--scheduler", default=None, metavar="ADDRESS", help="a Dask distributed scheduler to render on")
     render.add_argument("--out", default=None, metavar="DIR", help="output root (default: ./renders)")
-    render.add_argument("--overwrite", action="store_true", help="replace frames and a manifest from another preset")
+    render.add_argument("--overwrite", action="store_true", help="render every frame again, complete ones too, after removing the folder's "
+                        "frames of other settings (all of them, also outside --frames)")
 
     probe = commands.add_parser("probe", help="the surface above points: height, displacement, normal, velocity per frame")
     _add_preset_arguments(probe)

@@ -146,6 +146,21 @@ def test_progress_lines_summary_and_exit_status(tmp_path, preset_file, capsys):
     assert re.fullmatch(r"0 written, 4 skipped \(already complete\), 0 failed of 4 frames in \d+\.\d s", lines[5])
 
 
+def test_overwrite_does_what_its_help_says(tmp_path, preset_file, capsys):
+    """--overwrite renders complete frames again (its help said only "replace frames and a
+    manifest from another preset"), and its help says so."""
+    out = tmp_path / "out"
+    assert main(_render_args(preset_file(), out, "--frames", "1001-1002")) == 0
+    capsys.readouterr()
+    assert main(_render_args(preset_file(), out, "--frames", "1001-1002", "--overwrite")) == 0
+    assert "2 written, 0 skipped" in capsys.readouterr().out
+    with pytest.raises(SystemExit):
+        main(["render", "--help"])
+    text = " ".join(capsys.readouterr().out.split())
+    assert "--overwrite render every frame again, complete ones too, after removing the folder's frames of " \
+           "other settings (all of them, also outside --frames)" in text
+
+
 def test_a_one_frame_job_says_frame_not_frames(tmp_path, preset_file, capsys):
     """A farm chunk is often one frame: "rendering 1 frame", "of 1 frame", not "1 frames"."""
     out = tmp_path / "out"
