@@ -131,7 +131,8 @@ def build_parser() -> argparse.ArgumentParser:
     analyze.add_argument("--tile-size", type=float, default=None, metavar="METRES",
                          help="side of the area the frames cover (default: from oceanfield's EXR header)")
     analyze.add_argument("--fps", type=float, default=None, help="frames per second (default: from oceanfield's EXR header)")
-    analyze.add_argument("--channel", default=None, help="EXR channel holding height (default: from our header, else Y, then G of RGB)")
+    analyze.add_argument("--channel", default=None, help="EXR channel holding height (default: from our header, else Y, else the up "
+                         "channel of RGB: G, or B for z up)")
     analyze.add_argument("--depth", type=float, default=None, metavar="METRES", help="water depth (default: deep)")
     analyze.add_argument("--against", default=None, metavar="PRESET", help="compare with a preset's target spectrum")
     analyze.add_argument("--frames", default=None, help="frame range A-B to read")

@@ -673,3 +673,10 @@ def test_a_folder_without_a_clear_height_sequence_is_refused(tmp_path, names, fr
     _numbered_files(tmp_path / "shot", names)
     with pytest.raises(ValueError, match=fragment):
         expand_sequence(str(tmp_path / "shot"))
+
+
+def test_verdict_figures_keep_three_digits_without_a_dangling_point():
+    """'#.3g' keeps trailing zeros (1.90 m) but wrote 114 m as "114." in the verdict."""
+    from oceanfield.analysis.verdict import _num
+
+    assert [_num(v) for v in (114.2, 1.9, 0.05, 1234.0, float("nan"))] == ["114", "1.90", "0.0500", "1.23e+03", "n/a"]

@@ -132,7 +132,7 @@ def _num(value: float | None, spec: str = "#.3g") -> str:
     """A figure for the verdict, or "n/a" where it could not be measured."""
     if value is None or not math.isfinite(value):
         return "n/a"
-    return format(value, spec)
+    return format(value, spec).removesuffix(".")  # '#' keeps 1.90's zero, and 114's point
 
 
 def _percent(value: float) -> str:
