@@ -161,6 +161,51 @@ def test_overwrite_does_what_its_help_says(tmp_path, preset_file, capsys):
            "other settings (all of them, also outside --frames)" in text
 
 
+def test_a_log_whose_reader_goes_away_does_not_hang_the_render(tmp_path, preset_file):
+    """`oceanfield render ... | head -1`, or a farm's log collector that dies: the frame
+    lines meet a closed pipe. The render used to hang for ever (its writer thread died on
+    the error and the frames queued for it waited). It now renders every frame, says
+    nothing more, and ends as a closed pipe does (141), with no traceback."""
+    out = tmp_path / "out"
+    process = subprocess.Popen(["oceanfield", *_render_args(preset_file(), out, "--frames", "1001-1012")],
+                               stdout=subprocess.PIPE, stderr=subprocess.PIPE)
+    assert process.stdout.readline().startswith(b"rendering 12 frames")
+    process.stdout.close()  # the reader goes away after the first line
+    try:
+        _, err = process.communicate(timeout=120)
+    except subprocess.TimeoutExpired:
+        process.kill()
+        process.communicate()
+        pytest.fail("the render hung once its log's reader went away")
+    assert process.returncode == 141, err.decode()
+    assert b"Traceback" not in err, err.decode()
+    manifest = json.loads((out / "tiny" / MANIFEST_NAME).read_text(encoding="utf-8"))
+    assert manifest["frames_done"] == list(range(1001, 1013))
+
+
+def test_a_failing_progress_callback_fails_the_render_instead_of_hanging_it(tmp_path, preset_file):
+    """Whatever the callback raises on the writer's thread reaches the caller of render()."""
+    import threading
+
+    def broken(result):
+        raise RuntimeError("progress callback broke")
+
+    outcome = []
+
+    def run():
+        try:
+            render(plan_render(load_preset(preset_file()), root=tmp_path), workers=1, progress=broken)
+            outcome.append(None)
+        except RuntimeError as error:
+            outcome.append(error)
+
+    thread = threading.Thread(target=run, daemon=True)
+    thread.start()
+    thread.join(timeout=120)
+    assert not thread.is_alive(), "render() hung after its progress callback raised"
+    assert outcome and str(outcome[0]) == "progress callback broke"
+
+
 def test_a_one_frame_job_says_frame_not_frames(tmp_path, preset_file, capsys):
     """A farm chunk is often one frame: "rendering 1 frame", "of 1 frame", not "1 frames"."""
     out = tmp_path / "out"

@@ -901,6 +901,7 @@ class _Progress:
 
     def __init__(self, total: int) -> None:
         self.bar = None
+        self.quiet = False  # the log's reader has gone: keep rendering, stop telling
         if sys.stdout.isatty() and sys.stderr.isatty():  # a log file gets one line per frame
             from tqdm import tqdm
 
@@ -912,9 +913,17 @@ class _Progress:
             if result.status == "failed":
                 self.bar.write(f"frame {result.frame} failed: {result.error}")
             return
+        if self.quiet:
+            return
         detail = f" in {result.seconds:.2f} s" if result.status == "written" else ""
         suffix = f": {result.error}" if result.error else ""
-        print(f"frame {result.frame} {result.status}{detail}{suffix}", flush=True)
+        try:
+            print(f"frame {result.frame} {result.status}{detail}{suffix}", flush=True)
+        except BrokenPipeError:
+            # `render | head`, or a farm's log collector that died: the frames matter more
+            # than their log, so the render goes on; the command's last line meets the
+            # closed pipe again and ends it as one (cli: status 141).
+            self.quiet = True
 
     def close(self) -> None:
         if self.bar is not None:

@@ -265,18 +265,31 @@ class _ThreadSink:
         self.report = report
         self.write = write
         self.pending: queue.Queue = queue.Queue(maxsize=1)
+        self.error: BaseException | None = None  # the first exception ``report`` raised
         self.thread = threading.Thread(target=self._run, name="oceanfield-writer", daemon=True)
         self.thread.start()
 
     def submit(self, frame: int, jobs: list[FileJob], started: float) -> None:
+        self._raise_reported()
         self.pending.put((frame, jobs, started))
 
     def _run(self) -> None:
+        # This thread must outlive whatever ``report`` raises: a dead writer left the
+        # render waiting for ever on its queue (a progress line meeting a closed pipe).
         while True:
             item = self.pending.get()
             if item is None:
                 return
-            self.report(_write_result(*item, self.write))
+            if self.error is not None:
+                continue  # the render stops at its next submit or close: drop the rest
+            try:
+                self.report(_write_result(*item, self.write))
+            except BaseException as error:  # noqa: BLE001 - handed to the render's thread
+                self.error = error
+
+    def _raise_reported(self) -> None:
+        if self.error is not None:
+            raise self.error
 
     def close(self, *, abort: bool = False) -> None:
         """Wait for the frames queued to be written; with ``abort``, only for the one
@@ -289,3 +302,5 @@ class _ThreadSink:
                 pass
         self.pending.put(None)
         self.thread.join()
+        if not abort:
+            self._raise_reported()
