@@ -313,6 +313,11 @@ def test_missing_file_and_unknown_name(tmp_path):
         load_preset(tmp_path / "absent.yaml")
     with pytest.raises(PresetError, match="no shipped preset named `storm_force_tenn` — did you mean `storm_force_ten`"):
         load_preset("storm_force_tenn")
+    # a shipped preset's name with .yaml added, in a folder without that file
+    with pytest.raises(PresetError) as caught:
+        load_preset(tmp_path / "fresh_chop.yaml")
+    assert str(caught.value).endswith(
+        "fresh_chop.yaml: no such preset file (the shipped preset of that name is `fresh_chop`, without .yaml)")
 
 
 # -- random documents ----------------------------------------------------------------------

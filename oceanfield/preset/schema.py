@@ -546,7 +546,10 @@ def _top_path(ref: str | os.PathLike[str]) -> Path:
         return path
     path = Path(ref)
     if not path.is_file():
-        raise PresetError([f"{path}: no such preset file" if not path.exists() else f"{path}: not a file"])
+        why = "no such preset file" if not path.exists() else "not a file"
+        if not path.exists() and _shipped_path(path.stem)[0] is not None:
+            why += f" (the shipped preset of that name is `{path.stem}`, without .yaml)"
+        raise PresetError([f"{path}: {why}"])
     return path
 
 
