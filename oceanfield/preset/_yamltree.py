@@ -258,7 +258,10 @@ def _extends_target(
         return None
     target = path.parent / ref
     if not target.is_file():
-        errors.append(f"{node.where}: extends: no preset file `{ref}` (looked for {target.resolve()})")
+        stem = Path(ref).stem
+        shipped = not target.exists() and is_name(stem) and find_named(stem)[0] is not None
+        advice = f"; the shipped preset of that name is `{stem}`, without .yaml" if shipped else ""
+        errors.append(f"{node.where}: extends: no preset file `{ref}` (looked for {target.resolve()}){advice}")
         return None
     return target
 
