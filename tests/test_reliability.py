@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import json
 import math
+import re
 
 import numpy as np
 import pytest
@@ -123,3 +124,18 @@ def test_report_draws_a_nearby_nyquist_line():
     named = [line for line in omega_k.get_lines() if line.get_label().startswith("Nyquist")]
     assert named and named[0].get_ydata()[0] == pytest.approx(math.pi * 1.2)
     assert omega_k.get_ylim()[1] > math.pi * 1.2
+
+
+def test_report_marks_a_direction_the_clip_cannot_support():
+    """16 frames at 24 fps (0.67 s) of the 4 s sea: too short to tell which way most of its
+    waves run. The text marked the direction [unreliable]; the report's title and its
+    direction panel gave it plain."""
+    sea = SeaState((height_period(1.0, TP, spread=math.radians(25.0)),))
+    ocean = Ocean(sea, Tile(SIZE, 64), seed=3)
+    result = analyze_heights(np.array([ocean.frame(i / 24.0).height for i in range(16)]), SIZE, 24.0)
+    assert "towards_deg" in assess(result).unreliable
+    figure = report_figure(result, title="clip", verdict=format_verdict(result))
+    assert re.search(r"towards \d+° \(unreliable\)", figure._suptitle.get_text()), figure._suptitle.get_text()
+    titles = [axes.get_title() for axes in figure.axes]
+    assert any(re.match(r"Energy by direction of travel \(towards \d+° \(unreliable\), spread \d+° "
+                        r"\(unreliable\)\)", t) for t in titles), titles

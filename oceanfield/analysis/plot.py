@@ -80,10 +80,11 @@ def report_figure(result: SequenceAnalysis, *, title: str = "", against: str | N
         f"g_eff/g = {fit.g_ratio:.3f} ({fit.status})" if math.isfinite(fit.g_ratio) else "timing not measurable"
     )
     verdict_line = next((line[len("Verdict"):].strip() for line in lines if line.startswith("Verdict")), "")
-    tp = f"{result.tp:#.3g} s" + (" (unreliable)" if "tp_s" in assess(result).unreliable else "")
+    unreliable = assess(result).unreliable
+    tp = f"{result.tp:#.3g} s" + (" (unreliable)" if "tp_s" in unreliable else "")
+    towards = f"{_bearing(result.mean_direction)}°" + (" (unreliable)" if "towards_deg" in unreliable else "")
     figure.suptitle(
-        f"{title}\nHs {result.hs:#.3g} m   Tp {tp}   towards "
-        f"{_bearing(result.mean_direction)}°   {timing}" + (f"\n{verdict_line.split('. ')[0]}" if verdict_line else ""),
+        f"{title}\nHs {result.hs:#.3g} m   Tp {tp}   towards {towards}   {timing}" + (f"\n{verdict_line.split('. ')[0]}" if verdict_line else ""),
         fontsize=12,
     )
     return figure
@@ -170,11 +171,11 @@ def _direction_panel(axes, result: SequenceAnalysis) -> None:
     if math.isfinite(result.mean_direction) and closed.max() > 0:
         axes.annotate("", xy=(result.mean_direction, float(closed.max())), xytext=(0.0, 0.0),
                       arrowprops=dict(arrowstyle="->", color="#e41a1c", lw=1.5))
-    axes.set_title(
-        f"Energy by direction of travel (towards {_bearing(result.mean_direction)}°, "
-        f"spread {math.degrees(result.directional_spread):.0f}°)",
-        fontsize=10,
-    )
+    unreliable = assess(result).unreliable
+    towards = f"{_bearing(result.mean_direction)}°" + (" (unreliable)" if "towards_deg" in unreliable else "")
+    spread = f"{math.degrees(result.directional_spread):.0f}°" + (
+        " (unreliable)" if "directional_spread_deg" in unreliable else "")
+    axes.set_title(f"Energy by direction of travel (towards {towards}, spread {spread})", fontsize=10)
     axes.set_yticklabels([])
 
 
