@@ -564,3 +564,15 @@ def test_a_new_file_layout_makes_old_frames_stale(monkeypatch):
     now = render_hash(preset)
     monkeypatch.setattr(plan_module, "FILE_LAYOUT", plan_module.FILE_LAYOUT - 1)
     assert render_hash(preset) != now
+
+
+def test_a_banded_render_hash_changes_with_how_its_foam_is_shared(monkeypatch):
+    """Frames whose foam was shared among bands another way are never taken as done
+    (plan.BAND_FOAM is in a banded preset's hash); a single tile's hash ignores it."""
+    from oceanfield.render import plan as plan_module
+
+    banded, single = load_preset("open_ocean_horizon"), load_preset("moderate_breeze")
+    before = render_hash(banded), render_hash(single)
+    monkeypatch.setattr(plan_module, "BAND_FOAM", plan_module.BAND_FOAM + 1)
+    assert render_hash(banded) != before[0]
+    assert render_hash(single) == before[1]

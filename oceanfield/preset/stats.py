@@ -43,23 +43,22 @@ def surface_shares(ocean, *, times: list[float] | None = None) -> tuple[float, f
     return float(np.mean(folded)), float(np.mean(foamy))
 
 
-def summed_surface_shares(oceans, fold_threshold: float, foam_ramp: float) -> tuple[float, float]:
-    """(folded share, foam share) of the surface several bands make together.
+def summed_surface_shares(oceans) -> tuple[float, float]:
+    """(folded share, foam share) of a band stack's surface.
 
-    The summed surface's Jacobian comes from the bands' summed derivatives, whose
-    covariances add (independent amplitudes); the shares are those of the Gaussian model
-    of that Jacobian (``surface.whitecaps``, which the bands' shared fold threshold is
-    solved on): J < 0, and foam above ½, i.e. J < threshold − ramp/2. No frames: no band's
-    own frames show the sum.
+    Folded: of the summed surface, whose Jacobian comes from the bands' summed
+    derivatives (their covariances add: independent amplitudes), from the Gaussian model
+    of that Jacobian (``surface.whitecaps``): J < 0. Foam: above ½ in the largest of the
+    bands' foam maps (how the README combines them), each band's share from its own
+    Jacobian and threshold (``whitecaps.foam_share_of_bands``; with the automatic
+    threshold only the peak's band foams, over the wind's whitecap share). No frames.
     """
     from ..surface import whitecaps
 
     covariance = whitecaps.summed_jacobian_covariance(oceans)
     if not np.any(np.diag(covariance) > 0.0):  # no lateral displacement: nothing folds or foams
         return 0.0, 0.0
-    folded = whitecaps.jacobian_share_below(covariance, 0.0)
-    foamy = whitecaps.jacobian_share_below(covariance, fold_threshold - 0.5 * foam_ramp) if math.isfinite(fold_threshold) else 0.0
-    return folded, foamy
+    return whitecaps.jacobian_share_below(covariance, 0.0), whitecaps.foam_share_of_bands(oceans)
 
 
 def fold_fraction(ocean, *, times: list[float] | None = None) -> float:
@@ -142,8 +141,12 @@ def sea_report(preset, *, build_progress=None) -> dict[str, Any]:
     ocean = oceans[0]
     tile = ocean.tile
     threshold = ocean.fold_threshold
+    whitecaps_in: dict[str, int] = {}
     if preset.bands.active:  # the surface seen is the bands' sum, not band 0
-        folded, foamy = summed_surface_shares(oceans, threshold, ocean.foam_ramp)
+        threshold = oceans[stack.whitecap_band].fold_threshold  # the band whose foam map holds the whitecaps
+        folded, foamy = summed_surface_shares(oceans)
+        if ocean.whitecap_coverage is not None and math.isfinite(threshold):
+            whitecaps_in = {"whitecap_band": stack.whitecap_band}  # (--json: the band index)
     else:
         folded, foamy = surface_shares(ocean)
     banding = _band_rows(sea, _report_bands(preset), preset)
@@ -179,6 +182,7 @@ def sea_report(preset, *, build_progress=None) -> dict[str, Any]:
         "whitecap_coverage": ocean.whitecap_coverage,
         "foam_surface_share": foamy,
         "fold_threshold": threshold if math.isfinite(threshold) else None,
+        **whitecaps_in,
         **banding,
         "second_order": second_order_report(ocean, preset.surface.bound_waves),
     }
@@ -336,7 +340,8 @@ def _foam_line(report: dict[str, Any]) -> str:
         return f"foam: {shown} (fold threshold {threshold:g} set by the preset)"
     if threshold is None:
         return "foam: none (no wind-driven component, or no lateral displacement, to make whitecaps)"
+    where = f"carried by band {report['whitecap_band']}'s foam map alone; " if "whitecap_band" in report else ""
     return (
         f"foam: {shown}; the wind calls for whitecaps on {report['whitecap_coverage'] * 100:.2f} % "
-        f"(Monahan & O'Muircheartaigh 1980; fold threshold {threshold:.3f})"
+        f"(Monahan & O'Muircheartaigh 1980; {where}fold threshold {threshold:.3f})"
     )

@@ -35,6 +35,10 @@ LAYERS_MAP = "layers"  # the multi-layer file's {map} in the file pattern
 #: the old way are re-rendered, never mixed with new ones. 2: the tile's y = 0 is the
 #: image's bottom row (1 had it in the top row).
 FILE_LAYOUT = 2
+#: How a band stack's foam is shared among its bands' maps, in a banded render's hash only
+#: (single tiles are unchanged). 2: the whitecaps in the peak's band alone, the composite
+#: with its own threshold (1 had one threshold over the summed bands: nearly bare maps).
+BAND_FOAM = 2
 
 
 # -- what to render --------------------------------------------------------------------------
@@ -84,7 +88,8 @@ def select_chunk(frames: Sequence[int], text: str | None) -> list[int]:
 def render_hash(preset) -> str:
     """Hash of everything in ``preset`` that changes a frame's files.
 
-    The preset's hash with ``last_frame`` left out, together with :data:`FILE_LAYOUT`:
+    The preset's hash with ``last_frame`` left out, together with :data:`FILE_LAYOUT` (and,
+    for a banded preset, :data:`BAND_FOAM`):
     extending a sequence keeps the frames already rendered valid, while any change to the
     sea, tile, time mapping, maps or encoding — or to how this version lays a tile into a
     file — changes the hash, so frames of another layout are never taken as done.
@@ -95,7 +100,8 @@ def render_hash(preset) -> str:
 
     timing = dataclasses.replace(preset.time, last_frame=preset.time.first_frame)
     settings = preset_hash(dataclasses.replace(preset, time=timing))
-    return hashlib.sha256(f"{settings} layout {FILE_LAYOUT}".encode("utf-8")).hexdigest()
+    layout = f"layout {FILE_LAYOUT}" + (f" band foam {BAND_FOAM}" if preset.bands.active else "")
+    return hashlib.sha256(f"{settings} {layout}".encode("utf-8")).hexdigest()
 
 
 @dataclass(frozen=True)

@@ -31,7 +31,8 @@ from numpy.typing import NDArray
 
 from ..physics._brent import bracketed_root
 
-__all__ = ["jacobian_covariance", "summed_jacobian_covariance", "jacobian_share_below", "fold_threshold_for_coverage"]
+__all__ = ["jacobian_covariance", "summed_jacobian_covariance", "covariance_of", "foam_share_of_bands",
+           "jacobian_share_below", "fold_threshold_for_coverage"]
 
 _BLOCK_ROWS = 128
 #: Standard-normal grid over ±8 σ in steps of 0.05 σ for the two diagonal derivatives:
@@ -87,11 +88,29 @@ def summed_jacobian_covariance(oceans) -> NDArray[np.float64]:
     derivatives add and their amplitudes are independent, so their covariances add. Each
     Ocean's own (``jacobian_covariance``, kept when its foam threshold was solved) is used
     when it has one, else computed from its amplitudes."""
-    return sum(
-        ocean.jacobian_covariance if ocean.jacobian_covariance is not None
-        else jacobian_covariance(ocean.amplitudes, ocean.tile.dk, ocean.lateral_factor)
-        for ocean in oceans
-    )
+    return sum(covariance_of(ocean) for ocean in oceans)
+
+
+def covariance_of(ocean) -> NDArray[np.float64]:
+    """An Ocean's Jacobian covariance: the one kept when its foam threshold was solved, else
+    computed from its amplitudes (``jacobian_covariance``)."""
+    if ocean.jacobian_covariance is not None:
+        return ocean.jacobian_covariance
+    return jacobian_covariance(ocean.amplitudes, ocean.tile.dk, ocean.lateral_factor)
+
+
+def foam_share_of_bands(oceans) -> float:
+    """Share of the surface where the largest of several bands' foam maps exceeds ½ (how
+    a band stack's foam is combined): each band's share from its own Jacobian and fold
+    threshold (none where the threshold is −inf), and, the bands being independent,
+    1 − Π (1 − shareᵦ)."""
+    clear = 1.0
+    for ocean in oceans:
+        if math.isfinite(ocean.fold_threshold):
+            cov = covariance_of(ocean)
+            if np.any(np.diag(cov) > 0.0):
+                clear *= 1.0 - jacobian_share_below(cov, ocean.fold_threshold - 0.5 * ocean.foam_ramp)
+    return 1.0 - clear
 
 
 def jacobian_share_below(cov: NDArray[np.float64], threshold: float, *, _model=None) -> float:
