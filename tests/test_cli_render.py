@@ -103,6 +103,17 @@ def test_an_unreachable_scheduler_is_refused_quickly(tmp_path, preset_file, caps
     assert _files(out) == {}  # no frames, no temporaries, no manifest
 
 
+def test_workers_with_a_scheduler_are_refused(tmp_path, preset_file, capsys):
+    """--workers sets local processes; with --scheduler the cluster's workers render, so
+    the two together are a mistake, not a silent no-op."""
+    out = tmp_path / "out"
+    status = main(["render", str(preset_file()), "--out", str(out), "--workers", "3", "--scheduler", "tcp://127.0.0.1:9"])
+    captured = capsys.readouterr()
+    assert status == 2
+    _assert_one_error_block(captured.err, "--workers", "--scheduler")
+    assert _files(out) == {}
+
+
 def test_another_preset_into_a_rendered_folder_is_refused(tmp_path, preset_file, capsys):
     out = tmp_path / "out"
     assert main(_render_args(preset_file(), out, "--frames", "1001-1002")) == 0

@@ -796,6 +796,9 @@ def run_render_command(args) -> int:
     plan = plan_render(preset, root=root, frames=args.frames, chunk=args.chunk)
     if args.workers is not None and args.workers < 1:
         raise ValueError(f"--workers: {args.workers} is not allowed; allowed: an integer >= 1")
+    if args.workers is not None and args.scheduler is not None:
+        raise ValueError(f"--workers: {args.workers} has no effect with --scheduler (the cluster's workers render); "
+                         f"allowed: one of the two")
     # Warnings about the preset are the job's, not each farm chunk's: the whole job and its
     # first chunk print them; other chunks skip the sea's statistics they need (a
     # noticeable share of a short chunk's start-up).
