@@ -655,11 +655,15 @@ def _numbered_files(folder, names, count=3):
         (["height", "displacement", "normal", "foam"], "height.####.exr"),
         (["displacement", "normal", "foam"], "displacement.####.exr"),
         (["surface_P"], "surface_P.####.exr"),
+        ([f"band{b}_{m}" for b in range(3) for m in ("displacement", "normal", "foam")]
+         + ["composite_displacement", "composite_foam"], "composite_displacement.####.exr"),
+        ([f"band{b}_{m}" for b in range(3) for m in ("displacement", "normal")], "band0_displacement.####.exr"),
     ],
 )
 def test_a_folder_names_its_height_sequence(tmp_path, names, chosen):
     """A supervisor can point the analyzer at a folder: one sequence is taken as it is;
-    among our maps, height is preferred, then displacement."""
+    among our maps, height is preferred, then displacement; of a band stack's render, the
+    composite's, else the widest band's."""
     from oceanfield.io.sequence import folder_sequence
 
     _numbered_files(tmp_path / "shot", names)
