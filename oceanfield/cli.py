@@ -277,6 +277,7 @@ def _warn(preset, *, folding: bool = True) -> None:
 
 def _cmd_presets(args: argparse.Namespace) -> int:
     from .preset.schema import PresetError, list_presets, load_preset, to_sea_state
+    from .preset.stats import figure_text
 
     rows = []
     for name, _path, description in list_presets():
@@ -308,7 +309,8 @@ def _cmd_presets(args: argparse.Namespace) -> int:
             print(f"{row['name']:<24} (does not load: {row['error']})")
             continue
         print(
-            f"{row['name']:<24} {row['hs_m']:>7.2f} {row['tp_s']:>6.2f} {row['peak_wavelength_m']:>8.1f} "
+            f"{row['name']:<24} {figure_text(row['hs_m'], 2):>7} {figure_text(row['tp_s'], 2):>6} "
+            f"{figure_text(row['peak_wavelength_m'], 1):>8} "
             f"{round(row['towards_deg']) % 360:>7d}° {row['beaufort']:>4d}  {row['description']}"
         )
     return 0

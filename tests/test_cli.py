@@ -260,3 +260,14 @@ def test_a_file_error_reaching_the_command_line_is_one_line_and_exit_2(monkeypat
     assert main(["presets"]) == 2
     error = capsys.readouterr().err.strip().splitlines()
     assert error == ["oceanfield: error: /nowhere/table.csv: No such file or directory"]
+
+
+def test_small_seas_keep_their_figures_in_the_tables(capsys):
+    """A pond's 0.14 m peak wavelength read "0.1" in `presets` (one decimal for metres):
+    figures under 1 keep three significant digits."""
+    from oceanfield.preset.stats import figure_text
+
+    assert [figure_text(v, 1) for v in (0.1423, 76.14, 0.0, 0.00871)] == ["0.142", "76.1", "0.0", "0.00871"]
+    assert main(["presets"]) == 0
+    line = next(l for l in capsys.readouterr().out.splitlines() if l.startswith("pond_ripples"))
+    assert line.split()[1:4] == ["0.01", "0.3", "0.142"]

@@ -16,7 +16,7 @@ from typing import Any
 
 import numpy as np
 
-__all__ = ["sea_report", "format_sea_report", "fold_fraction", "surface_shares", "summed_surface_shares", "fold_warning",
+__all__ = ["sea_report", "format_sea_report", "figure_text", "fold_fraction", "surface_shares", "summed_surface_shares", "fold_warning",
            "expected_folded_share"]
 
 _FOLD_SAMPLES = 4  # frames spread over a peak period, averaged for the folded fraction
@@ -272,8 +272,9 @@ def format_sea_report(report: dict[str, Any]) -> str:
         rows.append(("total", report["total"]))
     for label, row in rows:
         lines.append(
-            f"{label[:22]:<22} {row['hs_m']:>7.2f} {row['tp_s']:>6.2f} {row['tm02_s']:>7.2f} "
-            f"{row['peak_wavelength_m']:>8.1f} {row['peak_phase_speed_mps']:>7.2f} "
+            f"{label[:22]:<22} {figure_text(row['hs_m'], 2):>7} {figure_text(row['tp_s'], 2):>6} "
+            f"{figure_text(row['tm02_s'], 2):>7} "
+            f"{figure_text(row['peak_wavelength_m'], 1):>8} {figure_text(row['peak_phase_speed_mps'], 2):>7} "
             f"{row['significant_steepness']:>6.3f} {round(row['towards_deg']) % 360:>7d}° "
             f"{row['directional_spread_deg']:>6.0f}° {row['beaufort']:>4d}"
         )
@@ -331,6 +332,14 @@ def format_sea_report(report: dict[str, Any]) -> str:
             f"(predicted); bound waves {state} (bound_waves: {str(second['setting']).lower()}){reason}"
         )
     return "\n".join(lines)
+
+
+def figure_text(value: float, decimals: int) -> str:
+    """A table's figure: ``decimals`` places, but three significant digits below 1, so a
+    pond's 0.0123 m waves do not read 0.01 (or 0.0)."""
+    if value != 0.0 and abs(value) < 1.0 and math.isfinite(value):
+        return f"{value:.3g}"
+    return f"{value:.{decimals}f}"
 
 
 def _foam_line(report: dict[str, Any]) -> str:
