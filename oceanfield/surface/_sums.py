@@ -12,9 +12,12 @@ where Newton cannot make progress (at a fold, where the lateral map turns back):
 over the fold, with μ doubling on each such step in a row (|F| is small near a fold), to
 a layer of the surface that lands on the target. Where the surface folds, several layers
 land on one point; the inversion returns one of them, and its residual says whether it
-got there. Points
-are independent, so the loop over them runs in parallel; each sum is one pass over the
-modes with one sine and cosine each. `surface_point_reference` is the same by numpy.
+got there. The inversion needs only the lateral displacement and its derivatives, so it
+sums only the modes that move sideways (``lkx`` …: the others, bound waves, add exact
+zeros there; with them a probe on a sea with bound waves summed ~150 times the modes at
+each of its steps); the final evaluation sums them all. Points are independent, so the
+loop over them runs in parallel; each sum is one pass over the modes with one sine and
+cosine each. `surface_point_reference` is the same by numpy.
 """
 
 from __future__ import annotations
@@ -78,7 +81,8 @@ def _sums(kx, ky, omega, a, bx, by, x, y, t, rates):  # pragma: no cover - compi
 
 
 @numba.njit(parallel=True, cache=True, fastmath=False)
-def surface_point_kernel(kx, ky, omega, a, bx, by, x, y, t, invert, tolerance, max_iterations, out):  # pragma: no cover
+def surface_point_kernel(kx, ky, omega, a, bx, by, lkx, lky, lomega, la, lbx, lby,  # pragma: no cover
+                         x, y, t, invert, tolerance, max_iterations, out):
     for m in numba.prange(x.shape[0]):
         X = x[m]
         Y = y[m]
@@ -88,11 +92,11 @@ def surface_point_kernel(kx, ky, omega, a, bx, by, x, y, t, invert, tolerance, m
         iterations = 0
         residual = 0.0
         if invert:
-            v = _sums(kx, ky, omega, a, bx, by, x0, y0, T, False)
+            v = _sums(lkx, lky, lomega, la, lbx, lby, x0, y0, T, False)
             # first guess: one fixed-point step from the target itself
             x0 = X - v[0]
             y0 = Y - v[1]
-            v = _sums(kx, ky, omega, a, bx, by, x0, y0, T, False)
+            v = _sums(lkx, lky, lomega, la, lbx, lby, x0, y0, T, False)
             fx = x0 + v[0] - X
             fy = y0 + v[1] - Y
             residual = math.sqrt(fx * fx + fy * fy)
@@ -119,7 +123,7 @@ def surface_point_kernel(kx, ky, omega, a, bx, by, x, y, t, invert, tolerance, m
                     for _ in range(_HALVINGS):
                         nx0 = x0 + step * sx
                         ny0 = y0 + step * sy
-                        w = _sums(kx, ky, omega, a, bx, by, nx0, ny0, T, False)
+                        w = _sums(lkx, lky, lomega, la, lbx, lby, nx0, ny0, T, False)
                         gx = nx0 + w[0] - X
                         gy = ny0 + w[1] - Y
                         r = math.sqrt(gx * gx + gy * gy)
@@ -140,7 +144,7 @@ def surface_point_kernel(kx, ky, omega, a, bx, by, x, y, t, invert, tolerance, m
                     x0 = x0 - relax * fx
                     y0 = y0 - relax * fy
                     relax = min(2.0 * relax, _MAX_RELAXATION)  # near a fold |F| is small: lengthen the stride
-                    v = _sums(kx, ky, omega, a, bx, by, x0, y0, T, False)
+                    v = _sums(lkx, lky, lomega, la, lbx, lby, x0, y0, T, False)
                     fx = x0 + v[0] - X
                     fy = y0 + v[1] - Y
                     residual = math.sqrt(fx * fx + fy * fy)

@@ -118,8 +118,11 @@ def surface_at(
     if not (np.all(np.isfinite(xs)) and np.all(np.isfinite(ys)) and np.all(np.isfinite(ts))):
         raise ValueError("x, y, t: not all finite; allowed: finite positions in metres and times in seconds")
     out = np.empty((xs.size, len(_sums.OUTPUT_COLUMNS)), dtype=np.float64)
+    every = (modes.kx, modes.ky, modes.omega, modes.height, modes.lateral_x, modes.lateral_y)
+    sideways = (modes.lateral_x != 0) | (modes.lateral_y != 0)  # in order: the same sums, bit for bit
+    lateral = every if sideways.all() else tuple(np.ascontiguousarray(v[sideways]) for v in every)
     _sums.surface_point_kernel(
-        modes.kx, modes.ky, modes.omega, modes.height, modes.lateral_x, modes.lateral_y,
+        *every, *lateral,
         np.ascontiguousarray(xs.ravel()), np.ascontiguousarray(ys.ravel()), np.ascontiguousarray(ts.ravel()),
         bool(invert), float(tolerance), int(max_iterations), out,
     )
