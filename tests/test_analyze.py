@@ -684,3 +684,11 @@ def test_verdict_figures_keep_three_digits_without_a_dangling_point():
     from oceanfield.analysis.verdict import _num
 
     assert [_num(v) for v in (114.2, 1.9, 0.05, 1234.0, float("nan"))] == ["114", "1.90", "0.0500", "1.23e+03", "n/a"]
+
+
+def test_a_report_under_a_file_is_refused_before_reading(tmp_path, capsys):
+    """--report's folder is made if missing (as preview, probe and render make theirs);
+    one under a file is one line naming both, before any frame is read."""
+    (tmp_path / "afile").write_text("x", encoding="utf-8")
+    line = _error(capsys, _small_sequence(tmp_path), *BASIC, "--report", str(tmp_path / "afile" / "r.png"))
+    assert "--report" in line and "afile" in line and "is a file" in line

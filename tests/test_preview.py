@@ -86,3 +86,16 @@ def test_flipbook_errors_exit_2(tmp_path, capsys):
         assert main([*base, "--frames", "1001-1003", "--out", str(tmp_path / "x.mp4")]) == 2
         assert "oceanfield[video]" in capsys.readouterr().err
     assert not list(tmp_path.iterdir())
+
+
+def test_preview_makes_its_folder_and_refuses_one_under_a_file(tmp_path, capsys):
+    """--out's folder is made if missing, as render, probe, float and scene make theirs; a
+    path under a file is one line, exit status 2, nothing written."""
+    base = ["preview", "fresh_chop", "--set", "tile.resolution=32"]
+    out = tmp_path / "shots" / "day1" / "p.png"
+    assert main([*base, "--out", str(out)]) == 0
+    assert out.stat().st_size > 0
+    (tmp_path / "afile").write_text("x", encoding="utf-8")
+    assert main([*base, "--out", str(tmp_path / "afile" / "p.png")]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "--out" in err[0] and "is a file" in err[0]

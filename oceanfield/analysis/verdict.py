@@ -281,8 +281,12 @@ def run_analyze_command(args: argparse.Namespace) -> int:
         report = Path(args.report)
         if report.suffix.lower() != ".png":
             raise ValueError(f"--report: {args.report!r} is not allowed; allowed: a file name ending in .png")
-        if not report.parent.is_dir() and str(report.parent) != "":
-            raise ValueError(f"--report: the folder '{report.parent}' does not exist")
+        from ..io.atomic import OutputError, prepare_output
+
+        try:  # its folder is made if missing, before the frames are read
+            prepare_output(report)
+        except OutputError as error:
+            raise ValueError(f"--report: {error}") from None
     files = select_frames(expand_sequence(args.sequence), args.frames)
     # Decompress each file's chunks on every core (the OpenEXR binding's pool; 1024² ZIP
     # displacement files: 19 ms a file on 2 threads against 25-27 ms on one).

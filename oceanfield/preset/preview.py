@@ -128,10 +128,12 @@ def _out_path(preset, out: str | Path | None, suffixes: tuple[str, ...], default
     if path.suffix.lower() not in suffixes:
         allowed = " or ".join(suffixes)
         raise ValueError(f"--out: {str(path)!r} is not allowed; allowed: a file name ending in {allowed}")
-    if out is None:  # the default folder is ours to make, as render makes its own
-        path.parent.mkdir(parents=True, exist_ok=True)
-    if not path.parent.is_dir():
-        raise ValueError(f"--out: folder {str(path.parent)!r} does not exist; allowed: a path in an existing folder")
+    from ..io.atomic import OutputError, prepare_output
+
+    try:  # its folder is made if missing, as render, probe, float and scene make theirs
+        prepare_output(path)
+    except OutputError as error:
+        raise ValueError(f"--out: {error}") from None
     return path
 
 
