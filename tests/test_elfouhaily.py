@@ -68,8 +68,10 @@ def test_variance_is_finite_and_matches_the_sea_state():
 
 
 # Cox & Munk (1954), clean surface: mss = 0.003 + 5.12e-3 U ± 0.004, U at 12.5 m. The total
-# is from memory; its two components, up-wind 3.16e-3 U and cross-wind 0.003 + 1.92e-3 U,
-# are confirmed by Mobley's Ocean Optics Web Book ("Cox-Munk sea surface slope statistics").
+# as quoted in Advances in Geosciences ("Rough sea surface reflection: Cox and Munk MSS",
+# eq. 3; the ± 0.004 from memory); its two components, up-wind 3.16e-3 U and cross-wind
+# 0.003 + 1.92e-3 U, as in Mobley's Ocean Optics Web Book ("Cox-Munk sea surface slope
+# statistics").
 def cox_munk(u):
     return 0.003 + 5.12e-3 * u
 
