@@ -127,7 +127,7 @@ def test_preview_writes_a_picture_that_is_not_blank(tmp_path, capsys):
         (["stats", "no_such_sea"], "no_such_sea"),
         (["stats", "fresh_chop", "--set", "tile.resolution=abc"], "tile.resolution"),
         (["stats", "fresh_chop", "--set", "sea.depth_m=-3"], "depth_m"),
-        (["preview", "fresh_chop", *SMALL, "--out", "/no/such/folder/x.png"], "--out"),
+        (["preview", "fresh_chop", *SMALL, "--out", "/dev/null/x.png"], "--out"),  # a folder under a file
         (["preview", "fresh_chop", *SMALL, "--out", "picture.jpg"], "--out"),
     ],
 )
