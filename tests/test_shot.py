@@ -113,6 +113,19 @@ def test_float_writes_position_and_rotation_in_scene_axes(tmp_path, preset_file)
     assert np.linalg.norm(q) == pytest.approx(1.0, abs=1e-12)
 
 
+def test_a_body_longer_than_the_tile_is_warned_of(tmp_path, preset_file, capsys):
+    """The sea repeats with the tile: a hull longer than it would have bow and stern on the
+    same water, so `float` says so (one warning line) and still writes its table."""
+    path = preset_file(settings={"tile": {"size_m": 20.0, "resolution": 32}})
+    out = tmp_path / "long.csv"
+    assert main(["float", str(path), "--frames", "1001", "--body", "name=barge,x_m=0,y_m=0,length_m=30,beam_m=8",
+                 "--body", "name=dinghy,x_m=5,y_m=0,length_m=4,beam_m=2", "--out", str(out)]) == 0
+    warnings = [line for line in capsys.readouterr().err.splitlines() if "warning" in line]
+    assert warnings == ["oceanfield: warning: body 'barge' is 30 m long, more than the 20 m tile: the sea "
+                        "repeats under it, so parts of it ride the same water; use a larger tile.size_m (or bands)"]
+    assert len(out.read_text().splitlines()) == 3
+
+
 @pytest.fixture
 def usd():
     return pytest.importorskip("pxr", reason="usd-core is in the test extra; install it with pip install '.[test]'")

@@ -258,7 +258,13 @@ def body_table(preset, ocean, bodies, frames: Sequence[int], times: np.ndarray):
                "pitch_bow_up_deg", "roll_starboard_down_deg", "heading_deg",
                "orientation_w", "orientation_X", "orientation_Y", "orientation_Z", "waterplane_samples", "residual_m"]
     motions = []
+    tile = _largest_tile(ocean)
     for body in bodies:
+        if max(body.length, body.beam) > tile.size:  # its waterplane samples wrap onto one tile
+            size = f"{body.length:.3g} m long" if body.length >= body.beam else f"{body.beam:.3g} m wide"
+            print(f"oceanfield: warning: body {body.name!r} is {size}, more than the {tile.size:.3g} m "
+                  f"{'widest band' if _banded(ocean) else 'tile'}: the sea repeats under it, so parts of "
+                  f"it ride the same water; use a larger tile.size_m (or bands)", file=sys.stderr)
         motion = body_motion(modes, body, times, spacing=_finest_spacing(ocean))
         position = motion.position @ axes.T / mpu
         rotation = axes @ motion.rotation @ axes.T
