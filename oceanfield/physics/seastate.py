@@ -489,9 +489,9 @@ class SeaState:
         dtheta = 2.0 * np.pi / theta.size
         cos_mean = (d * np.cos(theta)[None, :]).sum(axis=1) * dtheta
         sin_mean = (d * np.sin(theta)[None, :]).sum(axis=1) * dtheta
-        m0_grid = _trapezoid(density, omega)
-        a1 = _trapezoid(density * cos_mean, omega) / m0_grid
-        b1 = _trapezoid(density * sin_mean, omega) / m0_grid
+        m0_grid = np.trapezoid(density, omega)
+        a1 = np.trapezoid(density * cos_mean, omega) / m0_grid
+        b1 = np.trapezoid(density * sin_mean, omega) / m0_grid
         m0 = self._moment(index, 0)
         return m0, a1 * m0, b1 * m0
 
@@ -555,11 +555,6 @@ class SeaState:
 #: Spectra of more points than this, of a sea whose every component drops its opposing
 #: waves, are evaluated where they can be nonzero only (a lattice block, not a few nodes).
 _WHOLE_PLANE = 4096
-
-
-def _trapezoid(y: NDArray[np.float64], x: NDArray[np.float64]) -> float:
-    """∫ y dx by the trapezoid rule on the nodes x (the sum scipy's ``trapezoid`` forms)."""
-    return (np.diff(x) * (y[1:] + y[:-1]) / 2.0).sum()
 
 
 def _direction_and_spread(direction: float, spreading_name: str, spread: float | None) -> tuple[float, float]:

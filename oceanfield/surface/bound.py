@@ -224,13 +224,6 @@ class BoundWaves:
         bound_rate_kernel(h0, self.slot, rotation, omega, self.ny, self.nx, self.pair_kernel, out)
         return out
 
-    def add_to(self, packed: NDArray[np.complex64], h0: NDArray[np.complex64],
-               rotation: NDArray[np.complex128]) -> None:
-        """Add the bound height and its slopes to a frame's packed spectra, in place."""
-        from ._bound_kernels import bound_add_kernel
-
-        bound_add_kernel(self.spectrum(h0, rotation), self.dk, packed)
-
 
 def pair_kernels(
     kx: NDArray[np.float64], ky: NDArray[np.float64], *, depth: float, lateral_factor: float,
@@ -240,7 +233,7 @@ def pair_kernels(
     less what lateral displacement λ already puts in the displaced surface,
     L± = B± ∓ λ(kᵢ + kⱼ)(k̂ᵢ·k̂ⱼ)/4 (module docstring). ``kernels``: (B⁺, B⁻) if known."""
     if kernels is None:
-        kernels = _kernels_by_rows(kx, ky, depth)
+        kernels = bound_wave_kernel_matrix(kx, ky, depth=depth)
     b_plus, b_minus = kernels
     lateral = _lateral_part(kx, ky, slice(None), lateral_factor)
     return np.ascontiguousarray(b_plus - lateral), np.ascontiguousarray(b_minus + lateral)
@@ -360,21 +353,6 @@ def _unpacked(upper: NDArray[np.float64], p: int) -> NDArray[np.float64]:
     full[i, j] = upper
     full[j, i] = upper
     return full
-
-
-def _kernels_by_rows(kx: NDArray[np.float64], ky: NDArray[np.float64], depth: float,
-                     rows: int = 128) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
-    """B± for every ordered pair, a block of rows at a time (the formula's temporaries
-    stay small)."""
-    p = kx.size
-    b_plus = np.empty((p, p))
-    b_minus = np.empty((p, p))
-    for start in range(0, p, rows):
-        block = slice(start, start + rows)
-        b_plus[block], b_minus[block] = bound_wave_kernels(
-            kx[block, None], ky[block, None], kx[None, :], ky[None, :], depth=depth
-        )
-    return b_plus, b_minus
 
 
 def _left_out_mean(
