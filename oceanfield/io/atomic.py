@@ -28,7 +28,8 @@ from pathlib import Path
 
 from oceanfield.io.errors import OutputError
 
-__all__ = ["OutputError", "atomic_output", "prepare_output", "remove_stale_temporaries", "is_temporary"]
+__all__ = ["OutputError", "atomic_output", "prepare_output", "prepare_option_output", "remove_stale_temporaries",
+           "is_temporary"]
 
 _MARKER = ".oceanfield-partial-"
 _TOKEN_HEX = 16
@@ -117,6 +118,15 @@ def prepare_output(path: str | os.PathLike[str]) -> Path:
     except OSError as exc:
         raise OutputError(final, f"cannot make its folder ({_reason(exc)})", exc.errno) from exc
     return final
+
+
+def prepare_option_output(option: str, path: str | os.PathLike[str]) -> Path:
+    """:func:`prepare_output` for a command's option naming a file: a path that cannot be
+    written is a ValueError naming the option (the command's one-line error, exit 2)."""
+    try:
+        return prepare_output(path)
+    except OutputError as error:
+        raise ValueError(f"{option}: {error}") from None
 
 
 def remove_stale_temporaries(

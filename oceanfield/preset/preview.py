@@ -128,13 +128,9 @@ def _out_path(preset, out: str | Path | None, suffixes: tuple[str, ...], default
     if path.suffix.lower() not in suffixes:
         allowed = " or ".join(suffixes)
         raise ValueError(f"--out: {str(path)!r} is not allowed; allowed: a file name ending in {allowed}")
-    from ..io.atomic import OutputError, prepare_output
+    from ..io.atomic import prepare_option_output
 
-    try:  # its folder is made if missing, as render, probe, float and scene make theirs
-        prepare_output(path)
-    except OutputError as error:
-        raise ValueError(f"--out: {error}") from None
-    return path
+    return prepare_option_output("--out", path)  # its folder made if missing, as the other commands do
 
 
 def _checked_frame(frame) -> int:

@@ -30,6 +30,7 @@ from typing import Any, Sequence
 
 import numpy as np
 
+from ..io.atomic import prepare_option_output
 from .plan import parse_frames
 
 __all__ = [
@@ -335,16 +336,6 @@ def _check_out(args) -> None:
         table_format(args.out)
 
 
-def _writable_out(path) -> None:
-    """``--out`` can be written (its folder made if missing): said before any work."""
-    from ..io.atomic import OutputError, prepare_output
-
-    try:
-        prepare_output(path)
-    except OutputError as error:
-        raise ValueError(f"--out: {error}") from None
-
-
 def run_probe_command(args) -> int:
     """``oceanfield probe``: the surface above points, per frame, as CSV or JSON."""
     return _run_table_command(args, "--at", args.at, parse_probe, probe_table)
@@ -365,7 +356,7 @@ def _run_table_command(args, option: str, texts: Sequence[str], parse, table) ->
     _unique_names(option, [item.name for item in items])
     frames, times = _frames_and_times(preset, args.frames)
     if args.out:
-        _writable_out(args.out)
+        prepare_option_output("--out", args.out)  # said before any work
     columns, rows, _, worst = table(preset, _ocean(preset), items, frames, times)
     _emit(args, columns, rows, {**_metadata(preset, frames), "worst_residual_m": worst})
     return 0
@@ -490,7 +481,7 @@ def run_scene_command(args) -> int:
     bodies = [parse_body(text, i + 1, scene) for i, text in enumerate(args.body)]
     _unique_names("--at", [p.name for p in probes])
     _unique_names("--body", [b.name for b in bodies])
-    _writable_out(out)
+    prepare_option_output("--out", out)
     ocean = _ocean(preset)
     extent, texels, what = mesh_extent(preset, ocean)
     stride = _mesh_stride(preset, args.mesh_resolution, texels, what)
