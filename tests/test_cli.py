@@ -264,10 +264,14 @@ def test_a_file_error_reaching_the_command_line_is_one_line_and_exit_2(monkeypat
 
 def test_small_seas_keep_their_figures_in_the_tables(capsys):
     """A pond's 0.14 m peak wavelength read "0.1" in `presets` (one decimal for metres):
-    figures under 1 keep three significant digits."""
+    a figure keeps its column's decimals unless they leave it under two significant
+    digits, then it keeps three."""
     from oceanfield.preset.stats import figure_text
 
     assert [figure_text(v, 1) for v in (0.1423, 76.14, 0.0, 0.00871)] == ["0.142", "76.1", "0.0", "0.00871"]
+    assert [figure_text(v, 2) for v in (0.8, 0.3, 0.01, 0.0123, 2.171)] == ["0.80", "0.30", "0.01", "0.0123", "2.17"]
     assert main(["presets"]) == 0
-    line = next(l for l in capsys.readouterr().out.splitlines() if l.startswith("pond_ripples"))
-    assert line.split()[1:4] == ["0.01", "0.3", "0.142"]
+    lines = capsys.readouterr().out.splitlines()
+    pond = next(l for l in lines if l.startswith("pond_ripples"))
+    assert pond.split()[1:4] == ["0.01", "0.30", "0.142"]
+    assert next(l for l in lines if l.startswith("shallow_coastal")).split()[1] == "0.80"

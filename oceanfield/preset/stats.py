@@ -335,11 +335,14 @@ def format_sea_report(report: dict[str, Any]) -> str:
 
 
 def figure_text(value: float, decimals: int) -> str:
-    """A table's figure: ``decimals`` places, but three significant digits below 1, so a
-    pond's 0.0123 m waves do not read 0.01 (or 0.0)."""
-    if value != 0.0 and abs(value) < 1.0 and math.isfinite(value):
+    """A table's figure: ``decimals`` places, as its column has, unless they would leave
+    it under two significant digits (a pond's 0.142 m wavelength at one place: "0.1");
+    then three significant digits."""
+    fixed = f"{value:.{decimals}f}"
+    significant = fixed.lstrip("-0.").replace(".", "")
+    if value != 0.0 and math.isfinite(value) and len(significant) < 2:
         return f"{value:.3g}"
-    return f"{value:.{decimals}f}"
+    return fixed
 
 
 def _foam_line(report: dict[str, Any]) -> str:
