@@ -189,9 +189,8 @@ def lattices_on_grid(
         c = c.reshape((-1, ny, nx))
         period = _whole_period(dk, spacing, max(ny, nx), count)
         if period:
-            rows = _fft_axis(c, dk, origin[0], period, count, fft_workers)  # (B, ny, count)
-            grid = _fft_axis(rows.transpose(0, 2, 1), dk, origin[1], period, count, fft_workers)
-            grid = grid.transpose(0, 2, 1)  # (B, count_y, count_x)
+            rows = _fft_axis(c, dk, origin[0], period, count, -1, fft_workers)  # (B, ny, count)
+            grid = _fft_axis(rows, dk, origin[1], period, count, -2, fft_workers)  # (B, count, count)
             total = grid if total is None else total + grid
             continue
         px = _folded(dk * (origin[0] + steps * spacing))
@@ -224,21 +223,35 @@ def _whole_period(dk: float, spacing: float, n: int, count: int) -> int:
     return int(period)
 
 
-def _fft_axis(c: NDArray[np.complex128], dk: float, start: float, period: int, count: int,
+def _fft_axis(c: NDArray[np.complex128], dk: float, start: float, period: int, count: int, axis: int,
               workers: int | None) -> NDArray[np.complex128]:
-    """Σ_n c[..., n] e^{i n dk (start + j·spacing)}, j < count, along the last axis, where
+    """Σ_n c[n] e^{i n dk (start + j·spacing)}, j < count, along ``axis`` (−1 or −2), where
     dk·spacing = 2π/period: the coefficients times e^{i n dk start}, placed at n mod period,
     and an unnormalised inverse FFT of that length (the grid wraps every period points)."""
     import scipy.fft
 
-    n = c.shape[-1]
-    index = np.fft.fftfreq(n, 1.0 / n).astype(np.int64)
-    padded = np.zeros(c.shape[:-1] + (period,), dtype=np.complex128)
-    padded[..., index % period] = c * np.exp(1j * index * dk * start)
-    out = scipy.fft.ifft(padded, axis=-1, norm="forward", workers=workers, overwrite_x=True)
+    n = c.shape[axis]
+    low = (n + 1) // 2  # wave indices 0 … low − 1, then −(n − low) … −1
+
+    def along(piece: slice) -> tuple:
+        return (Ellipsis, piece) if axis == -1 else (Ellipsis, piece, slice(None))
+
+    shape = list(c.shape)
+    shape[axis] = period
+    padded = np.zeros(shape, dtype=np.complex128)
+    if start == 0.0:
+        padded[along(slice(0, low))] = c[along(slice(0, low))]
+        padded[along(slice(period - (n - low), None))] = c[along(slice(low, None))]
+    else:
+        phase = np.exp(1j * np.fft.fftfreq(n, 1.0 / n) * dk * start)
+        phase = phase if axis == -1 else phase[:, None]
+        np.multiply(c[along(slice(0, low))], phase[along(slice(0, low))], out=padded[along(slice(0, low))])
+        np.multiply(c[along(slice(low, None))], phase[along(slice(low, None))],
+                    out=padded[along(slice(period - (n - low), None))])
+    out = scipy.fft.ifft(padded, axis=axis, norm="forward", workers=workers, overwrite_x=True)
     if count > period:
-        return np.take(out, np.arange(count) % period, axis=-1)
-    return out[..., :count]
+        return np.take(out, np.arange(count) % period, axis=axis)
+    return out[along(slice(0, count))]
 
 
 def crop_lattice(coefficients: NDArray, half: int) -> NDArray:
