@@ -193,26 +193,33 @@ def lattices_on_grid(
         if period:
             rows = _fft_axis(c, dk, origin[0], period, count, -1, fft_workers)  # (B, ny, count)
             grid = _fft_axis(rows, dk, origin[1], period, count, -2, fft_workers)  # (B, count, count)
-            total = grid if total is None else total + grid
+            if total is None:
+                total = grid  # a view of a private FFT output: summed into in place
+            else:
+                total += grid
             continue
-        px = _folded(dk * (origin[0] + steps * spacing))
-        rows = finufft.nufft1d2(px, np.ascontiguousarray(c.reshape((-1, nx))), eps=eps, isign=1, modeord=1,
-                                **options).reshape((c.shape[0], ny, count))
-        n_y = np.fft.fftfreq(ny, 1.0 / ny)
-        scattered_phases.append(n_y * dk * spacing)
-        scattered_rows.append(rows * np.exp(1j * n_y * dk * origin[1])[None, :, None])
+        # y first, for every coefficient column: (B, nx, count_y), then x for every grid row
+        py = _folded(dk * (origin[1] + steps * spacing))
+        columns = np.ascontiguousarray(c.transpose(0, 2, 1)).reshape((-1, ny))
+        along_y = finufft.nufft1d2(py, columns, eps=eps, isign=1, modeord=1, **options)
+        n_x = np.fft.fftfreq(nx, 1.0 / nx)
+        scattered_phases.append(n_x * dk * spacing)
+        scattered_rows.append(along_y.reshape((c.shape[0], nx, count)) * np.exp(1j * n_x * dk * origin[0])[None, :, None])
     if scattered_rows:
-        # Σ_n r_n e^{i p_n i}, i = 0…count−1, as finufft's centred modes m = i − ⌊count/2⌋.
+        # Σ_n r_n e^{i p_n j}, j = 0…count−1, as finufft's centred modes m = j − ⌊count/2⌋.
         phases = np.concatenate(scattered_phases)
-        rows = np.concatenate(scattered_rows, axis=1)
+        rows = np.concatenate(scattered_rows, axis=1)  # (B, n, count_y)
         rows *= np.exp(1j * phases * (count // 2))[None, :, None]
-        strengths = np.ascontiguousarray(rows.transpose(0, 2, 1)).reshape((-1, phases.size))  # (B·count_x, n)
-        columns = finufft.nufft1d1(_folded(phases), strengths, count, eps=eps, isign=1, modeord=0, **options)
-        grid = columns.reshape((rows.shape[0], count, count)).transpose(0, 2, 1)
-        total = grid if total is None else total + grid
+        strengths = np.ascontiguousarray(rows.transpose(0, 2, 1)).reshape((-1, phases.size))  # (B·count_y, n)
+        grid = finufft.nufft1d1(_folded(phases), strengths, count, eps=eps, isign=1, modeord=0, **options)
+        grid = grid.reshape((rows.shape[0], count, count))  # rows y, columns x
+        if total is None:
+            total = grid
+        else:
+            total += grid
     if total is None:
         raise ValueError("lattices: empty; allowed: at least one (coefficients, dk)")
-    return np.ascontiguousarray(total).reshape(lead + (count, count))
+    return total.reshape(lead + (count, count))  # a strided view where a lattice was an FFT
 
 
 def _whole_period(dk: float, spacing: float, n: int, count: int) -> int:

@@ -134,7 +134,8 @@ class _BandLattice:
         kx, ky, keep, h0, mirror, omega = (crop_lattice(a, half) for a in (kx, ky, keep, h0, mirror,
                                                                            ocean.frequencies))
         self.kx, self.ky = kx, ky
-        self.h0, self.mirror, self.omega = np.where(keep, h0, 0.0), np.where(keep, np.conj(mirror), 0.0), omega
+        self.h0, self.mirror = np.where(keep, h0, 0.0), np.where(keep, np.conj(mirror), 0.0)
+        self.omega = np.ascontiguousarray(omega, dtype=np.float64)
         k = np.hypot(kx, ky)
         inverse_k = np.divide(1.0, k, out=np.zeros_like(k), where=k > 0)
         lam = ocean.lateral_factor
@@ -153,13 +154,14 @@ class _BandLattice:
     def packed(self, ocean, t: float) -> NDArray[np.complex128]:
         """The four packed spectra (h + i·Dx, Dy + i·∂h/∂x, ∂h/∂y + i·∂Dx/∂x,
         ∂Dy/∂y + i·∂Dx/∂y) at time t on the block, FFT layout."""
-        rotation = np.exp(-1j * self.omega * t)
-        spectrum = self.h0 * rotation + self.mirror * np.conj(rotation)  # ĥ(k, t)
-        packed = self.factors * spectrum
+        from ._kernels import block_spectra_kernel
+
+        packed = np.empty(self.factors.shape, dtype=np.complex128)
+        block_spectra_kernel(self.h0, self.mirror, self.omega, self.factors, float(t), packed)  # ĥ(k, t)·factors
         if self.bound_slots is not None:  # second-order bound waves: height and slopes, no lateral part
             small, _ = ocean.bound_spectrum(t)
             kept, slots = self.bound_slots
-            lattice = np.zeros(spectrum.shape, dtype=np.complex128)
+            lattice = np.zeros(packed.shape[1:], dtype=np.complex128)
             lattice[slots] = small[kept]
             packed[0] += lattice
             packed[1] += 1j * (1j * self.kx) * lattice
