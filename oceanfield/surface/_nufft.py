@@ -164,62 +164,81 @@ def lattices_on_grid(
     """Σ over lattices of Σ c_b[ny, nx] e^{i dk_b (nx x + ny y)}, summed on one ``count``² grid.
 
     ``lattices`` is a sequence of (coefficients (..., Ny, Nx) in FFT layout, dk in rad/m),
-    every one with the same leading axes. The sum is separable, and each axis is done the
-    cheapest exact-enough way:
+    every one with the same leading axes. The sum is separable, and each lattice takes the
+    cheapest way that keeps the promised precision:
 
-    - along x, each lattice on its own: where the grid steps a whole fraction of the
-      lattice's period (dk·spacing = 2π/P, P ≥ N an integer, as band 0 of a laid-out stack
-      on a composite of its reach), a zero-padded inverse FFT of length P, exact;
-      otherwise a 1D type-2 NUFFT of every coefficient row (``finufft.nufft1d2``);
-    - along y, the commensurate lattices each by their FFT again, and every other
-      lattice's rows together as one 1D type-1 NUFFT per grid column (``nufft1d1``: the
-      rows' ky are scattered points, the grid's y a regular output), so the bands share
-      one fine grid and its FFT.
+    - where the grid steps a whole fraction of the lattice's period (dk·spacing = 2π/P,
+      P ≥ N an integer: band 0 of a laid-out stack on a composite of its reach), a
+      zero-padded inverse FFT of length P along x, then along y: exact;
+    - every other lattice: a 1D type-2 NUFFT along y for each of its coefficient columns
+      (``finufft.nufft1d2``), then all of them together along x as one 1D type-1 NUFFT per
+      grid row (``nufft1d1``: the lattices' kx are scattered points, the grid's x a regular
+      output), so they share one fine grid and its FFT.
 
-    Returns the complex sum, shape (..., count, count).
+    The two groups run at once (finufft and scipy.fft release Python's lock). Returns the
+    complex sum, shape (..., count, count), possibly a strided view.
     """
-    import finufft
-
-    steps = np.arange(count, dtype=np.float64)
-    options = {"nthreads": int(threads), "upsampfac": _UPSAMPLING}
-    total = None
     lead = None
-    scattered_phases, scattered_rows = [], []
+    whole, scattered = [], []
     for coefficients, dk in lattices:
         c = np.asarray(coefficients, dtype=np.complex128)
-        lead, (ny, nx) = c.shape[:-2], c.shape[-2:]
-        c = c.reshape((-1, ny, nx))
-        period = _whole_period(dk, spacing, max(ny, nx), count)
-        if period:
+        lead = c.shape[:-2]
+        c = c.reshape((-1,) + c.shape[-2:])
+        period = _whole_period(dk, spacing, max(c.shape[-2:]), count)
+        (whole if period else scattered).append((c, dk, period))
+    if lead is None:
+        raise ValueError("lattices: empty; allowed: at least one (coefficients, dk)")
+
+    def by_ffts():
+        total = None
+        for c, dk, period in whole:
             rows = _fft_axis(c, dk, origin[0], period, count, -1, fft_workers)  # (B, ny, count)
             grid = _fft_axis(rows, dk, origin[1], period, count, -2, fft_workers)  # (B, count, count)
             if total is None:
                 total = grid  # a view of a private FFT output: summed into in place
             else:
                 total += grid
-            continue
-        # y first, for every coefficient column: (B, nx, count_y), then x for every grid row
-        py = _folded(dk * (origin[1] + steps * spacing))
+        return total
+
+    def by_nuffts():
+        return _scattered_on_grid([(c, dk) for c, dk, _ in scattered], spacing, count, origin, eps, threads)
+
+    if whole and scattered:
+        from concurrent.futures import ThreadPoolExecutor
+
+        with ThreadPoolExecutor(1) as pool:
+            pending = pool.submit(by_nuffts)
+            total = by_ffts()
+            total += pending.result()
+    else:
+        total = by_ffts() if whole else by_nuffts()
+    return total.reshape(lead + (count, count))
+
+
+def _scattered_on_grid(lattices, spacing: float, count: int, origin: tuple[float, float], eps: float,
+                       threads: int) -> NDArray[np.complex128]:
+    """The NUFFT part of :func:`lattices_on_grid`: (B, count, count), rows y, columns x."""
+    import finufft
+
+    steps = np.arange(count, dtype=np.float64)
+    options = {"nthreads": int(threads), "upsampfac": _UPSAMPLING}
+    phases, parts = [], []
+    for c, dk in lattices:
+        batch, ny, nx = c.shape
+        # along y for every coefficient column: (B, nx, count_y)
         columns = np.ascontiguousarray(c.transpose(0, 2, 1)).reshape((-1, ny))
-        along_y = finufft.nufft1d2(py, columns, eps=eps, isign=1, modeord=1, **options)
+        along_y = finufft.nufft1d2(_folded(dk * (origin[1] + steps * spacing)), columns, eps=eps, isign=1,
+                                   modeord=1, **options)
         n_x = np.fft.fftfreq(nx, 1.0 / nx)
-        scattered_phases.append(n_x * dk * spacing)
-        scattered_rows.append(along_y.reshape((c.shape[0], nx, count)) * np.exp(1j * n_x * dk * origin[0])[None, :, None])
-    if scattered_rows:
-        # Σ_n r_n e^{i p_n j}, j = 0…count−1, as finufft's centred modes m = j − ⌊count/2⌋.
-        phases = np.concatenate(scattered_phases)
-        rows = np.concatenate(scattered_rows, axis=1)  # (B, n, count_y)
-        rows *= np.exp(1j * phases * (count // 2))[None, :, None]
-        strengths = np.ascontiguousarray(rows.transpose(0, 2, 1)).reshape((-1, phases.size))  # (B·count_y, n)
-        grid = finufft.nufft1d1(_folded(phases), strengths, count, eps=eps, isign=1, modeord=0, **options)
-        grid = grid.reshape((rows.shape[0], count, count))  # rows y, columns x
-        if total is None:
-            total = grid
-        else:
-            total += grid
-    if total is None:
-        raise ValueError("lattices: empty; allowed: at least one (coefficients, dk)")
-    return total.reshape(lead + (count, count))  # a strided view where a lattice was an FFT
+        phases.append(n_x * dk * spacing)
+        parts.append(along_y.reshape((batch, nx, count)) * np.exp(1j * n_x * dk * origin[0])[None, :, None])
+    # Σ_n r_n e^{i p_n j}, j = 0…count−1, as finufft's centred modes m = j − ⌊count/2⌋
+    phase = np.concatenate(phases)
+    rows = np.concatenate(parts, axis=1)  # (B, n, count_y)
+    rows *= np.exp(1j * phase * (count // 2))[None, :, None]
+    strengths = np.ascontiguousarray(rows.transpose(0, 2, 1)).reshape((-1, phase.size))  # (B·count_y, n)
+    grid = finufft.nufft1d1(_folded(phase), strengths, count, eps=eps, isign=1, modeord=0, **options)
+    return grid.reshape((rows.shape[0], count, count))
 
 
 def _whole_period(dk: float, spacing: float, n: int, count: int) -> int:
