@@ -143,7 +143,7 @@ def surface_at(
     every = (modes.kx, modes.ky, modes.omega, modes.height, modes.lateral_x, modes.lateral_y)
     sideways = (modes.lateral_x != 0) | (modes.lateral_y != 0)  # in order: the same sums, bit for bit
     lateral = every if sideways.all() else tuple(np.ascontiguousarray(v[sideways]) for v in every)
-    points = (np.ascontiguousarray(xs.ravel()), np.ascontiguousarray(ys.ravel()), np.ascontiguousarray(ts.ravel()))
+    points = tuple(np.array(v.ravel(), dtype=np.float64) for v in (xs, ys, ts))  # own copies, not broadcast views
     options = (bool(invert), float(tolerance), int(max_iterations))
     if method == "auto":
         method = "sampled" if _sampling_pays(modes, points[2]) else "exact"
