@@ -368,16 +368,19 @@ def sample_grids(modes, t: float, *, fft_workers: int | None = None):
     """
     import scipy.fft
 
+    from ._kernels import rotation_kernel
     from ._sums import scatter_kernel
 
     groups = sample_groups(modes)
+    rotations = np.empty(len(modes), dtype=np.complex128)
+    rotation_kernel(modes.omega, float(t), rotations)  # e^{−iωt} of every mode
     offsets = np.cumsum([0] + [pairs * size * size for *_, size, pairs in groups])
     flat = np.zeros(int(offsets[-1]), dtype=np.complex128)
     for (dk, moving, pick, half, size, pairs), offset in zip(groups, offsets):
         fine = flat[offset:offset + pairs * size * size].reshape((pairs, size, size))
         correction = _kernel_transform(np.arange(half + 1, dtype=np.float64), size)
         scatter_kernel(pick, modes.kx, modes.ky, modes.omega, modes.height, modes.lateral_x, modes.lateral_y,
-                       dk, float(t), moving, correction, fine)
+                       rotations, dk, moving, correction, fine)
         transformed = scipy.fft.ifft2(fine, norm="forward", workers=fft_workers, overwrite_x=True)
         if not np.shares_memory(transformed, fine):
             fine[...] = transformed

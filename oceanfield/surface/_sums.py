@@ -99,6 +99,8 @@ def _sampled(grids, offsets, sizes, counts, dks, width, beta, x, y, lateral_only
     group that does not move sideways; ``lateral_only``: the first three pairs only."""
     wx = np.empty(width)
     wy = np.empty(width)
+    columns = np.empty(width, dtype=np.int64)
+    rows = np.empty(width, dtype=np.int64)
     acc = np.zeros(6, dtype=np.complex128)
     two_pi = 2.0 * math.pi
     for g in range(sizes.shape[0]):
@@ -110,15 +112,18 @@ def _sampled(grids, offsets, sizes, counts, dks, width, beta, x, y, lateral_only
         uy = (dks[g] * y) % two_pi * (size / two_pi)
         fx = _weights(ux, width, beta, wx)
         fy = _weights(uy, width, beta, wy)
+        for a in range(width):
+            columns[a] = (fx + a) % size
+            rows[a] = ((fy + a) % size) * size
         fields = 3 if lateral_only else count
         for f in range(fields):
             base = offsets[g] + f * size * size
             total = 0.0 + 0.0j
             for a in range(width):
-                row = base + ((fy + a) % size) * size
+                row = base + rows[a]
                 partial = 0.0 + 0.0j
                 for b in range(width):
-                    partial += wx[b] * grids[row + (fx + b) % size]
+                    partial += wx[b] * grids[row + columns[b]]
                 total += wy[a] * partial
             slot = f if count == 6 else f + 3  # a height-only group holds pairs 3 and 4
             acc[slot] += total
@@ -127,38 +132,41 @@ def _sampled(grids, offsets, sizes, counts, dks, width, beta, x, y, lateral_only
             acc[3].imag, acc[4].real, acc[5].real, acc[5].imag, acc[4].imag)
 
 
-@numba.njit(cache=True, fastmath=False)
-def scatter_kernel(pick, kx, ky, omega, a, bx, by, dk, t, moving, correction, fine):  # pragma: no cover
+@numba.njit(parallel=True, cache=True, fastmath=False)
+def scatter_kernel(pick, kx, ky, omega, a, bx, by, rotations, dk, moving, correction, fine):  # pragma: no cover
     """Step 1 of ``_nufft.sample_grids`` for the modes ``pick`` of one lattice (spacing dk):
-    each field's amplitude rotated to t, c = amplitude·e^{−iωt}, and its derivatives
+    each field's amplitude rotated to t, c = amplitude·e^{−iωt} (``rotations``), and its derivatives
     (∂/∂x → i kx, ∂/∂t → −iω), packed in pairs A + iB onto the fine grid, (c_A + i c_B)/2
     at +k and (c̄_A + i c̄_B)/2 at −k (Re(c e^{ik·x}) = (c e^{ik·x} + c.c.)/2), times the
     kernel's deconvolution factors ``correction[|n|]`` along both axes. ``moving``: the six
-    pairs of ``_sampled``; otherwise the two height pairs alone."""
+    pairs of ``_sampled``; otherwise the two height pairs alone. One thread a pair (each
+    writes its own plane, modes in order): the same bits on any thread count."""
     size = fine.shape[1]
-    values = np.empty(12, dtype=np.complex128)
-    for j in pick:
-        nx = int(round(kx[j] / dk))
-        ny = int(round(ky[j] / dk))
-        rotation = complex(math.cos(omega[j] * t), -math.sin(omega[j] * t))
-        ikx, iky, iw = 1j * kx[j], 1j * ky[j], -1j * omega[j]
-        h = a[j] * rotation
-        if moving:
+    for f in numba.prange(fine.shape[0]):
+        for j in pick:
+            nx = int(round(kx[j] / dk))
+            ny = int(round(ky[j] / dk))
+            rotation = rotations[j]
+            ikx, iky, iw = 1j * kx[j], 1j * ky[j], -1j * omega[j]
+            h = a[j] * rotation
             x = bx[j] * rotation
             y = by[j] * rotation
-            values[0], values[1], values[2], values[3] = x, y, ikx * x, iky * x
-            values[4], values[5], values[6], values[7] = ikx * y, iky * y, h, ikx * h
-            values[8], values[9], values[10], values[11] = iky * h, iw * h, iw * x, iw * y
-        else:
-            values[0], values[1], values[2], values[3] = h, ikx * h, iky * h, iw * h
-        c = 0.5 * correction[abs(nx)] * correction[abs(ny)]
-        px, py = nx % size, ny % size
-        mx, my = (-nx) % size, (-ny) % size
-        for f in range(fine.shape[0]):
-            p = values[2 * f]
-            q = values[2 * f + 1]
-            fine[f, py, px] += c * (p + 1j * q)
-            fine[f, my, mx] += c * (p.conjugate() + 1j * q.conjugate())
+            pair = f if moving else f + 3  # (Dx, Dy), (Dx_x, Dx_y), (Dy_x, Dy_y), (h, h_x), (h_y, h_t), (Dx_t, Dy_t)
+            if pair == 0:
+                p, q = x, y
+            elif pair == 1:
+                p, q = ikx * x, iky * x
+            elif pair == 2:
+                p, q = ikx * y, iky * y
+            elif pair == 3:
+                p, q = h, ikx * h
+            elif pair == 4:
+                p, q = iky * h, iw * h
+            else:
+                p, q = iw * x, iw * y
+            c = 0.5 * correction[abs(nx)] * correction[abs(ny)]
+            fine[f, ny % size, nx % size] += c * (p + 1j * q)
+            fine[f, (-ny) % size, (-nx) % size] += c * (p.conjugate() + 1j * q.conjugate())
 
 
 @numba.njit(cache=True, fastmath=False)
