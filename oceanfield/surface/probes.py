@@ -20,6 +20,7 @@ they reproduce the maps (tested to half-float precision).
 
 from __future__ import annotations
 
+import weakref
 from dataclasses import dataclass
 
 import numpy as np
@@ -190,15 +191,20 @@ def surface_at(
 
 def _sampling_pays(modes: WaveModes, times: NDArray[np.float64]) -> bool:
     """Whether the sampled sums cost less than the exact ones (the measured ratio above)."""
-    from ._nufft import SAMPLE_OVERSAMPLING, sample_groups
-
     if len(modes) == 0 or not np.all(np.isfinite(modes.lattice)):
         return False
     exact = times.size * len(modes) * _STEPS_PER_POINT / np.unique(times).size
-    # a lower bound first (the group holding the largest wave index has at least two pairs),
-    # so a few probes do not pay for the grouping
-    largest = float(np.max(np.maximum(np.abs(modes.kx), np.abs(modes.ky)) / modes.lattice))
-    if exact <= _SAMPLED_TEXEL_COST * 2 * (SAMPLE_OVERSAMPLING * 2 * largest) ** 2:
-        return False
-    texels = sum(pairs * size * size for *_, size, pairs in sample_groups(modes))
-    return exact > _SAMPLED_TEXEL_COST * texels
+    return exact > _SAMPLED_TEXEL_COST * _sampled_texels(modes)
+
+
+#: Texels of each mode set's sampled grids, kept while the set lives (a shot asks again
+#: for every chunk; the grouping costs a few passes over the modes).
+_TEXELS: "weakref.WeakKeyDictionary[WaveModes, int]" = weakref.WeakKeyDictionary()
+
+
+def _sampled_texels(modes: WaveModes) -> int:
+    from ._nufft import sample_groups
+
+    if modes not in _TEXELS:
+        _TEXELS[modes] = sum(pairs * size * size for *_, size, pairs in sample_groups(modes))
+    return _TEXELS[modes]
