@@ -56,3 +56,13 @@ def test_the_composite_is_the_same_bits_on_any_thread_count():
         np.testing.assert_array_equal(getattr(one, name), getattr(two, name))
     again = _stack(True, fft_workers=2).composite(0.7, extent=60.0, resolution=128)
     np.testing.assert_array_equal(again.height, two.height)
+
+
+def test_a_pickled_stack_makes_the_same_composite():
+    import pickle
+
+    stack = _stack(True)
+    before = stack.composite(0.3, extent=47.0, resolution=64)
+    copy = pickle.loads(pickle.dumps(stack))
+    assert "_composite_lattices" not in copy.__dict__  # the per-grid tables are remade, not shipped
+    np.testing.assert_array_equal(copy.composite(0.3, extent=47.0, resolution=64).height, before.height)

@@ -210,12 +210,14 @@ def test_sampled_sums_are_the_same_bits_on_any_thread_count():
     np.testing.assert_array_equal(one.normal, two.normal)
 
 
-def test_auto_keeps_the_exact_sums_for_a_single_point_and_samples_many():
+def test_auto_keeps_the_exact_sums_for_a_single_point_and_samples_many(monkeypatch):
     from oceanfield.surface import probes
 
     modes = Ocean(SeaState((wind_sea(10.0),)), Tile(300.0, 256), seed=2, bound_waves=False).modes()
     assert not probes._sampling_pays(modes, np.zeros(1))
     assert probes._sampling_pays(modes, np.zeros(10_000))
+    monkeypatch.setattr(probes, "SAMPLED_MEMORY_LIMIT", 1000)  # grids too large: exact
+    assert not probes._sampling_pays(modes, np.zeros(10_000))
 
 
 def test_sampled_sums_refuse_modes_on_no_lattice():

@@ -28,7 +28,7 @@ from numpy.typing import ArrayLike, NDArray
 
 from .modes import WaveModes
 
-__all__ = ["SurfacePoints", "surface_at", "DEFAULT_MAX_ITERATIONS"]
+__all__ = ["SurfacePoints", "surface_at", "DEFAULT_MAX_ITERATIONS", "SAMPLED_MEMORY_LIMIT"]
 
 DEFAULT_MAX_ITERATIONS = 200
 _METHODS = ("auto", "exact", "sampled")
@@ -41,6 +41,10 @@ _NO_SAMPLER = (np.zeros(1, dtype=np.complex128), np.zeros(1, dtype=np.int64), np
 #: about 14 ns a mode-step and 20 ns a texel; sampled pays beyond about 3 probes a frame.
 _SAMPLED_TEXEL_COST = 1.5
 _STEPS_PER_POINT = 5
+#: The most memory "auto" lets a frame's sampled grids take (complex128 texels); beyond it
+#: the exact sums run instead (open_ocean_horizon's take ~350 MB).
+SAMPLED_MEMORY_LIMIT = 2**30
+_BYTES_PER_TEXEL = 16
 
 
 @dataclass(frozen=True, eq=False)
@@ -120,7 +124,8 @@ def surface_at(
         are made once on an oversampled grid per lattice (the first half of a type-2
         non-uniform FFT, ``_nufft.sample_grids``) and every step reads the grid around its
         point, to under 1e-6 of each field's standard deviation. "auto": sampled where it
-        is the cheaper (many points a frame on many modes), exact otherwise.
+        is the cheaper (many points a frame on many modes) and its grids fit in
+        ``SAMPLED_MEMORY_LIMIT`` bytes, exact otherwise.
 
     Returns
     -------
@@ -194,7 +199,8 @@ def _sampling_pays(modes: WaveModes, times: NDArray[np.float64]) -> bool:
     if len(modes) == 0 or not np.all(np.isfinite(modes.lattice)):
         return False
     exact = times.size * len(modes) * _STEPS_PER_POINT / np.unique(times).size
-    return exact > _SAMPLED_TEXEL_COST * _sampled_texels(modes)
+    texels = _sampled_texels(modes)
+    return exact > _SAMPLED_TEXEL_COST * texels and texels * _BYTES_PER_TEXEL <= SAMPLED_MEMORY_LIMIT
 
 
 #: Texels of each mode set's sampled grids, kept while the set lives (a shot asks again
