@@ -19,7 +19,8 @@ and beside the Hs the preset asks for (a height-and-period component's
 
 ``mean``: the displaced surface resampled onto the grid (``analysis.shape``) over 16
 frames two peak periods apart, bound waves on, for the presets whose bound waves are on
-by default: mean level over σ, skewness, against the prediction.
+by default: mean level over σ, skewness, against the prediction; and the mean of the
+height map itself (rest positions), which is not the level at fixed points.
 """
 
 from __future__ import annotations
@@ -103,7 +104,9 @@ def mean_table(names, seeds, frames: int) -> None:
     from oceanfield.analysis.shape import height_shape, resample_displaced
 
     print(f"Mean level at fixed points, bound waves on, {frames} frames two peak periods apart")
-    print(f"{'preset':<22} {'seed':>4} {'mean/σ':>9} {'±':>7} {'skew':>7} {'predicted skew':>15} {'pred mean/σ':>12}")
+    print("(map mean/σ: the height map itself, at rest positions: it sits ½λΣka² above still water)")
+    print(f"{'preset':<22} {'seed':>4} {'mean/σ':>9} {'±':>7} {'skew':>7} {'predicted skew':>15} {'pred mean/σ':>12} "
+          f"{'map mean/σ':>11}")
     for name in names:
         preset = load_preset(name)
         if preset.bands.active:
@@ -113,18 +116,20 @@ def mean_table(names, seeds, frames: int) -> None:
             if ocean.bound is None:
                 break
             tp = ocean.sea_state.statistics().tp
-            means, skews = [], []
+            means, skews, raw = [], [], []
             for i in range(frames):
                 fields = ocean.frame(0.37 + 2.0 * i * tp)
                 eta, _ = resample_displaced(fields.height, fields.displacement_x, fields.displacement_y,
                                             ocean.tile.spacing)
                 shape = height_shape(eta)
+                height = fields.height.astype(np.float64)
+                raw.append(height.mean() / height.std())
                 means.append(shape.mean / shape.std)
                 skews.append(shape.skewness)
             p = ocean.bound.prediction
             error = np.std(means, ddof=1) / math.sqrt(frames)
             print(f"{name:<22} {seed:>4} {np.mean(means):>+9.4f} {error:>7.4f} {np.mean(skews):>7.3f} "
-                  f"{p.skewness:>15.3f} {p.mean_level / p.std:>+12.4f}")
+                  f"{p.skewness:>15.3f} {p.mean_level / p.std:>+12.4f} {np.mean(raw):>+11.4f}")
 
 
 def _seeds(text: str) -> list[int]:
