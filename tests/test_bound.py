@@ -193,8 +193,9 @@ def test_displaced_surface_has_second_order_statistics():
 
 def test_mean_level_is_the_set_down_in_finite_depth():
     """In 8 m of water the mean level of the displaced surface is the second-order set-down
-    −Σ aᵢ² kᵢ / (2 sinh 2kᵢh) (Longuet-Higgins & Stewart 1964, Deep-Sea Res. 11), within
-    10 %, the sum taken over the tile's drawn amplitudes."""
+    −Σ aᵢ² kᵢ / (2 sinh 2kᵢh) (Longuet-Higgins & Stewart 1962, J. Fluid Mech. 13, the
+    set-down beneath groups; the form as in Longuet-Higgins & Stewart 1964, Deep-Sea Res.
+    11), within 10 %, the sum taken over the tile's drawn amplitudes."""
     depth = 8.0
     sea = _sea(hs=1.5, tp=9.0, spread_deg=20.0, depth=depth)
     ocean = Ocean(sea, Tile(400.0, 128), seed=2, bound_waves=True)
