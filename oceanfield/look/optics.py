@@ -86,8 +86,9 @@ def cox_munk_slope_variance(wind_speed: ArrayLike) -> tuple[NDArray[np.float64],
     Returns
     -------
     (upwind, crosswind) : tuple of NDArray[np.float64]
-        σ_u² = 3.16·10⁻³ U and σ_c² = 0.003 + 1.92·10⁻³ U; their sum is the total
-        0.003 + 5.12·10⁻³ U (± 0.004), 0.054 at 10 m/s.
+        σ_u² = 3.16·10⁻³ U and σ_c² = 0.003 + 1.92·10⁻³ U. The paper fits their total
+        apart, 0.003 + 5.12·10⁻³ U (± 0.004; 0.054 at 10 m/s); the two components sum to
+        0.003 + 5.08·10⁻³ U, well within that scatter.
 
     References
     ----------
