@@ -214,7 +214,10 @@ def shade_point(mean_x, mean_y, vxx, vyy, vxy, foam, v, light, table, sun_irradi
     Sky reflection: Fresnel-weighted sky in the mirror direction, averaged over the slope
     distribution by its five sigma points (the unscented transform: Julier & Uhlmann 1997,
     "A new extension of the Kalman filter to nonlinear systems"; centre weight 1/3, ±√3
-    along each Cholesky column with 1/6). Glitter: the sun's reflection from Gaussian
+    along each Cholesky column with 1/6), each weighed by its projected area toward the
+    camera, v·n, and facets facing away left out (the distribution of visible normals:
+    Heitz 2014, "Understanding the masking-shadowing function in microfacet-based BRDFs",
+    JCGT 3(2)); without it a crest's far side, seen grazing, mirrors the bright horizon. Glitter: the sun's reflection from Gaussian
     facets, L = E_sun R(v·h) p(s_h) / (4 v_z cos⁴β) (Cox & Munk 1954, eq. 14's radiance
     form; s_h the slope whose normal is the half vector h, β its tilt). Water body:
     ``body`` times (1 − R̄)/(1 − R(0)). Foam: ``foam_radiance`` over the foam's share.
@@ -227,6 +230,7 @@ def shade_point(mean_x, mean_y, vxx, vyy, vxy, foam, v, light, table, sun_irradi
     r1 = 0.0
     r2 = 0.0
     weight_sum_f = 0.0
+    weight_sum = 0.0
     for k in range(5):
         if k == 0:
             sx, sy, w = mean_x, mean_y, 1.0 / 3.0
@@ -240,7 +244,12 @@ def shade_point(mean_x, mean_y, vxx, vyy, vxy, foam, v, light, table, sun_irradi
         norm = math.sqrt(sx * sx + sy * sy + 1.0)
         nx, ny, nz = -sx / norm, -sy / norm, 1.0 / norm
         c = v[0] * nx + v[1] * ny + v[2] * nz
-        c = max(c, 1e-4)
+        if k == 0 and c <= 0.0:  # the patch faces away (a crest's silhouette): its mean, grazing
+            c, w = 1e-4, 1e-12
+        elif c <= 0.0:  # facets facing away are hidden
+            continue
+        else:
+            w *= c  # seen facets weigh by their projected area
         rx, ry, rz = 2.0 * c * nx - v[0], 2.0 * c * ny - v[1], 2.0 * c * nz - v[2]
         if rz < 1e-3:  # mirrored below the horizon: it sees the horizon's sky (no second bounce)
             rz = 1e-3
@@ -252,6 +261,11 @@ def shade_point(mean_x, mean_y, vxx, vyy, vxy, foam, v, light, table, sun_irradi
         r1 += w * f * sky[1]
         r2 += w * f * sky[2]
         weight_sum_f += w * f
+        weight_sum += w
+    r0 /= weight_sum
+    r1 /= weight_sum
+    r2 /= weight_sum
+    weight_sum_f /= weight_sum
     # the sun's glitter
     hx, hy, hz = v[0] + light[0], v[1] + light[1], v[2] + light[2]
     hn = math.sqrt(hx * hx + hy * hy + hz * hz)
@@ -388,17 +402,27 @@ def shade_reference(mean, covariance, foam, v, sky, sun_irradiance, body, foam_r
                (zero, _SQRT3 * l22, 1 / 6), (zero, -_SQRT3 * l22, 1 / 6)]
     reflected = np.zeros(v.shape)
     weighted_fresnel = np.zeros(v.shape[:-1])
-    for ox, oy, w in offsets:
+    weights = np.zeros(v.shape[:-1])
+    for index, (ox, oy, w) in enumerate(offsets):
         normal = np.stack([-(mean[..., 0] + ox), -(mean[..., 1] + oy), np.ones_like(ox)], axis=-1)
         normal /= np.linalg.norm(normal, axis=-1, keepdims=True)
-        c = np.maximum(np.sum(v * normal, axis=-1), 1e-4)
+        c = np.sum(v * normal, axis=-1)
+        if index == 0:
+            w = np.where(c > 0.0, w * c, 1e-12)
+            c = np.where(c > 0.0, c, 1e-4)
+        else:
+            w = np.where(c > 0.0, w * c, 0.0)
+            c = np.maximum(c, 1e-4)
         r = 2.0 * c[..., None] * normal - v
         low = r[..., 2] < 1e-3
         r[..., 2] = np.where(low, 1e-3, r[..., 2])
         r = np.where(low[..., None], r / np.linalg.norm(r, axis=-1, keepdims=True), r)
         f = fresnel_unpolarised(c, n=n)
-        reflected += w * f[..., None] * sky.radiance(r)
+        reflected += w[..., None] * f[..., None] * sky.radiance(r)
         weighted_fresnel += w * f
+        weights += w
+    reflected /= weights[..., None]
+    weighted_fresnel /= weights
     half = v + light
     half /= np.linalg.norm(half, axis=-1, keepdims=True)
     d = np.stack([-half[..., 0] / half[..., 2] - mean[..., 0], -half[..., 1] / half[..., 2] - mean[..., 1]], axis=-1)
