@@ -126,18 +126,25 @@ def _footprint(t, pixel_angle, slope_rel):
 
 @njit(cache=True, nogil=True)
 def _surface(data, offset, side, tile, levels, low, high, footprint, x, y, with_height):
-    """(height, lowest, highest, finest spacing) of the summed bands at this footprint."""
+    """(height, lowest, highest, step spacing) of the summed bands at this footprint; the
+    step spacing is the texel of the band with the widest height range there (the band
+    that decides where a ray meets the sea; a band of millimetre ripples does not)."""
     height = 0.0
     lowest = 0.0
     highest = 0.0
     finest = 1e300
+    widest = -1.0
     for b in range(tile.shape[0]):
         lam = _level(footprint, tile[b] / side[b, 0], levels[b])
         l0 = int(lam)
         l1 = l0 + 1 if lam > l0 else l0
-        lowest += min(low[b, l0], low[b, l1])
-        highest += max(high[b, l0], high[b, l1])
-        finest = min(finest, tile[b] / side[b, l0])
+        band_low = min(low[b, l0], low[b, l1])
+        band_high = max(high[b, l0], high[b, l1])
+        lowest += band_low
+        highest += band_high
+        if band_high - band_low > widest:
+            widest = band_high - band_low
+            finest = tile[b] / side[b, l0]
         if with_height:
             height += _band_value(data, offset, side, tile, b, lam, x, y, 0)
     return height, lowest, highest, finest
