@@ -93,8 +93,9 @@ def cox_munk_slope_variance(wind_speed: ArrayLike) -> tuple[NDArray[np.float64],
     References
     ----------
     Cox, C. & Munk, W. (1954), "Measurement of the roughness of the sea surface from
-    photographs of the sun's glitter", J. Opt. Soc. Am. 44(11), 838–850, eqs. (6a–c) for
-    the clean surface (from memory of the coefficients; the total agrees with PHYSICS.md).
+    photographs of the sun's glitter", J. Opt. Soc. Am. 44(11), 838–850, the clean
+    surface: the components as given by Mobley's *Ocean Optics Web Book*, "Cox-Munk sea
+    surface slope statistics", the total as in PHYSICS.md (see REFERENCES.md).
     """
     u = np.asarray(wind_speed, dtype=np.float64)
     return 3.16e-3 * u, 0.003 + 1.92e-3 * u
