@@ -164,6 +164,20 @@ def test_the_command_writes_a_captioned_png_and_a_linear_exr(tmp_path, capsys):
     assert float(np.max(channels["G"])) > 1.0  # scene-linear: the sky near the sun is above white
 
 
+def test_a_sun_in_the_picture_keeps_its_radiance_in_the_exr(tmp_path):
+    """The sun's disc (about 1.7·10⁵ × a grey card at 25° up) is beyond half floats' 65504:
+    the EXR holds it in 32-bit floats rather than failing or clipping."""
+    from oceanfield.io.exr import read_exr
+
+    out = tmp_path / "sun.png"
+    status = main(["look", "glassy_calm", "--set", "tile.resolution=64", "--size", "64x64", "--fov", "3",
+                   "--heading", "0", "--sun-azimuth", "0", "--sun-elevation", "10", "--pitch", "10", "--out", str(out)])
+    assert status == 0
+    channels = read_exr(out.with_suffix(".exr"))
+    channels = channels[0] if isinstance(channels, tuple) else channels
+    assert float(np.max(channels["G"])) > 65504.0
+
+
 def test_the_command_writes_a_flipbook(tmp_path):
     import imageio.v3 as iio
 

@@ -28,6 +28,7 @@ DEFAULTS = dict(camera_height=10.0, pitch=-8.0, fov=60.0, sun_elevation=25.0, su
 _STILL_SUFFIXES = (".png",)
 _FLIPBOOK_SUFFIXES = (".gif", ".mp4")
 _MAX_PIXELS = 8192
+_HALF_MAX = 65504.0  # the largest finite half float (IEEE 754 binary16)
 
 
 def _size(text: str | None) -> tuple[int, int]:
@@ -85,7 +86,9 @@ def _out(preset, out, suffixes: tuple[str, ...], default_suffix: str) -> Path:
 
 def write_still(look: Look, *, frame: int | None = None, out: str | Path | None = None) -> tuple[Path, Path]:
     """Write one frame as PNG (8-bit sRGB, caption below) and EXR beside it (linear RGB
-    half, exposed: an 18 % grey card is 0.18; camera, sun and sea in the header)."""
+    half, exposed: an 18 % grey card is 0.18; camera, sun and sea in the header). A sun
+    disc in the picture can outshine half floats (about 7·10⁴ at 25° up): then the EXR is
+    32-bit float."""
     import imageio.v3 as iio
 
     from ..io.atomic import atomic_output
@@ -97,7 +100,9 @@ def write_still(look: Look, *, frame: int | None = None, out: str | Path | None 
     picture = look.picture(image)
     lines = look.caption(image)
     radiance = image.radiance
-    write_exr(exr_path, {"R": radiance[..., 0], "G": radiance[..., 1], "B": radiance[..., 2]},
+    # half floats, unless the sun's disc in the picture outshines their range (±65504)
+    precision = "half" if float(np.max(radiance)) < _HALF_MAX else "float"
+    write_exr(exr_path, {"R": radiance[..., 0], "G": radiance[..., 1], "B": radiance[..., 2]}, precision=precision,
               attributes={"oceanfield_look": " | ".join(lines),
                           "oceanfield_look_units": "scene-linear sRGB primaries; 18% grey card = 0.18"})
     with atomic_output(path) as temporary:
