@@ -19,8 +19,12 @@ from oceanfield.preset.schema import load_preset
 from oceanfield.surface.fields import Fields
 
 
+_BANDED_SMALL = ("bands.max_resolution=128", "bands.shortest_wave_m=0.1")  # 6 small bands to 3 km
+
+
 def _look(name: str, resolution: int, camera: Camera, sky: Sky, *, flat: bool = False) -> Look:
-    preset = load_preset(name, overrides=(f"tile.resolution={resolution}",))
+    extra = _BANDED_SMALL if name == "open_ocean_horizon" else ()
+    preset = load_preset(name, overrides=(f"tile.resolution={resolution}", *extra))
     return Look(preset, camera, sky, earth_radius=math.inf if flat else 6_371_008.8)
 
 
@@ -28,13 +32,16 @@ def _luminance(radiance):
     return radiance @ np.array([0.2126, 0.7152, 0.0722])  # Rec. 709 / sRGB luminance weights (ITU-R BT.709)
 
 
-@pytest.mark.parametrize("height, pitch_deg, flat", [(10.0, 0.0, False), (100.0, -0.2, False), (30.0, 0.3, True)])
-def test_the_horizon_is_where_the_eye_height_and_the_earth_put_it(height, pitch_deg, flat):
+@pytest.mark.parametrize("name, height, pitch_deg, flat", [
+    ("glassy_calm", 10.0, 0.0, False), ("glassy_calm", 100.0, -0.2, False), ("glassy_calm", 30.0, 0.3, True),
+    ("open_ocean_horizon", 20.0, 0.0, False),
+])
+def test_the_horizon_is_where_the_eye_height_and_the_earth_put_it(name, height, pitch_deg, flat):
     """First sea row in the picture's centre columns against the dip arccos(R/(R + h))
     of a spherical Earth of 6371 km (elementary geometry: the line of sight tangent to
     the sphere; 0 for a flat sea), within a pixel (0.025° at a 4° field of view)."""
     camera = Camera(height, math.radians(20.0), math.radians(pitch_deg), math.radians(4.0), 160, 90)
-    image = _look("glassy_calm", 64, camera, Sky(math.radians(30.0), math.radians(200.0)), flat=flat).render()
+    image = _look(name, 64, camera, Sky(math.radians(30.0), math.radians(200.0)), flat=flat).render()
     expected = math.ceil(camera.horizon_row(radius=math.inf if flat else 6_371_008.8) - 0.5)
     for column in (79, 80):
         sea = np.nonzero(image.distance[:, column] > 0)[0]
@@ -42,14 +49,16 @@ def test_the_horizon_is_where_the_eye_height_and_the_earth_put_it(height, pitch_
         assert np.all(image.distance[sea[0]:, column] > 0)  # everything below it is sea
 
 
-@pytest.mark.parametrize("offset_deg", [12.0, -15.0])
-def test_the_glitter_path_lies_under_the_sun(offset_deg):
+@pytest.mark.parametrize("name, offset_deg", [("fresh_chop", 12.0), ("fresh_chop", -15.0),
+                                              ("open_ocean_horizon", 8.0)])
+def test_the_glitter_path_lies_under_the_sun(name, offset_deg):
     """The brightest column of the sea (summed over its rows) sits below the sun's azimuth:
-    the column a ray at that azimuth crosses (pinhole, level camera), within 2 pixels."""
+    the column a ray at that azimuth crosses (pinhole, level camera), within 2 pixels; for
+    a single tile repeated and for a stack of bands."""
     heading = 0.0
     camera = Camera(10.0, heading, 0.0, math.radians(60.0), 160, 90)
     sky = Sky(math.radians(20.0), math.radians(heading + offset_deg))
-    image = _look("fresh_chop", 128, camera, sky).render()
+    image = _look(name, 128, camera, sky).render()
     sea = image.distance > 0
     profile = np.where(sea, _luminance(image.radiance), 0.0).sum(axis=0)
     profile = np.convolve(profile, np.ones(5) / 5.0, mode="same")
