@@ -67,6 +67,23 @@ def test_the_glitter_path_lies_under_the_sun(name, offset_deg):
     assert abs(int(np.argmax(profile[3:-3])) + 3 - expected) <= 2.0
 
 
+def test_the_far_sea_does_not_shimmer_from_frame_to_frame():
+    """Filtered to each pixel's footprint, the sea beyond 500 m changes between frames a
+    tenth as much as within 100 m (measured 0.07 of it here, 0.06 at 640×360); sampled without
+    filtering, texels many times smaller than a pixel would flicker at random (common
+    practice: the aliasing a mip pyramid exists to remove)."""
+    from oceanfield.look import tone_map
+
+    camera = Camera(10.0, math.pi, math.radians(-8.0), math.radians(60.0), 320, 180)
+    look = _look("fresh_chop", 256, camera, Sky(math.radians(25.0), math.pi + math.radians(20.0)))
+    first, second = look.render(1001), look.render(1002)
+    change = np.abs(tone_map(second.radiance) - tone_map(first.radiance)).mean(axis=-1)
+    near = (first.distance > 0) & (first.distance < 100.0)
+    far = first.distance > 500.0
+    assert near.sum() > 1000 and far.sum() > 300
+    assert change[far].mean() < 0.1 * change[near].mean()
+
+
 def test_a_flat_sea_mirrors_the_sky_with_waters_fresnel_reflectance():
     """A flat sea under no wind: the reflectance measured per row, (L − body)/(sky − body)
     solved from L = R S + (1 − R)/(1 − R₀) B, is the exact Fresnel reflectance of water
