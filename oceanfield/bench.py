@@ -361,7 +361,7 @@ def look_benchmark(preset_name: str, size: str, repeat: int) -> dict[str, float]
     from .preset.schema import load_preset
 
     options = dict(size=size, camera_height=None, heading=None, pitch=None, fov=None, sun_elevation=None,
-                   sun_azimuth=None, turbidity=None, exposure=None, flat_sea=False)
+                   sun_azimuth=None, turbidity=None, exposure=None, flat_sea=False, clear_air=False)
     started = time.perf_counter()
     look = look_from_arguments(load_preset(preset_name), Namespace(**options))
     build = time.perf_counter() - started

@@ -172,6 +172,7 @@ def _add_look_parser(commands) -> None:
     look.add_argument("--exposure", type=float, default=None, metavar="EV", help="stops brighter than the grey-card exposure (default 0)")
     look.add_argument("--size", default=None, metavar="WxH", help="picture size in pixels (default 1280x720)")
     look.add_argument("--flat-sea", action="store_true", help="a flat sea to infinity (horizon at eye level) instead of the round Earth")
+    look.add_argument("--clear-air", action="store_true", help="no haze between the camera and the sea (it fades into the horizon's sky by default)")
     look.add_argument("--out", default=None,
                       help="file to write (default: renders/<preset>_look.png and .exr beside it, or .gif with --frames)")
 

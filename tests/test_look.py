@@ -96,7 +96,7 @@ def test_a_flat_sea_mirrors_the_sky_with_waters_fresnel_reflectance():
     pyramid = build_pyramid([(Fields(0.0, zero, zero, zero, zero + 1, normal, zero), 50.0)])
     camera = Camera(10.0, 0.0, math.radians(-30.0), math.radians(50.0), 40, 60)
     sky = Sky(math.radians(35.0), math.radians(180.0))  # behind the camera: no glitter in view
-    image, distance = render_pyramid(pyramid, camera, sky, earth_radius=math.inf)
+    image, distance = render_pyramid(pyramid, camera, sky, earth_radius=math.inf, haze=False)
     column = 20
     body = np.asarray(DEEP_WATER_REFLECTANCE) * sky.downwelling_irradiance() / (1.0 - fresnel_unpolarised(1.0))
     measured, exact = [], []
@@ -125,7 +125,7 @@ def _glitter_half_width(name: str, resolution: int) -> tuple[float, float]:
     heading = wind[1]
     camera = Camera(200.0, heading, math.radians(-2.0), math.radians(40.0), 320, 120)
     sky = Sky(math.radians(8.0), heading)
-    image = Look(preset, camera, sky, earth_radius=math.inf).render()
+    image = Look(preset, camera, sky, earth_radius=math.inf, haze=False).render()  # the sea's own glitter
     tan_y = camera.tan_half[1]
     depression = math.radians(0.5)
     row = int(round((1.0 - math.tan(-depression - camera.pitch) / tan_y) * camera.rows / 2.0 - 0.5))

@@ -58,6 +58,10 @@ def test_each_pixel_is_the_reference_march_and_shading(sea_fields):
     expected = shade_reference(reference[:, 1:3], covariance, reference[:, 6], -d, sky, sky.sun_irradiance(),
                                np.asarray(DEEP_WATER_REFLECTANCE) * downwelling, FOAM_ALBEDO * downwelling / math.pi,
                                WATER_REFRACTIVE_INDEX)
+    # the air between (Koschmieder 1924): dimmed toward the horizon's sky in the ray's azimuth
+    kept = np.exp(-sky.extinction() * t[:, None])
+    horizon = d * np.array([1.0, 1.0, 0.0]) / np.hypot(d[:, 0], d[:, 1])[:, None] + np.array([0.0, 0.0, 1e-3])
+    expected = expected * kept + sky.radiance(horizon) * (1.0 - kept)
     # the kernel shades at its own hit, the reference at the same point: float32 data, float64 sums
     np.testing.assert_allclose(image[rows, cols], expected, rtol=2e-4)
 

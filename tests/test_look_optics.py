@@ -97,6 +97,18 @@ def test_the_downwelling_irradiance_of_a_sky_of_one_radiance_is_pi():
     np.testing.assert_allclose(uniform.downwelling_irradiance(), math.pi, rtol=1e-3)
 
 
+def test_the_airs_visual_range_is_tens_of_kilometres_in_a_clear_sky():
+    """Koschmieder (1924): visual range 3.912/σ; a clear sky (T = 3) sees some 20 km, a very
+    clear one (T = 2) about twice as far, thick haze (T = 8) a few km (Preetham et al.
+    1999 relate turbidity to visibility in the same way; common practice)."""
+    ranges = {t: 3.912 / Sky(0.5, 0.0, t).extinction()[1] for t in (2.0, 3.0, 8.0)}
+    assert 15e3 < ranges[3.0] < 30e3
+    assert ranges[2.0] > 1.8 * ranges[3.0]
+    assert ranges[8.0] < 8e3
+    red, green, blue = Sky(0.5, 0.0, 3.0).extinction()
+    assert red < green < blue  # blue light is scattered most
+
+
 @pytest.mark.parametrize("turbidity", [1.0, 11.0])
 def test_turbidity_outside_the_model_is_refused(turbidity):
     with pytest.raises(ValueError, match="turbidity"):

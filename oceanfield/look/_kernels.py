@@ -298,9 +298,14 @@ def shade_point(mean_x, mean_y, vxx, vyy, vxy, foam, v, light, table, sun_irradi
 @njit(cache=True, nogil=True, parallel=True)
 def render_kernel(data, offset, side, tile, levels, low, high, origin, forward, right, up, tan_x, tan_y,
                   width, height, inv_radius, table, light, sun_radiance, cos_sun, sun_irradiance, body,
-                  foam_radiance, unresolved, extra_variance, n, image, distance):
+                  foam_radiance, unresolved, extra_variance, n, extinction, image, distance):
     """Every pixel of the picture: linear radiance into ``image`` (H, W, 3), the distance
-    to the sea into ``distance`` (H, W; −1 where the ray sees the sky)."""
+    to the sea into ``distance`` (H, W; −1 where the ray sees the sky).
+
+    The air between the camera and the sea: Koschmieder's law (Koschmieder 1924),
+    L = L_sea e^{−σt} + L_horizon (1 − e^{−σt}) per channel, the air light being the sky at
+    the horizon in the ray's azimuth; ``extinction`` σ (3,) in 1/m, zeros for clear air.
+    """
     pixel_angle = 2.0 * tan_x / width
     for row in prange(height):
         d = np.empty(3)
@@ -344,6 +349,12 @@ def render_kernel(data, offset, side, tile, levels, low, high, origin, forward, 
                 shade_point(moments[0], moments[1], moments[2] + unresolved[0] + extra_variance,
                             moments[3] + unresolved[1] + extra_variance, moments[4] + unresolved[2],
                             moments[5], v, light, table, sun_irradiance, body, foam_radiance, n, out)
+                if extinction[0] > 0.0 or extinction[1] > 0.0 or extinction[2] > 0.0:
+                    scale = 1.0 / math.sqrt(dh2 + 1e-6)
+                    _sky(d[0] * scale, d[1] * scale, 1e-3, table, light, v)  # v: reused for the air light
+                    for i in range(3):
+                        kept = math.exp(-extinction[i] * t)
+                        out[i] = out[i] * kept + v[i] * (1.0 - kept)
             for i in range(3):
                 image[row, col, i] = out[i]
 

@@ -8,7 +8,8 @@ sampled from a pyramid of the frame's height and slopes at the pixel's footprint
 (``pyramid``). The sea's radiance there is the sky mirrored with water's Fresnel
 reflectance, the sun's glitter from the slopes, and the light from the water body,
 under the foam's white; the sky above the horizon is the Preetham model with the sun's
-disc (``sky``). The slopes the footprint averages away, and those shorter than the
+disc (``sky``); the air between fades the sea toward the horizon's sky (Koschmieder's
+law). The slopes the footprint averages away, and those shorter than the
 finest texel (the Cox & Munk 1954 mean-square slope for the preset's wind, less what the
 tile holds), widen the glitter as roughness: the glitter keeps its width at any distance.
 
@@ -89,11 +90,12 @@ def grey_card(sky: Sky) -> float:
 
 
 def render_pyramid(pyramid, camera: Camera, sky: Sky, *, unresolved: NDArray[np.float64] | None = None,
-                   earth_radius: float = EARTH_RADIUS, water_reflectance=DEEP_WATER_REFLECTANCE
+                   earth_radius: float = EARTH_RADIUS, water_reflectance=DEEP_WATER_REFLECTANCE, haze: bool = True
                    ) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
     """(radiance (rows, width, 3) in kcd/m², distance (rows, width) in m, −1 on the sky) of a
     surface pyramid seen by ``camera`` under ``sky``; ``unresolved`` the (2, 2) slope
-    covariance shorter than the finest texel (default none)."""
+    covariance shorter than the finest texel (default none); ``haze`` the air's extinction
+    and air light between the camera and the sea (`Sky.extinction`), off for clear air."""
     from ._kernels import render_kernel
 
     unresolved = np.zeros((2, 2)) if unresolved is None else np.asarray(unresolved, dtype=np.float64)
@@ -109,7 +111,7 @@ def render_pyramid(pyramid, camera: Camera, sky: Sky, *, unresolved: NDArray[np.
                   sky.sun_radiance(), math.cos(SUN_ANGULAR_RADIUS), sky.sun_irradiance(),
                   np.asarray(water_reflectance, dtype=np.float64) * downwelling, FOAM_ALBEDO * downwelling / math.pi,
                   np.array([unresolved[0, 0], unresolved[1, 1], unresolved[0, 1]]), extra_slope_variance(camera),
-                  WATER_REFRACTIVE_INDEX, image, distance)
+                  WATER_REFRACTIVE_INDEX, sky.extinction() if haze else np.zeros(3), image, distance)
     return image, distance
 
 
@@ -146,11 +148,16 @@ class Look:
         Metres; ``math.inf`` for a flat sea (horizon at eye level).
     water_reflectance : (3,) floats
         The water body's remote-sensing reflectance, sr⁻¹ (`DEEP_WATER_REFLECTANCE`).
+    haze : bool
+        The air between the camera and the sea dims it toward the horizon's sky
+        (Koschmieder's law with `Sky.extinction`); False for clear air.
     """
 
     def __init__(self, preset, camera: Camera, sky: Sky, *, exposure: float = 0.0,
-                 earth_radius: float = EARTH_RADIUS, water_reflectance=DEEP_WATER_REFLECTANCE) -> None:
+                 earth_radius: float = EARTH_RADIUS, water_reflectance=DEEP_WATER_REFLECTANCE,
+                 haze: bool = True) -> None:
         self.preset, self.camera, self.sky = preset, camera, sky
+        self.haze = bool(haze)
         self.exposure = float(exposure)
         self.earth_radius = float(earth_radius)
         self.water_reflectance = np.asarray(water_reflectance, dtype=np.float64)
@@ -191,7 +198,8 @@ class Look:
         started = time.perf_counter()
         unresolved, self.wind_speed = unresolved_slopes(self.sea_state, pyramid.resolved_variance)
         image, distance = render_pyramid(pyramid, self.camera, self.sky, unresolved=unresolved,
-                                         earth_radius=self.earth_radius, water_reflectance=self.water_reflectance)
+                                         earth_radius=self.earth_radius, water_reflectance=self.water_reflectance,
+                                         haze=self.haze)
         scale = 2.0**self.exposure / grey_card(self.sky)
         self.seconds["shading"] += time.perf_counter() - started
         return LookImage((image * scale).astype(np.float32), distance.astype(np.float32), frame, t)
@@ -204,6 +212,8 @@ class Look:
         wind = "no wind (glitter from the tile's slopes only)" if self.wind_speed is None else \
             f"wind {self.wind_speed:.1f} m/s (Cox & Munk slopes beyond the tile)"
         earth = "flat sea" if math.isinf(self.earth_radius) else f"Earth R {self.earth_radius / 1000:.0f} km"
+        if not self.haze:
+            earth += ", clear air"
         return [
             f"{self.preset.name}  frame {image.frame} (t {image.time:.2f} s)  Hs {length_text(stats.hs)}  "
             f"Tp {stats.tp:.3g} s  {wind}",

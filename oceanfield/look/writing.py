@@ -72,7 +72,8 @@ def look_from_arguments(preset, args) -> Look:
         raise ValueError(f"--exposure: {exposure!r} is not allowed; allowed: -10 … 10 stops")
     camera = Camera(height, math.radians(heading), math.radians(pitch), math.radians(fov), width, rows)
     sky = Sky(math.radians(elevation), math.radians(azimuth), turbidity)
-    return Look(preset, camera, sky, exposure=exposure, earth_radius=math.inf if args.flat_sea else EARTH_RADIUS)
+    return Look(preset, camera, sky, exposure=exposure, earth_radius=math.inf if args.flat_sea else EARTH_RADIUS,
+                haze=not getattr(args, "clear_air", False))
 
 
 def _out(preset, out, suffixes: tuple[str, ...], default_suffix: str) -> Path:
