@@ -22,7 +22,7 @@ from typing import Callable
 
 import numpy as np
 
-__all__ = ["main", "time_call", "frame_benchmark"]
+__all__ = ["main", "time_call", "frame_benchmark", "look_benchmark"]
 
 
 def time_call(function: Callable[[], object], *, repeat: int, warmup: int = 1) -> float:
@@ -351,6 +351,35 @@ def analyzer_benchmark(resolution: int, frames: int, workers: int) -> dict[str, 
     return {"per_frame_s": streamed / frames, "finish_s": finished, "total_s": streamed + finished}
 
 
+def look_benchmark(preset_name: str, size: str, repeat: int) -> dict[str, float]:
+    """`oceanfield look PRESET --size size` as the command renders it, in this process:
+    median wall and CPU seconds of a still (frame, pyramid, march and shading; kernels
+    warm), each part's share, and the ocean's build."""
+    from argparse import Namespace
+
+    from .look.writing import look_from_arguments
+    from .preset.schema import load_preset
+
+    options = dict(size=size, camera_height=None, heading=None, pitch=None, fov=None, sun_elevation=None,
+                   sun_azimuth=None, turbidity=None, exposure=None, flat_sea=False, clear_air=False)
+    started = time.perf_counter()
+    look = look_from_arguments(load_preset(preset_name), Namespace(**options))
+    build = time.perf_counter() - started
+    look.picture(look.render())  # warm: kernels loaded, caption font cached
+    walls, cpus, parts = [], [], []
+    for _ in range(repeat):
+        look.seconds = dict.fromkeys(look.seconds, 0.0)
+        wall, cpu = time.perf_counter(), time.process_time()
+        look.picture(look.render())
+        walls.append(time.perf_counter() - wall)
+        cpus.append(time.process_time() - cpu)
+        parts.append(dict(look.seconds))
+    middle = sorted(range(repeat), key=walls.__getitem__)[repeat // 2]
+    row = {"wall_s": walls[middle], "cpu_s": cpus[middle], "build_s": build}
+    row.update({f"{name}_s": seconds for name, seconds in parts[middle].items()})
+    return row
+
+
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(prog="python -m oceanfield.bench", description=__doc__.splitlines()[0])
     parser.add_argument("--sizes", default="256,512,1024,2048", help="comma-separated resolutions")
@@ -367,6 +396,9 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--bands-reach", type=float, default=2000.0, help="reach in metres of the band stack (0 = skip)")
     parser.add_argument("--bands-size", type=int, default=512, help="resolution of band 0")
     parser.add_argument("--bands-composite", type=int, default=1024, help="texels per side of the composite map")
+    parser.add_argument("--look-sizes", default="1280x720,640x360",
+                        help="picture sizes of the `look fresh_chop` row (empty = skip)")
+    parser.add_argument("--look-only", action="store_true", help="run only the `look` row")
     args = parser.parse_args(argv)
 
     import numba
@@ -374,6 +406,21 @@ def main(argv: list[str] | None = None) -> int:
     numba.set_num_threads(min(args.workers, numba.config.NUMBA_NUM_THREADS))
     sizes = [int(s) for s in args.sizes.split(",") if s]
     print(f"oceanfield benchmark: {args.workers} thread(s), median of {args.repeat}")
+    look_sizes = [s for s in args.look_sizes.split(",") if s]
+    if look_sizes:
+        print("\nLook: `oceanfield look fresh_chop` (512² tile, default camera and sun), one still, kernels warm")
+        print(f"{'size':>10} {'wall s':>8} {'CPU s':>7} {'frame s':>8} {'pyramid s':>10} {'march+shade s':>14} "
+              f"{'caption s':>10} {'target s':>9}")
+        for size in look_sizes:
+            row = look_benchmark("fresh_chop", size, max(1, min(args.repeat, 3)))
+            rest = row["wall_s"] - row["synthesis_s"] - row["pyramid_s"] - row["shading_s"]
+            target = {"1280x720": "30", "640x360": "8"}.get(size, "-")
+            print(f"{size:>10} {row['wall_s']:>8.2f} {row['cpu_s']:>7.2f} {row['synthesis_s']:>8.2f} "
+                  f"{row['pyramid_s']:>10.2f} {row['shading_s']:>14.2f} {rest:>10.2f} {target:>9}")
+        print("frame: the preset's fields (Ocean.frame); pyramid: resampling the displaced surface and its")
+        print("levels; march+shade: the numba kernel. Targets on 2 cores; CPU s is the process's CPU time.")
+    if args.look_only:
+        return 0
     print("\nOne full frame (height, lateral displacement, slopes, Jacobian, normal, foam)")
     print(f"{'N':>6} {'frame ms':>10} {'bare FFTs ms':>13} {'ratio':>7} {'new-buffer ratio':>17} {'bytes/texel':>12}")
     for n in sizes:
