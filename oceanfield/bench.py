@@ -22,10 +22,10 @@ from typing import Callable
 
 import numpy as np
 
-__all__ = ["main", "time_call", "frame_benchmark", "composite_benchmark", "probe_benchmark"]
+__all__ = ["main", "time_call", "frame_benchmark", "composite_benchmark", "probe_benchmark", "look_benchmark"]
 
 #: The sections ``--only`` may pick, in the order they run.
-_SECTIONS = ("frames", "composite", "probes", "bands", "bound", "render", "workers", "analyze")
+_SECTIONS = ("look", "frames", "composite", "probes", "bands", "bound", "render", "workers", "analyze")
 
 
 def time_call(function: Callable[[], object], *, repeat: int, warmup: int = 1) -> float:
@@ -417,6 +417,35 @@ def analyzer_benchmark(resolution: int, frames: int, workers: int) -> dict[str, 
     return {"per_frame_s": streamed / frames, "finish_s": finished, "total_s": streamed + finished}
 
 
+def look_benchmark(preset_name: str, size: str, repeat: int) -> dict[str, float]:
+    """`oceanfield look PRESET --size size` as the command renders it, in this process:
+    median wall and CPU seconds of a still (frame, pyramid, march and shading; kernels
+    warm), each part's share, and the ocean's build."""
+    from argparse import Namespace
+
+    from .look.writing import look_from_arguments
+    from .preset.schema import load_preset
+
+    options = dict(size=size, camera_height=None, heading=None, pitch=None, fov=None, sun_elevation=None,
+                   sun_azimuth=None, turbidity=None, exposure=None, flat_sea=False, clear_air=False)
+    started = time.perf_counter()
+    look = look_from_arguments(load_preset(preset_name), Namespace(**options))
+    build = time.perf_counter() - started
+    look.picture(look.render())  # warm: kernels loaded, caption font cached
+    walls, cpus, parts = [], [], []
+    for _ in range(repeat):
+        look.seconds = dict.fromkeys(look.seconds, 0.0)
+        wall, cpu = time.perf_counter(), time.process_time()
+        look.picture(look.render())
+        walls.append(time.perf_counter() - wall)
+        cpus.append(time.process_time() - cpu)
+        parts.append(dict(look.seconds))
+    middle = sorted(range(repeat), key=walls.__getitem__)[repeat // 2]
+    row = {"wall_s": walls[middle], "cpu_s": cpus[middle], "build_s": build}
+    row.update({f"{name}_s": seconds for name, seconds in parts[middle].items()})
+    return row
+
+
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(prog="python -m oceanfield.bench", description=__doc__.splitlines()[0])
     parser.add_argument("--sizes", default="256,512,1024,2048", help="comma-separated resolutions")
@@ -436,10 +465,13 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--composite-preset", default="open_ocean_horizon",
                         help="banded preset whose composite map and probes are timed")
     parser.add_argument("--probes", type=int, default=1000, help="probes of the many-probes figure")
+    parser.add_argument("--look-sizes", default="1280x720,640x360",
+                        help="picture sizes of the `look fresh_chop` row (empty = skip)")
+    parser.add_argument("--look-only", action="store_true", help="run only the `look` row (as --only look)")
     parser.add_argument("--only", default=",".join(_SECTIONS),
                         help=f"comma-separated sections to run, of: {', '.join(_SECTIONS)}")
     args = parser.parse_args(argv)
-    only = {name.strip() for name in args.only.split(",") if name.strip()}
+    only = {"look"} if args.look_only else {name.strip() for name in args.only.split(",") if name.strip()}
     unknown = only - set(_SECTIONS)
     if unknown:
         parser.error(f"--only: {', '.join(sorted(unknown))} is not allowed; allowed: {', '.join(_SECTIONS)}")
@@ -449,6 +481,8 @@ def main(argv: list[str] | None = None) -> int:
     numba.set_num_threads(min(args.workers, numba.config.NUMBA_NUM_THREADS))
     sizes = [int(s) for s in args.sizes.split(",") if s]
     print(f"oceanfield benchmark: {args.workers} thread(s), median of {args.repeat}")
+    if "look" in only:
+        _look_section(args)
     if "frames" in only:
         _frames_section(sizes, args)
     if "composite" in only:
@@ -476,6 +510,22 @@ def main(argv: list[str] | None = None) -> int:
     if "analyze" in only and args.analyze_frames > 0:
         _analyze_section(args)
     return 0
+
+
+def _look_section(args) -> None:
+    look_sizes = [s for s in args.look_sizes.split(",") if s]
+    if look_sizes:
+        print("\nLook: `oceanfield look fresh_chop` (512² tile, default camera and sun), one still, kernels warm")
+        print(f"{'size':>10} {'wall s':>8} {'CPU s':>7} {'frame s':>8} {'pyramid s':>10} {'march+shade s':>14} "
+              f"{'caption s':>10} {'target s':>9}")
+        for size in look_sizes:
+            row = look_benchmark("fresh_chop", size, max(1, min(args.repeat, 3)))
+            rest = row["wall_s"] - row["synthesis_s"] - row["pyramid_s"] - row["shading_s"]
+            target = {"1280x720": "30", "640x360": "8"}.get(size, "-")
+            print(f"{size:>10} {row['wall_s']:>8.2f} {row['cpu_s']:>7.2f} {row['synthesis_s']:>8.2f} "
+                  f"{row['pyramid_s']:>10.2f} {row['shading_s']:>14.2f} {rest:>10.2f} {target:>9}")
+        print("frame: the preset's fields (Ocean.frame); pyramid: resampling the displaced surface and its")
+        print("levels; march+shade: the numba kernel. Targets on 2 cores; CPU s is the process's CPU time.")
 
 
 def _frames_section(sizes: list[int], args) -> None:

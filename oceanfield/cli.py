@@ -118,6 +118,7 @@ def build_parser() -> argparse.ArgumentParser:
     scene.add_argument("--maps", default=None, metavar="DIR", help="the render output root the material's map files are under (default: ./renders)")
     scene.add_argument("--render-maps", action="store_true", help="render the map sequences into --maps first")
     _add_shot_arguments(scene, table=False)
+    _add_look_parser(commands)
     compile_ = commands.add_parser(
         "compile", help="compile the frame and probe kernels into numba's cache once (for a farm image)",
         description="Compile every frame kernel and the probes' into numba's on-disk cache, so that no render, "
@@ -142,6 +143,55 @@ def build_parser() -> argparse.ArgumentParser:
     analyze.add_argument("--json", action="store_true", help="print every figure as JSON")
     analyze.add_argument("--report", default=None, metavar="FILE.png", help="write a report picture")
     return parser
+
+
+# -- look: the sea seen as the camera will (one self-contained block) -----------------------
+
+
+def _add_look_parser(commands) -> None:
+    look = commands.add_parser(
+        "look", help="a perspective picture of the sea from a camera, lit by a clear sky and the sun (PNG + EXR)",
+        description="Render the preset's sea as a camera at a height sees it, toward the horizon: the sky mirrored "
+                    "with water's Fresnel reflectance, the sun's glitter from the slopes (Cox & Munk roughness "
+                    "beyond the tile), the deep water's colour and the foam. Writes a PNG with a caption and a "
+                    "linear EXR beside it, or with --frames a flipbook. Angles in degrees, counter-clockwise "
+                    "from the tile's +x axis like towards_deg; the Earth is a sphere (--flat-sea for a plane).")
+    _add_preset_arguments(look)
+    shown = look.add_mutually_exclusive_group()
+    shown.add_argument("--frame", type=int, default=None, help="frame number (default: the first)")
+    shown.add_argument("--frames", default=None, metavar="A-B", help="write a flipbook of these frames (GIF, or MP4 with the video extra)")
+    look.add_argument("--camera-height", type=float, default=None, metavar="METRES", help="lens height above the mean sea (default 10)")
+    look.add_argument("--heading", type=float, default=None, metavar="DEG",
+                      help="where the camera looks, counter-clockwise from +x (default: into the oncoming waves)")
+    look.add_argument("--pitch", type=float, default=None, metavar="DEG", help="above the horizontal, negative looks down (default -8)")
+    look.add_argument("--fov", type=float, default=None, metavar="DEG", help="field of view across the picture (default 60)")
+    look.add_argument("--sun-elevation", type=float, default=None, metavar="DEG", help="the sun above the horizon (default 25)")
+    look.add_argument("--sun-azimuth", type=float, default=None, metavar="DEG",
+                      help="the sun's direction, counter-clockwise from +x (default: 20 to the left of the heading)")
+    look.add_argument("--turbidity", type=float, default=None, help="haze of the Preetham sky, 2 (very clear) to 10 (default 3)")
+    look.add_argument("--exposure", type=float, default=None, metavar="EV", help="stops brighter than the grey-card exposure (default 0)")
+    look.add_argument("--size", default=None, metavar="WxH", help="picture size in pixels (default 1280x720)")
+    look.add_argument("--flat-sea", action="store_true", help="a flat sea to infinity (horizon at eye level) instead of the round Earth")
+    look.add_argument("--clear-air", action="store_true", help="no haze between the camera and the sea (it fades into the horizon's sky by default)")
+    look.add_argument("--out", default=None,
+                      help="file to write (default: renders/<preset>_look.png and .exr beside it, or .gif with --frames)")
+
+
+def _cmd_look(args: argparse.Namespace) -> int:
+    from .look.writing import look_from_arguments, write_look_flipbook, write_still
+
+    preset = _load(args, allow_outside_output=True)
+    _warn(preset)
+    look = look_from_arguments(preset, args)
+    if args.frames is not None:
+        from .render.plan import parse_frames
+
+        path = write_look_flipbook(look, parse_frames(args.frames, preset.time.frames), out=args.out)
+        print(f"look flipbook written to {path}")
+        return 0
+    png, exr = write_still(look, frame=args.frame, out=args.out)
+    print(f"look written to {png} (linear beauty: {exr})")
+    return 0
 
 
 def _version() -> str:
@@ -450,6 +500,7 @@ _COMMANDS = {
     "float": _cmd_float,
     "scene": _cmd_scene,
     "compile": _cmd_compile,
+    "look": _cmd_look,
 }
 
 

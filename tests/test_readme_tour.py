@@ -20,7 +20,7 @@ from oceanfield.cli import main
 from oceanfield.preset import load_preset
 
 README = Path(__file__).resolve().parents[1] / "README.md"
-_PRESET_COMMANDS = {"stats", "resolve", "preview", "render", "probe", "float", "scene"}
+_PRESET_COMMANDS = {"stats", "resolve", "preview", "look", "render", "probe", "float", "scene"}
 _SMALL = ["--set", "tile.resolution=64"]
 _FRAMES = "1001-1024"
 
@@ -44,6 +44,8 @@ def _shrunk(words: list[str]) -> list[str]:
         words[words.index("--frames") + 1] = _FRAMES
     if "--workers" in words:  # one worker: the tour's point is the files, not the pool
         words[words.index("--workers") + 1] = "1"
+    if words[0] == "look":  # a small picture: the tour checks the files, the look's tests the pixels
+        words += ["--size", "160x90"]
     if words[0] in _PRESET_COMMANDS:
         words += _SMALL
     return words
@@ -53,7 +55,8 @@ def test_the_readme_tour_runs_from_top_to_bottom(tmp_path, monkeypatch, capsys):
     monkeypatch.chdir(tmp_path)
     tour = _tour()
     assert [words[0] for words in tour] == [
-        "presets", "stats", "preview", "preview", "resolve", "stats", "render", "analyze", "probe", "float", "scene"
+        "presets", "stats", "preview", "preview", "look", "resolve", "stats", "render", "analyze", "probe", "float",
+        "scene",
     ], "the tour changed: check that this test still covers each step"
     for words in tour:
         target = None
@@ -71,6 +74,8 @@ def test_the_readme_tour_runs_from_top_to_bottom(tmp_path, monkeypatch, capsys):
             assert "Bft" in captured.out
     assert Path("renders/swell_under_wind_sea_preview.png").stat().st_size > 10_000
     assert Path("renders/swell_under_wind_sea_preview.gif").stat().st_size > 10_000
+    assert Path("renders/fresh_chop_look.png").stat().st_size > 10_000
+    assert Path("renders/fresh_chop_look.exr").is_file()
     assert len(list(Path("renders/my_chop").glob("displacement.*.exr"))) == 24
     assert Path("check.png").stat().st_size > 10_000
     assert len(Path("hero.csv").read_text().splitlines()) == 1 + 24 and Path("boat.csv").is_file()

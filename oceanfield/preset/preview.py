@@ -22,7 +22,8 @@ from pathlib import Path
 import numpy as np
 from numpy.typing import NDArray
 
-__all__ = ["shade", "shade_top", "length_text", "preview_figure", "write_preview", "write_flipbook"]
+__all__ = ["shade", "shade_top", "length_text", "preview_figure", "write_preview", "write_flipbook", "video_options",
+           "save_flipbook"]
 
 # Shading colours (linear RGB, demo look, not measured): deep water, sky, sun.
 _WATER = np.array([0.02, 0.08, 0.12])
@@ -342,27 +343,13 @@ def write_flipbook(preset, frames, *, out: str | Path | None = None) -> Path:
     preset's frame rate (a GIF stores delays in hundredths of a second: 24 fps plays at
     25). MP4 needs the ``video`` extra (imageio-ffmpeg). Written atomically.
     """
-    import imageio.v3 as iio
-
-    from ..io.atomic import atomic_output
     from ..surface.synth import Ocean
 
     frames = [_checked_frame(f) for f in frames]
     if not frames:
         raise ValueError("--frames: no frames to preview; allowed: a range A-B")
     path = _out_path(preset, out, _VIDEO_SUFFIXES, ".gif")
-    options: dict = {}
-    if path.suffix.lower() == ".mp4":
-        try:
-            import imageio_ffmpeg  # noqa: F401
-        except ImportError:
-            raise ValueError(
-                f"--out: {str(path)!r}: writing MP4 needs the video extra (pip install 'oceanfield[video]'); "
-                f"a .gif needs nothing more"
-            ) from None
-        options = dict(fps=preset.time.fps, codec="libx264", macro_block_size=1)
-    else:
-        options = dict(duration=1000.0 / preset.time.fps, loop=0)
+    options = video_options(path, preset.time.fps)
 
     if preset.bands.active:
         # The bands summed over the reach (exact sums, a few hundred texels a side).
@@ -404,6 +391,30 @@ def write_flipbook(preset, frames, *, out: str | Path | None = None) -> Path:
         picture = shade_top(normal, foam, sun_azimuth=sun, stretch=stretch)[::-1]  # y up, as in the preview
         picture = np.round(picture * 255.0).astype(np.uint8)
         pictures.append(np.repeat(np.repeat(picture, enlarge, axis=0), enlarge, axis=1))
+    return save_flipbook(path, pictures, options)
+
+
+def video_options(path: Path, fps: float) -> dict:
+    """imageio's options for a flipbook at ``path`` (by its suffix, .gif or .mp4) played at
+    ``fps``; MP4 without the video extra is a ValueError naming --out and the extra."""
+    if path.suffix.lower() == ".mp4":
+        try:
+            import imageio_ffmpeg  # noqa: F401
+        except ImportError:
+            raise ValueError(
+                f"--out: {str(path)!r}: writing MP4 needs the video extra (pip install 'oceanfield[video]'); "
+                f"a .gif needs nothing more"
+            ) from None
+        return dict(fps=fps, codec="libx264", macro_block_size=1)
+    return dict(duration=1000.0 / fps, loop=0)
+
+
+def save_flipbook(path: Path, pictures: list, options: dict) -> Path:
+    """Write 8-bit RGB ``pictures`` (same shapes) as one animated file, atomically."""
+    import imageio.v3 as iio
+
+    from ..io.atomic import atomic_output
+
     with atomic_output(path) as temporary:
         iio.imwrite(temporary, np.stack(pictures), extension=path.suffix.lower(), **options)
     return path
