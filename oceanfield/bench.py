@@ -22,7 +22,10 @@ from typing import Callable
 
 import numpy as np
 
-__all__ = ["main", "time_call", "frame_benchmark", "look_benchmark"]
+__all__ = ["main", "time_call", "frame_benchmark", "composite_benchmark", "probe_benchmark", "look_benchmark"]
+
+#: The sections ``--only`` may pick, in the order they run.
+_SECTIONS = ("look", "frames", "composite", "probes", "bands", "bound", "render", "workers", "analyze")
 
 
 def time_call(function: Callable[[], object], *, repeat: int, warmup: int = 1) -> float:
@@ -175,6 +178,69 @@ def band_benchmark(reach: float, resolution: int, composite: int, workers: int, 
         "composite_s": composite_time,
         "composite_ratio": composite_time / square_time,
     }
+
+
+def composite_benchmark(preset_name: str, workers: int, repeat: int) -> dict[str, float]:
+    """The composite map of a banded preset at its own extent and resolution: exact sums
+    (chirp z, as before non-uniform FFTs) and non-uniform FFTs (today's default), each
+    against the bare FFTs of one frame of the composite's size (four complex64 inverse
+    transforms on ``workers`` threads), interleaved."""
+    import scipy.fft
+
+    from .preset.banding import band_stack
+    from .preset.schema import load_preset
+
+    preset = load_preset(preset_name)
+    stack = band_stack(preset, fft_workers=workers)
+    extent, n = preset.bands.composite_extent_m, preset.bands.composite_resolution
+    square = np.zeros((4, n, n), dtype=np.complex64)
+    square[:, 1, 1] = 1.0
+    counter = iter(range(10**9))
+
+    def bare() -> None:
+        scipy.fft.ifft2(square, axes=(-2, -1), norm="forward", overwrite_x=True, workers=workers)
+
+    def nufft() -> None:
+        stack.composite(0.04 * next(counter), extent=extent, resolution=n)
+
+    def exact() -> None:
+        stack.composite(0.04 * next(counter), extent=extent, resolution=n, exact=True)
+
+    fast, bare_fast, *_ = _timed_pair(nufft, bare, repeat)
+    slow, bare_slow, *_ = _timed_pair(exact, bare, max(1, repeat // 3))
+    return {"resolution": n, "extent": extent, "bare_s": bare_fast, "nufft_s": fast, "exact_s": slow,
+            "nufft_ratio": fast / bare_fast, "exact_ratio": slow / bare_slow}
+
+
+def probe_benchmark(preset_name: str, points: int, repeat: int, *, exact_points: int = 10) -> dict[str, float]:
+    """Probes on a preset's sea (``oceanfield probe``'s modes: every bound wave), one frame:
+    one probe and ``points`` probes, with the exact sums (before) and the automatic choice
+    (after: exact for few points, the frame's sampled grids for many). The exact sums of
+    ``points`` probes are timed on ``exact_points`` of them and scaled (they cost the same
+    per point; the full run takes minutes)."""
+    from .preset.banding import band_stack
+    from .preset.schema import load_preset
+    from .surface.probes import surface_at
+    from .surface.synth import Ocean
+
+    preset = load_preset(preset_name)
+    banded = preset.bands.active
+    ocean = band_stack(preset, foam_memory=0.0) if banded else Ocean.from_preset(preset, foam_memory=0.0)
+    modes = ocean.modes(bound_share=1.0)
+    rng = np.random.default_rng(7)
+    extent = (preset.bands.composite_extent_m or ocean.largest_tile.size) if banded else ocean.tile.size
+    x, y = rng.uniform(0.0, extent, points), rng.uniform(0.0, extent, points)
+    counter = iter(range(10**9))
+    exact_points = min(exact_points, points)
+
+    def run(count: int, method: str) -> Callable[[], object]:
+        return lambda: surface_at(modes, x[:count], y[:count], 0.04 * next(counter), method=method)
+
+    one_exact, one_auto, *_ = _timed_pair(run(1, "exact"), run(1, "auto"), repeat)
+    many_exact, many_auto, *_ = _timed_pair(run(exact_points, "exact"), run(points, "auto"), max(1, repeat // 2))
+    return {"modes": len(modes), "points": points, "exact_points": exact_points,
+            "one_exact_s": one_exact, "one_auto_s": one_auto,
+            "many_exact_s": many_exact * points / exact_points, "many_auto_s": many_auto}
 
 
 _RENDER_OVERRIDES = (
@@ -396,16 +462,57 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--bands-reach", type=float, default=2000.0, help="reach in metres of the band stack (0 = skip)")
     parser.add_argument("--bands-size", type=int, default=512, help="resolution of band 0")
     parser.add_argument("--bands-composite", type=int, default=1024, help="texels per side of the composite map")
+    parser.add_argument("--composite-preset", default="open_ocean_horizon",
+                        help="banded preset whose composite map and probes are timed")
+    parser.add_argument("--probes", type=int, default=1000, help="probes of the many-probes figure")
     parser.add_argument("--look-sizes", default="1280x720,640x360",
                         help="picture sizes of the `look fresh_chop` row (empty = skip)")
-    parser.add_argument("--look-only", action="store_true", help="run only the `look` row")
+    parser.add_argument("--look-only", action="store_true", help="run only the `look` row (as --only look)")
+    parser.add_argument("--only", default=",".join(_SECTIONS),
+                        help=f"comma-separated sections to run, of: {', '.join(_SECTIONS)}")
     args = parser.parse_args(argv)
+    only = {"look"} if args.look_only else {name.strip() for name in args.only.split(",") if name.strip()}
+    unknown = only - set(_SECTIONS)
+    if unknown:
+        parser.error(f"--only: {', '.join(sorted(unknown))} is not allowed; allowed: {', '.join(_SECTIONS)}")
 
     import numba
 
     numba.set_num_threads(min(args.workers, numba.config.NUMBA_NUM_THREADS))
     sizes = [int(s) for s in args.sizes.split(",") if s]
     print(f"oceanfield benchmark: {args.workers} thread(s), median of {args.repeat}")
+    if "look" in only:
+        _look_section(args)
+    if "frames" in only:
+        _frames_section(sizes, args)
+    if "composite" in only:
+        row = composite_benchmark(args.composite_preset, args.workers, args.repeat)
+        print(f"\nComposite map of {args.composite_preset}: {row['resolution']}² over {row['extent']:g} m, "
+              f"against one bare {row['resolution']}² frame's FFTs ({row['bare_s'] * 1e3:.1f} ms)")
+        print(f"  before (exact sums, chirp z) {row['exact_s'] * 1e3:.0f} ms: {row['exact_ratio']:.1f}x")
+        print(f"  after (non-uniform FFTs)     {row['nufft_s'] * 1e3:.0f} ms: {row['nufft_ratio']:.1f}x (target <= 5)")
+    if "probes" in only:
+        row = probe_benchmark(args.composite_preset, args.probes, args.repeat)
+        print(f"\nProbes on {args.composite_preset} ({row['modes'] / 1e6:.2f} M modes, every bound wave), one frame")
+        print(f"  one probe: before (exact) {row['one_exact_s'] * 1e3:.0f} ms, after (auto) "
+              f"{row['one_auto_s'] * 1e3:.0f} ms (target <= 20 ms)")
+        print(f"  {row['points']} probes: before (exact, timed on {row['exact_points']} and scaled) "
+              f"{row['many_exact_s']:.1f} s, "
+              f"after (auto: sampled grids) {row['many_auto_s']:.2f} s (target <= 0.5 s)")
+    if "bands" in only and args.bands_reach > 0:
+        _bands_section(args)
+    if "bound" in only:
+        _bound_section(sizes, args)
+    if "render" in only and args.render_frames > 0:
+        _render_section(args)
+    if "workers" in only:
+        _workers_section(args)
+    if "analyze" in only and args.analyze_frames > 0:
+        _analyze_section(args)
+    return 0
+
+
+def _look_section(args) -> None:
     look_sizes = [s for s in args.look_sizes.split(",") if s]
     if look_sizes:
         print("\nLook: `oceanfield look fresh_chop` (512² tile, default camera and sun), one still, kernels warm")
@@ -419,8 +526,9 @@ def main(argv: list[str] | None = None) -> int:
                   f"{row['pyramid_s']:>10.2f} {row['shading_s']:>14.2f} {rest:>10.2f} {target:>9}")
         print("frame: the preset's fields (Ocean.frame); pyramid: resampling the displaced surface and its")
         print("levels; march+shade: the numba kernel. Targets on 2 cores; CPU s is the process's CPU time.")
-    if args.look_only:
-        return 0
+
+
+def _frames_section(sizes: list[int], args) -> None:
     print("\nOne full frame (height, lateral displacement, slopes, Jacobian, normal, foam)")
     print(f"{'N':>6} {'frame ms':>10} {'bare FFTs ms':>13} {'ratio':>7} {'new-buffer ratio':>17} {'bytes/texel':>12}")
     for n in sizes:
@@ -433,37 +541,47 @@ def main(argv: list[str] | None = None) -> int:
     print("new-buffer ratio: frame allocating fresh memory each time (page faults included).")
     print("Targets: ratio <= 1.3 at N = 1024 and 2048; <= 48 bytes per texel (numpy allocations,")
     print("traced from before the Ocean is built to the end of its first frame).")
-    if args.bands_reach > 0:
-        row = band_benchmark(args.bands_reach, args.bands_size, args.bands_composite, args.workers, args.repeat)
-        print(f"\nBand stack: reach {args.bands_reach:g} m down to 1 cm ripples, {row['bands']} bands, "
-              f"{row['texels'] / 1e6:.2f} M texels")
-        print(f"  stack frame {row['frame_s'] * 1e3:.1f} ms, bare FFTs of all bands {row['fft_s'] * 1e3:.1f} ms: "
-              f"ratio {row['ratio']:.3f} (target <= 1.3); CPU time ratio {row['cpu_ratio']:.3f}; "
-              f"bound waves in {row['bound_bands']} band(s)")
-        print(f"  without bound waves {row['linear_s'] * 1e3:.1f} ms: ratio {row['linear_ratio']:.3f}; "
-              f"CPU time ratio {row['linear_cpu_ratio']:.3f}")
-        print(f"  composite {args.bands_composite}² (exact sums) {row['composite_s'] * 1e3:.1f} ms: "
-              f"{row['composite_ratio']:.1f}x the bare FFTs of one {args.bands_composite}² frame")
+
+
+def _bands_section(args) -> None:
+    row = band_benchmark(args.bands_reach, args.bands_size, args.bands_composite, args.workers, args.repeat)
+    print(f"\nBand stack: reach {args.bands_reach:g} m down to 1 cm ripples, {row['bands']} bands, "
+          f"{row['texels'] / 1e6:.2f} M texels")
+    print(f"  stack frame {row['frame_s'] * 1e3:.1f} ms, bare FFTs of all bands {row['fft_s'] * 1e3:.1f} ms: "
+          f"ratio {row['ratio']:.3f} (target <= 1.3); CPU time ratio {row['cpu_ratio']:.3f}; "
+          f"bound waves in {row['bound_bands']} band(s)")
+    print(f"  without bound waves {row['linear_s'] * 1e3:.1f} ms: ratio {row['linear_ratio']:.3f}; "
+          f"CPU time ratio {row['linear_cpu_ratio']:.3f}")
+    print(f"  composite {args.bands_composite}² (non-uniform FFTs) {row['composite_s'] * 1e3:.1f} ms: "
+          f"{row['composite_ratio']:.1f}x the bare FFTs of one {args.bands_composite}² frame")
+
+
+def _bound_section(sizes: list[int], args) -> None:
     print("\nThe same frame with second-order bound waves, over the linear frame's bare FFTs")
     print(f"{'N':>6} {'frame ms':>10} {'bare FFTs ms':>13} {'ratio':>7}")
     for n in sizes:
         row = frame_benchmark(n, args.workers, args.repeat, bound_waves=True)
         print(f"{n:>6} {row['frame_s'] * 1e3:>10.2f} {row['fft_s'] * 1e3:>13.2f} {row['ratio']:>7.3f}")
     print("Target: ratio <= 1.8.")
-    if args.render_frames > 0:
-        row = render_benchmark(args.render_size, args.render_frames, args.workers, cold=not args.skip_cold)
-        print(f"\nEnd to end: {args.render_frames} frames at {args.render_size}², displacement + normal + foam, "
-              f"ZIP half EXR, `oceanfield render` in a fresh process, default workers ({row['workers']})")
-        print(f"  FFT floor {row['fft_floor_s']:.2f} s + write floor {row['write_floor_s']:.2f} s "
-              f"(encoder on {args.workers} thread(s)) = {row['fft_floor_s'] + row['write_floor_s']:.2f} s")
-        print(f"  render {row['end_to_end_s']:.2f} s: ratio to floors {row['ratio']:.3f} (target <= 1.15)")
-        print(f"Start-up: a one-frame {args.render_size}² job")
-        print(f"  warm {row['one_frame_job_s']:.2f} s = that frame's compute and write {row['one_frame_own_s']:.2f} s "
-              f"+ {row['one_frame_overhead_s']:.2f} s (target: <= 1.0 s beyond the frame)")
-        if not args.skip_cold:
-            print(f"  cold (empty kernel cache, as after install) {row['cold_one_frame_job_s']:.2f} s: "
-                  f"{row['cold_one_frame_job_s'] - row['one_frame_job_s']:.2f} s of kernel compilation "
-                  "(`oceanfield compile` pays it once per farm image)")
+
+
+def _render_section(args) -> None:
+    row = render_benchmark(args.render_size, args.render_frames, args.workers, cold=not args.skip_cold)
+    print(f"\nEnd to end: {args.render_frames} frames at {args.render_size}², displacement + normal + foam, "
+          f"ZIP half EXR, `oceanfield render` in a fresh process, default workers ({row['workers']})")
+    print(f"  FFT floor {row['fft_floor_s']:.2f} s + write floor {row['write_floor_s']:.2f} s "
+          f"(encoder on {args.workers} thread(s)) = {row['fft_floor_s'] + row['write_floor_s']:.2f} s")
+    print(f"  render {row['end_to_end_s']:.2f} s: ratio to floors {row['ratio']:.3f} (target <= 1.15)")
+    print(f"Start-up: a one-frame {args.render_size}² job")
+    print(f"  warm {row['one_frame_job_s']:.2f} s = that frame's compute and write {row['one_frame_own_s']:.2f} s "
+          f"+ {row['one_frame_overhead_s']:.2f} s (target: <= 1.0 s beyond the frame)")
+    if not args.skip_cold:
+        print(f"  cold (empty kernel cache, as after install) {row['cold_one_frame_job_s']:.2f} s: "
+              f"{row['cold_one_frame_job_s'] - row['one_frame_job_s']:.2f} s of kernel compilation "
+              "(`oceanfield compile` pays it once per farm image)")
+
+
+def _workers_section(args) -> None:
     workers_sizes = [int(s) for s in args.workers_sizes.split(",") if s]
     if workers_sizes:
         print(f"\nDefault workers: renders with 1 … {args.workers} worker processes, best of two each, "
@@ -474,12 +592,13 @@ def main(argv: list[str] | None = None) -> int:
             times = "  ".join(f"{count}: {seconds:.2f}" for count, seconds in row["times"].items())
             print(f"{n:>6} {row['frames']:>7} {times:>28} {row['default']:>8} {row['default_over_best']:>13.3f}")
         print("Target: default/best <= 1.05.")
-    if args.analyze_frames > 0:
-        row = analyzer_benchmark(args.analyze_size, args.analyze_frames, args.workers)
-        print(f"\nAnalyzer: {args.analyze_frames} frames of {args.analyze_size}² heights (in memory)")
-        print(f"  {row['per_frame_s'] * 1e3:.1f} ms per frame streamed, {row['finish_s']:.2f} s to measure, "
-              f"{row['total_s']:.1f} s in all (target: well under a minute)")
-    return 0
+
+
+def _analyze_section(args) -> None:
+    row = analyzer_benchmark(args.analyze_size, args.analyze_frames, args.workers)
+    print(f"\nAnalyzer: {args.analyze_frames} frames of {args.analyze_size}² heights (in memory)")
+    print(f"  {row['per_frame_s'] * 1e3:.1f} ms per frame streamed, {row['finish_s']:.2f} s to measure, "
+          f"{row['total_s']:.1f} s in all (target: well under a minute)")
 
 
 if __name__ == "__main__":

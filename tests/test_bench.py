@@ -17,7 +17,7 @@ def test_benchmark_prints_frame_render_and_analyzer_figures(capsys):
         "--render-frames", "2", "--render-size", "32", "--skip-cold",
         "--analyze-frames", "16", "--analyze-size", "32",
         "--bands-reach", "40", "--bands-size", "64", "--bands-composite", "32",
-        "--workers-sizes", "32",
+        "--workers-sizes", "32", "--only", "frames,bands,bound,render,workers,analyze",
     ])
     assert code == 0
     out = capsys.readouterr().out
@@ -39,3 +39,40 @@ def test_benchmark_prints_frame_render_and_analyzer_figures(capsys):
     assert cpu and float(cpu.group(1)) > 0
     linear = re.search(r"without bound waves ([0-9.]+) ms: ratio ([0-9.]+); CPU time ratio ([0-9.]+)", out)
     assert linear and all(float(value) > 0 for value in linear.groups())
+
+
+TOY_BANDS = """\
+description: two listed bands for the benchmark's composite and probe rows
+sea:
+  components:
+    - wind_speed_mps: 8
+bands:
+  tiles:
+    - {size_m: 60, resolution: 32, shortest_wave_m: 2.5}
+    - {size_m: 19.843, resolution: 32, longest_wave_m: 2.5}
+  composite_extent_m: 60
+  composite_resolution: 48
+"""
+
+
+def test_benchmark_prints_the_composite_and_probe_rows_alone(capsys, tmp_path):
+    path = tmp_path / "toy_bands.yaml"
+    path.write_text(TOY_BANDS, encoding="utf-8")
+    code = bench.main(["--only", "composite,probes", "--composite-preset", str(path), "--probes", "40",
+                       "--repeat", "2", "--workers", "1"])
+    assert code == 0
+    out = capsys.readouterr().out
+    assert "One full frame" not in out  # the other sections are left out
+    before = re.search(r"before \(exact sums, chirp z\) [0-9]+ ms: ([0-9.]+)x", out)
+    after = re.search(r"after \(non-uniform FFTs\) +[0-9]+ ms: ([0-9.]+)x", out)
+    assert before and after and float(before.group(1)) > 0 and float(after.group(1)) > 0
+    assert re.search(r"one probe: before \(exact\) [0-9]+ ms, after \(auto\) [0-9]+ ms", out)
+    assert re.search(r"40 probes: before \(exact, timed on 10 and scaled\) [0-9.]+ s, after", out)
+
+
+def test_benchmark_refuses_an_unknown_section():
+    import pytest
+
+    with pytest.raises(SystemExit) as raised:
+        bench.main(["--only", "frames,colour"])
+    assert raised.value.code == 2

@@ -218,3 +218,17 @@ def test_slot_index_is_the_slot_of_each_waves_q(n):
             nx = c if c < half else c - n
             q = nx * nx + ny * ny
             assert index[r, c] == (slots[q] if 0 < q < slots.size else -1)
+
+
+def test_the_composite_block_spectra_kernel_matches_its_numpy_reference():
+    from oceanfield.surface import _kernels
+
+    rng = np.random.default_rng(4)
+    shape = (6, 10)
+    h0, mirror = (rng.normal(size=shape) + 1j * rng.normal(size=shape) for _ in range(2))
+    omega = rng.uniform(0.1, 3.0, shape)
+    factors = rng.normal(size=(4,) + shape) + 1j * rng.normal(size=(4,) + shape)
+    out = np.empty((4,) + shape, dtype=np.complex128)
+    _kernels.block_spectra_kernel(h0, mirror, omega, factors, 2.7, out)
+    np.testing.assert_allclose(out, _kernels.block_spectra_reference(h0, mirror, omega, factors, 2.7),
+                               rtol=1e-13, atol=1e-13)

@@ -12,7 +12,7 @@ from oceanfield.physics.seastate import height_period
 from oceanfield.preset.schema import list_presets, load_preset
 from oceanfield.surface import _sums
 from oceanfield.surface.modes import WaveModes
-from oceanfield.surface.probes import surface_at
+from oceanfield.surface.probes import _NO_SAMPLER, surface_at
 
 
 @pytest.fixture(scope="module")
@@ -39,7 +39,7 @@ def test_the_kernel_matches_its_numpy_reference(ocean):
     x, y, t = rng.uniform(-300, 300, 7), rng.uniform(-300, 300, 7), rng.uniform(0, 50, 7)
     out = np.empty((7, len(_sums.OUTPUT_COLUMNS)))
     every = (modes.kx, modes.ky, modes.omega, modes.height, modes.lateral_x, modes.lateral_y)
-    _sums.surface_point_kernel(*every, *every, x, y, t, False, 1e-7, 60, out)
+    _sums.surface_point_kernel(*every, *every, x, y, t, False, 1e-7, 60, out, False, *_NO_SAMPLER)
     reference = _sums.surface_point_reference(modes.kx, modes.ky, modes.omega, modes.height, modes.lateral_x,
                                               modes.lateral_y, x, y, t)
     assert np.max(np.abs(out[:, 4:] - reference)) < 1e-10 * np.max(np.abs(reference))
@@ -158,8 +158,71 @@ def test_the_inversion_sums_only_the_modes_that_move_sideways():
     x, y, t = rng.uniform(-100, 100, 9), rng.uniform(-100, 100, 9), rng.uniform(0, 30, 9)
     every = (modes.kx, modes.ky, modes.omega, modes.height, modes.lateral_x, modes.lateral_y)
     full = np.empty((9, len(_sums.OUTPUT_COLUMNS)))
-    _sums.surface_point_kernel(*every, *every, x, y, t, True, 1e-9, 60, full)
-    got = surface_at(modes, x, y, t, tolerance=1e-9)
+    _sums.surface_point_kernel(*every, *every, x, y, t, True, 1e-9, 60, full, False, *_NO_SAMPLER)
+    got = surface_at(modes, x, y, t, tolerance=1e-9, method="exact")
     assert np.array_equal(got.rest, full[:, :2])
     assert np.array_equal(got.displacement, full[:, 4:7])
     assert np.all(got.residual < 1e-9)
+
+
+# -- many points: the frame's sampled grids (surface/_nufft.py) against the exact sums ------
+
+#: The promise of the sampled sums: under 1e-6 of each field's standard deviation.
+SAMPLED_OF_SIGMA = 1e-6
+
+
+def _banded_modes():
+    from oceanfield.surface.bands import Band, BandStack
+
+    sea = SeaState((wind_sea(8.0),))
+    bands = [Band(Tile(60.0, 64), 0.0, 2.5), Band(Tile(19.843, 48), 2.5, math.inf)]
+    return BandStack(sea, bands, seed=3, fft_workers=1, bound_waves=True).modes(bound_share=1.0)
+
+
+@pytest.mark.parametrize("invert", [False, True])
+def test_sampled_sums_match_the_exact_sums_on_a_banded_sea_with_bound_waves(invert):
+    modes = _banded_modes()
+    rng = np.random.default_rng(8)
+    x, y, t = rng.uniform(-150, 150, 60), rng.uniform(-150, 150, 60), np.repeat([0.4, 2.9], 30)
+    exact = surface_at(modes, x, y, t, invert=invert, method="exact")
+    sampled = surface_at(modes, x, y, t, invert=invert, method="sampled")
+    for name in ("displacement", "normal", "velocity", "position"):
+        got, want = getattr(sampled, name), getattr(exact, name)
+        for axis in range(3):
+            assert np.abs(got[..., axis] - want[..., axis]).max() < SAMPLED_OF_SIGMA * want[..., axis].std()
+    assert np.abs(sampled.rise_rate - exact.rise_rate).max() < SAMPLED_OF_SIGMA * exact.rise_rate.std()
+
+
+def test_sampled_sums_are_the_same_bits_on_any_thread_count():
+    import numba
+
+    modes = _banded_modes()
+    x, y = np.linspace(-40, 90, 25), np.linspace(10, -70, 25)
+    before = numba.get_num_threads()
+    try:
+        numba.set_num_threads(1)
+        one = surface_at(modes, x, y, 1.5, method="sampled")
+        numba.set_num_threads(min(2, numba.config.NUMBA_NUM_THREADS))
+        two = surface_at(modes, x, y, 1.5, method="sampled")
+    finally:
+        numba.set_num_threads(before)
+    np.testing.assert_array_equal(one.position, two.position)
+    np.testing.assert_array_equal(one.normal, two.normal)
+
+
+def test_auto_keeps_the_exact_sums_for_a_single_point_and_samples_many(monkeypatch):
+    from oceanfield.surface import probes
+
+    modes = Ocean(SeaState((wind_sea(10.0),)), Tile(300.0, 256), seed=2, bound_waves=False).modes()
+    assert not probes._sampling_pays(modes, np.zeros(1))
+    assert probes._sampling_pays(modes, np.zeros(10_000))
+    monkeypatch.setattr(probes, "SAMPLED_MEMORY_LIMIT", 1000)  # grids too large: exact
+    assert not probes._sampling_pays(modes, np.zeros(10_000))
+
+
+def test_sampled_sums_refuse_modes_on_no_lattice():
+    modes = WaveModes([0.1], [0.0], [1.0], [1.0], [0.5j], [0.0])
+    with pytest.raises(ValueError, match="^method: 'sampled'"):
+        surface_at(modes, [0.0], [0.0], 0.0, method="sampled")
+    with pytest.raises(ValueError, match="^method: 'fast'"):
+        surface_at(modes, [0.0], [0.0], 0.0, method="fast")

@@ -31,7 +31,7 @@ _SKY = np.array([0.55, 0.68, 0.80])
 _FOAM = np.array([0.90, 0.92, 0.93])
 _SUN_DIRECTION = np.array([0.0, 0.94, 0.34])  # low sun ahead of the viewer: glitter path
 _VIEW_DIRECTION = np.array([0.0, -0.87, 0.50])  # a camera 30° above the horizon looking toward +y
-_PREVIEW_COMPOSITE_TEXELS = 768  # the composite of a banded preset, summed exactly on this grid
+_PREVIEW_COMPOSITE_TEXELS = 768  # the composite of a banded preset, summed on this grid
 _WATER_REFLECTANCE = 0.02  # Fresnel reflectance of water at normal incidence, (n−1)²/(n+1)², n = 1.33
 _SUN_ELEVATION_DEG = 25.0  # the top view's low sun (demo look): slopes facing it light up
 #: The top view shows at most this many mean wavelengths (of the mean period Tm02) across:

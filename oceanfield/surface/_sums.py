@@ -80,9 +80,109 @@ def _sums(kx, ky, omega, a, bx, by, x, y, t, rates):  # pragma: no cover - compi
     return dx, dy, h, dxx, dxy, dyx, dyy, hx, hy, dxt, dyt, ht
 
 
+@numba.njit(cache=True, fastmath=False)
+def _weights(u, width, beta, out):  # pragma: no cover - compiled
+    """The first of the ``width`` fine-grid cells around grid coordinate u, and their
+    "exponential of semicircle" weights φ((u − m)/(width/2)) in ``out``."""
+    first = math.ceil(u - 0.5 * width)
+    for a in range(width):
+        z = (u - (first + a)) / (0.5 * width)
+        out[a] = math.exp(beta * (math.sqrt(max(0.0, 1.0 - z * z)) - 1.0))
+    return first
+
+
+@numba.njit(cache=True, fastmath=False)
+def _sampled(grids, offsets, sizes, counts, dks, width, beta, x, y, lateral_only):  # pragma: no cover
+    """The tuple of ``_sums`` from the frame's sampled grids (``_nufft.sample_grids``):
+    per lattice group the packed pairs (Dx, Dy), (∂Dx/∂x, ∂Dx/∂y), (∂Dy/∂x, ∂Dy/∂y),
+    (h, ∂h/∂x), (∂h/∂y, ∂h/∂t), (∂Dx/∂t, ∂Dy/∂t), or the two height pairs alone for a
+    group that does not move sideways; ``lateral_only``: the first three pairs only."""
+    wx = np.empty(width)
+    wy = np.empty(width)
+    columns = np.empty(width, dtype=np.int64)
+    rows = np.empty(width, dtype=np.int64)
+    acc = np.zeros(6, dtype=np.complex128)
+    two_pi = 2.0 * math.pi
+    for g in range(sizes.shape[0]):
+        count = counts[g]
+        if lateral_only and count < 6:
+            continue
+        size = sizes[g]
+        ux = (dks[g] * x) % two_pi * (size / two_pi)
+        uy = (dks[g] * y) % two_pi * (size / two_pi)
+        fx = _weights(ux, width, beta, wx)
+        fy = _weights(uy, width, beta, wy)
+        for a in range(width):
+            columns[a] = (fx + a) % size
+            rows[a] = ((fy + a) % size) * size
+        fields = 3 if lateral_only else count
+        for f in range(fields):
+            base = offsets[g] + f * size * size
+            total = 0.0 + 0.0j
+            for a in range(width):
+                row = base + rows[a]
+                partial = 0.0 + 0.0j
+                for b in range(width):
+                    partial += wx[b] * grids[row + columns[b]]
+                total += wy[a] * partial
+            slot = f if count == 6 else f + 3  # a height-only group holds pairs 3 and 4
+            acc[slot] += total
+    # (Dx, Dy, h, ∂Dx/∂x, ∂Dx/∂y, ∂Dy/∂x, ∂Dy/∂y, ∂h/∂x, ∂h/∂y, ∂Dx/∂t, ∂Dy/∂t, ∂h/∂t)
+    return (acc[0].real, acc[0].imag, acc[3].real, acc[1].real, acc[1].imag, acc[2].real, acc[2].imag,
+            acc[3].imag, acc[4].real, acc[5].real, acc[5].imag, acc[4].imag)
+
+
+@numba.njit(parallel=True, cache=True, fastmath=False)
+def scatter_kernel(pick, kx, ky, omega, a, bx, by, rotations, dk, moving, correction, fine):  # pragma: no cover
+    """Step 1 of ``_nufft.sample_grids`` for the modes ``pick`` of one lattice (spacing dk):
+    each field's amplitude rotated to t, c = amplitude·e^{−iωt} (``rotations``), and its derivatives
+    (∂/∂x → i kx, ∂/∂t → −iω), packed in pairs A + iB onto the fine grid, (c_A + i c_B)/2
+    at +k and (c̄_A + i c̄_B)/2 at −k (Re(c e^{ik·x}) = (c e^{ik·x} + c.c.)/2), times the
+    kernel's deconvolution factors ``correction[|n|]`` along both axes. ``moving``: the six
+    pairs of ``_sampled``; otherwise the two height pairs alone. One thread a pair (each
+    writes its own plane, modes in order): the same bits on any thread count."""
+    size = fine.shape[1]
+    for f in numba.prange(fine.shape[0]):
+        for j in pick:
+            nx = int(round(kx[j] / dk))
+            ny = int(round(ky[j] / dk))
+            rotation = rotations[j]
+            ikx, iky, iw = 1j * kx[j], 1j * ky[j], -1j * omega[j]
+            h = a[j] * rotation
+            x = bx[j] * rotation
+            y = by[j] * rotation
+            pair = f if moving else f + 3  # (Dx, Dy), (Dx_x, Dx_y), (Dy_x, Dy_y), (h, h_x), (h_y, h_t), (Dx_t, Dy_t)
+            if pair == 0:
+                p, q = x, y
+            elif pair == 1:
+                p, q = ikx * x, iky * x
+            elif pair == 2:
+                p, q = ikx * y, iky * y
+            elif pair == 3:
+                p, q = h, ikx * h
+            elif pair == 4:
+                p, q = iky * h, iw * h
+            else:
+                p, q = iw * x, iw * y
+            c = 0.5 * correction[abs(nx)] * correction[abs(ny)]
+            fine[f, ny % size, nx % size] += c * (p + 1j * q)
+            fine[f, (-ny) % size, (-nx) % size] += c * (p.conjugate() + 1j * q.conjugate())
+
+
+@numba.njit(cache=True, fastmath=False)
+def _evaluate(sampled, kx, ky, omega, a, bx, by, grids, offsets, sizes, counts, dks, width, beta,
+              x, y, t, rates):  # pragma: no cover - compiled
+    """The sums at (x, y, t): exact over the modes, or from the frame's sampled grids."""
+    if sampled:
+        return _sampled(grids, offsets, sizes, counts, dks, width, beta, x, y, not rates)
+    return _sums(kx, ky, omega, a, bx, by, x, y, t, rates)
+
+
 @numba.njit(parallel=True, cache=True, fastmath=False)
 def surface_point_kernel(kx, ky, omega, a, bx, by, lkx, lky, lomega, la, lbx, lby,  # pragma: no cover
-                         x, y, t, invert, tolerance, max_iterations, out):
+                         x, y, t, invert, tolerance, max_iterations, out,
+                         sampled, grids, offsets, sizes, counts, dks, width, beta):
+    sampler = (grids, offsets, sizes, counts, dks, width, beta)
     for m in numba.prange(x.shape[0]):
         X = x[m]
         Y = y[m]
@@ -92,11 +192,11 @@ def surface_point_kernel(kx, ky, omega, a, bx, by, lkx, lky, lomega, la, lbx, lb
         iterations = 0
         residual = 0.0
         if invert:
-            v = _sums(lkx, lky, lomega, la, lbx, lby, x0, y0, T, False)
+            v = _evaluate(sampled, lkx, lky, lomega, la, lbx, lby, *sampler, x0, y0, T, False)
             # first guess: one fixed-point step from the target itself
             x0 = X - v[0]
             y0 = Y - v[1]
-            v = _sums(lkx, lky, lomega, la, lbx, lby, x0, y0, T, False)
+            v = _evaluate(sampled, lkx, lky, lomega, la, lbx, lby, *sampler, x0, y0, T, False)
             fx = x0 + v[0] - X
             fy = y0 + v[1] - Y
             residual = math.sqrt(fx * fx + fy * fy)
@@ -123,7 +223,7 @@ def surface_point_kernel(kx, ky, omega, a, bx, by, lkx, lky, lomega, la, lbx, lb
                     for _ in range(_HALVINGS):
                         nx0 = x0 + step * sx
                         ny0 = y0 + step * sy
-                        w = _sums(lkx, lky, lomega, la, lbx, lby, nx0, ny0, T, False)
+                        w = _evaluate(sampled, lkx, lky, lomega, la, lbx, lby, *sampler, nx0, ny0, T, False)
                         gx = nx0 + w[0] - X
                         gy = ny0 + w[1] - Y
                         r = math.sqrt(gx * gx + gy * gy)
@@ -144,11 +244,11 @@ def surface_point_kernel(kx, ky, omega, a, bx, by, lkx, lky, lomega, la, lbx, lb
                     x0 = x0 - relax * fx
                     y0 = y0 - relax * fy
                     relax = min(2.0 * relax, _MAX_RELAXATION)  # near a fold |F| is small: lengthen the stride
-                    v = _sums(lkx, lky, lomega, la, lbx, lby, x0, y0, T, False)
+                    v = _evaluate(sampled, lkx, lky, lomega, la, lbx, lby, *sampler, x0, y0, T, False)
                     fx = x0 + v[0] - X
                     fy = y0 + v[1] - Y
                     residual = math.sqrt(fx * fx + fy * fy)
-        v = _sums(kx, ky, omega, a, bx, by, x0, y0, T, True)
+        v = _evaluate(sampled, kx, ky, omega, a, bx, by, *sampler, x0, y0, T, True)
         out[m, 0] = x0
         out[m, 1] = y0
         out[m, 2] = residual

@@ -21,14 +21,9 @@ near the camera; it splits the range so that no band carries more than a set sha
 height variance or of the mean-square slope, which is what keeps the composite's
 autocorrelation low where a band repeats.
 
-:meth:`BandStack.composite` sums the bands onto one large map by exact Fourier sums,
-evaluated with the chirp z-transform (Rabiner, Schafer & Rader 1969) on any grid: only
-the waves the composite's grid can hold (|kx|, |ky| below its Nyquist) are summed.
-
-References
-----------
-Rabiner, L. R., Schafer, R. W. & Rader, C. M. (1969). The chirp z-transform algorithm.
-*IEEE Trans. Audio Electroacoust.* 17(2), 86–92.
+:meth:`BandStack.composite` sums the bands onto one large map on any grid (``composite``:
+non-uniform FFTs, or exact Fourier sums by the chirp z-transform): only the waves the
+composite's grid can hold (|kx|, |ky| below its Nyquist) are summed.
 """
 
 from __future__ import annotations
@@ -44,6 +39,7 @@ import numpy as np
 from numpy.typing import NDArray
 
 from ..physics.seastate import SeaState
+from .composite import fourier_sum
 from .fields import Fields
 from .synth import Ocean
 from .tile import Tile
@@ -259,58 +255,6 @@ def band_moments(sea: SeaState, band: Band) -> tuple[float, float]:
         variance += float(cell.sum())
         slope += float((cell * k2).sum())
     return variance, slope
-
-
-def _chirp_z(x: NDArray[np.complex128], count: int, theta: float, phi: float, axis: int,
-             workers: int | None) -> NDArray[np.complex128]:
-    """X_j = Σ_m x_m e^{i(φ + jθ)m}, j < count, along ``axis``: Bluestein's chirp z-transform.
-
-    mj = (m² + j² − (j − m)²)/2 turns the sum into a convolution with the chirp e^{−iθn²/2},
-    done with FFTs of a fast length ≥ N + count − 1 (scipy.fft, on ``workers`` threads).
-    """
-    import scipy.fft
-
-    x = np.moveaxis(x, axis, -1)
-    n = x.shape[-1]
-    index = np.arange(max(n, count), dtype=np.float64)
-    chirp = np.exp(0.5j * theta * index**2)
-    length = scipy.fft.next_fast_len(n + count - 1)
-    kernel = np.zeros(length, dtype=np.complex128)
-    kernel[:count] = np.conj(chirp[:count])
-    kernel[length - n + 1:] = np.conj(chirp[1:n][::-1])
-    weighted = x * (np.exp(1j * phi * index[:n]) * chirp[:n])
-    spectrum = scipy.fft.fft(weighted, length, axis=-1, workers=workers)
-    spectrum *= scipy.fft.fft(kernel)
-    out = scipy.fft.ifft(spectrum, axis=-1, workers=workers, overwrite_x=True)[..., :count] * chirp[:count]
-    return np.moveaxis(out, -1, axis)
-
-
-def fourier_sum(
-    coefficients: NDArray[np.complexfloating], dk: float, spacing: float, count: int,
-    origin: tuple[float, float] = (0.0, 0.0), *, workers: int | None = None,
-) -> NDArray[np.complex128]:
-    """Σ c(k) e^{ik·x} exactly on a regular grid of ``count``² points, by the chirp z-transform.
-
-    ``coefficients`` is an (..., N, N) array in FFT layout (index n ↦ k = n·dk, rows ky,
-    columns kx; leading axes are separate sums); the grid is x = origin_x + j·spacing,
-    y = origin_y + i·spacing. Unlike an inverse FFT the grid need not match the lattice:
-    any spacing, any extent. Returns (..., count, count).
-    """
-    c = np.fft.fftshift(np.asarray(coefficients, dtype=np.complex128), axes=(-2, -1))
-    n = c.shape[-1]
-    half = n // 2
-    j = np.arange(count)
-
-    def along(array: NDArray[np.complex128], start: float, axis: int) -> NDArray[np.complex128]:
-        # Σ_m c_m e^{i(m − N/2)dk(x0 + jΔ)}: the z-transform over m = 0…N−1, then the
-        # centring phase e^{−i(N/2)dk x_j}.
-        out = _chirp_z(array, count, dk * spacing, dk * start, axis, workers)
-        phase = np.exp(-1j * half * dk * (start + j * spacing))
-        shape = [1] * out.ndim
-        shape[axis] = count
-        return out * phase.reshape(shape)
-
-    return along(along(c, origin[0], -1), origin[1], -2)
 
 
 #: Share of the sea's variance from which a band binds its own waves under "auto"
@@ -544,6 +488,7 @@ class BandStack:
     def __getstate__(self) -> dict:
         state = dict(self.__dict__)
         state["_executor"] = None
+        state.pop("_composite_lattices", None)  # the composite's per-grid tables (surface.composite), remade
         del state["_lock"]
         return state
 
@@ -579,85 +524,24 @@ class BandStack:
         """Each band's (variance m², mean-square slope) in expectation (:func:`band_moments`)."""
         return [band_moments(self.sea_state, band) for band in self.bands]
 
-    def _spectrum(self, index: int, t: float) -> NDArray[np.complex128]:
-        """ĥ(k, t) = h0(k)e^{−iωt} + conj(h0(−k))e^{+iωt} of one band, FFT layout."""
-        ocean = self.oceans[index]
-        h0 = ocean.amplitudes.astype(np.complex128)
-        mirror = np.roll(h0[::-1, ::-1], 1, axis=(0, 1))  # h0(−k)
-        rotation = np.exp(-1j * ocean.frequencies * t)
-        return h0 * rotation + np.conj(mirror) * np.conj(rotation)
-
     def composite(
-        self, t: float, *, extent: float, resolution: int, origin: tuple[float, float] = (0.0, 0.0)
+        self, t: float, *, extent: float, resolution: int, origin: tuple[float, float] = (0.0, 0.0),
+        exact: bool = False,
     ) -> Fields:
         """The bands summed at time ``t`` on a ``resolution``² grid ``extent`` metres wide.
 
-        Exact Fourier sums (:func:`fourier_sum`) of every band's waves that the grid can
-        hold: those with |kx| and |ky| below the grid's Nyquist π·resolution/extent (shorter
-        waves are left out, not aliased). Height, lateral displacement, their derivatives and
-        so the Jacobian, the displaced surface's normal and foam follow the synthesiser's
-        conventions (D = λ Σ i(k/|k|)ĥ e^{ik·x}); each band's own lateral factor and foam
-        settings apply. Returns :class:`Fields` (float32) of the composite grid.
+        Every band's waves that the grid can hold (|kx| and |ky| below its Nyquist
+        π·resolution/extent; shorter waves are left out, not aliased), summed by
+        non-uniform FFTs to 1e-6 of each field's standard deviation, or with ``exact`` by
+        exact Fourier sums (:func:`fourier_sum`, the reference). Height, lateral
+        displacement, their derivatives and so the Jacobian, the displaced surface's normal
+        and foam follow the synthesiser's conventions; each band's own lateral factor and
+        foam settings apply. Returns :class:`Fields` (float32) of the composite grid
+        (see ``surface.composite``).
         """
-        if isinstance(resolution, bool) or not isinstance(resolution, (int, np.integer)) or resolution < 2:
-            raise ValueError(f"resolution: {resolution!r} is not allowed; allowed: an integer >= 2")
-        if isinstance(extent, bool) or not isinstance(extent, (int, float)) or not math.isfinite(extent) or extent <= 0:
-            raise ValueError(f"extent: {extent!r} is not allowed; allowed: a finite length > 0 metres")
-        spacing = extent / resolution
-        nyquist = math.pi / spacing
-        names = ("h", "dx", "dy", "sx", "sy", "dxx", "dyy", "dxy")
-        total = {name: np.zeros((resolution, resolution)) for name in names}
-        for index, ocean in enumerate(self.oceans):
-            tile = ocean.tile
-            ky, kx = tile.wavenumbers()
-            keep = (np.abs(kx) < nyquist) & (np.abs(ky) < nyquist)
-            if not keep.any():
-                continue
-            spectrum = np.where(keep, self._spectrum(index, t), 0.0)
-            k = np.hypot(kx, ky)
-            inverse_k = np.divide(1.0, k, out=np.zeros_like(k), where=k > 0)
-            lam = ocean.lateral_factor
-            factors = {
-                "h": 1.0,
-                "dx": 1j * lam * kx * inverse_k,
-                "dy": 1j * lam * ky * inverse_k,
-                "sx": 1j * kx,
-                "sy": 1j * ky,
-                "dxx": -lam * kx * kx * inverse_k,
-                "dyy": -lam * ky * ky * inverse_k,
-                "dxy": -lam * kx * ky * inverse_k,
-            }
-            # Every field is real (its spectrum is Hermitian), so two ride in one complex
-            # sum, a + ib, as the synthesiser packs its transforms.
-            packed = np.stack([spectrum * (factors[a] + 1j * factors[b]) for a, b in zip(names[0::2], names[1::2])])
-            bound = ocean.bound_spectrum(t)
-            if bound is not None:  # second-order bound waves: height and slopes, no lateral part
-                lattice = np.where(keep, _on_lattice(*bound, tile.resolution), 0.0)
-                packed[0] += lattice
-                packed[1] += 1j * (1j * kx) * lattice
-                packed[2] += 1j * ky * lattice
-            sums = fourier_sum(packed, tile.dk, spacing, resolution, origin, workers=self._workers)  # every band on all cores
-            for index_pair, (a, b) in enumerate(zip(names[0::2], names[1::2])):
-                total[a] += sums[index_pair].real
-                total[b] += sums[index_pair].imag
-        jxx, jyy, jxy = 1.0 + total["dxx"], 1.0 + total["dyy"], total["dxy"]
-        sx, sy = total["sx"], total["sy"]
-        jacobian = jxx * jyy - jxy * jxy
-        # (∂P/∂x) × (∂P/∂y) for P = (x + Dx, y + Dy, h), as the synthesiser's surface kernel
-        normal = np.stack([jxy * sy - sx * jyy, sx * jxy - jxx * sy, jacobian], axis=-1)
-        normal /= np.linalg.norm(normal, axis=-1, keepdims=True)
-        first = self.oceans[0]
-        foam = np.clip((self._composite_threshold(nyquist) - jacobian) / first.foam_ramp, 0.0, 1.0)
-        f32 = lambda a: np.ascontiguousarray(a, dtype=np.float32)  # noqa: E731
-        return Fields(
-            time=float(t),
-            height=f32(total["h"]),
-            displacement_x=f32(total["dx"]),
-            displacement_y=f32(total["dy"]),
-            jacobian=f32(jacobian),
-            normal=f32(normal),
-            foam=f32(foam),
-        )
+        from .composite import composite_fields
+
+        return composite_fields(self, t, extent=extent, resolution=resolution, origin=origin, exact=exact)
 
     # -- repetition ---------------------------------------------------------------------
     def autocorrelation(
@@ -764,11 +648,3 @@ def _one_thread(step, index: int) -> None:
     if numba.get_num_threads() != 1:
         numba.set_num_threads(1)
     step(index)
-
-
-def _on_lattice(small: NDArray[np.complex128], indices, n: int) -> NDArray[np.complex128]:
-    """A small FFT-layout spectrum (``Ocean.bound_spectrum``) placed on an n² lattice."""
-    ny, nx = indices
-    full = np.zeros((n, n), dtype=np.complex128)
-    full[np.ix_(ny.ravel() % n, nx.ravel() % n)] = small
-    return full

@@ -27,6 +27,8 @@ from numpy.typing import NDArray
 
 __all__ = ["WaveModes"]
 
+_ARRAYS = ("kx", "ky", "omega", "height", "lateral_x", "lateral_y", "lattice")
+
 
 @dataclass(frozen=True, eq=False)
 class WaveModes:
@@ -43,6 +45,10 @@ class WaveModes:
         Complex amplitude of the vertical displacement in metres.
     lateral_x, lateral_y : NDArray[np.complex128], shape (M,)
         Complex amplitudes of the lateral displacement along x and y in metres.
+    lattice : NDArray[np.float64], shape (M,)
+        The spacing dk in rad/m of the regular lattice the mode's wave vector lies on
+        (k = (nx, ny)·dk, whole nx, ny: a tile's waves and their bound waves), NaN for a
+        mode on none (the default). Probes use it to sum many points by non-uniform FFTs.
     """
 
     kx: NDArray[np.float64]
@@ -51,13 +57,18 @@ class WaveModes:
     height: NDArray[np.complex128]
     lateral_x: NDArray[np.complex128]
     lateral_y: NDArray[np.complex128]
+    lattice: NDArray[np.float64] | None = None
 
     def __post_init__(self) -> None:
         for name in ("kx", "ky", "omega"):
             object.__setattr__(self, name, np.ascontiguousarray(getattr(self, name), dtype=np.float64).ravel())
         for name in ("height", "lateral_x", "lateral_y"):
             object.__setattr__(self, name, np.ascontiguousarray(getattr(self, name), dtype=np.complex128).ravel())
-        sizes = {getattr(self, name).size for name in ("kx", "ky", "omega", "height", "lateral_x", "lateral_y")}
+        lattice = np.full(self.kx.size, np.nan) if self.lattice is None else self.lattice
+        object.__setattr__(self, "lattice", np.ascontiguousarray(np.broadcast_to(lattice, self.kx.shape)
+                                                                  if np.ndim(lattice) == 0 else lattice,
+                                                                  dtype=np.float64).ravel())
+        sizes = {getattr(self, name).size for name in _ARRAYS}
         if len(sizes) != 1:
             raise ValueError(f"WaveModes: arrays of different lengths {sorted(sizes)}; allowed: one length")
 
@@ -79,8 +90,7 @@ class WaveModes:
     def select(self, keep: NDArray[np.bool_]) -> "WaveModes":
         """The modes where ``keep`` is true."""
         keep = np.asarray(keep, dtype=bool)
-        return WaveModes(self.kx[keep], self.ky[keep], self.omega[keep], self.height[keep],
-                         self.lateral_x[keep], self.lateral_y[keep])
+        return WaveModes(*(getattr(self, name)[keep] for name in _ARRAYS))
 
     def longer_than(self, wavelength: float) -> "WaveModes":
         """The modes whose wavelength 2π/|k| is at least ``wavelength`` metres."""
@@ -89,5 +99,4 @@ class WaveModes:
     @staticmethod
     def join(*parts: "WaveModes") -> "WaveModes":
         """One set holding every mode of ``parts`` (bands, bound waves, ...)."""
-        return WaveModes(*(np.concatenate([getattr(p, name) for p in parts])
-                           for name in ("kx", "ky", "omega", "height", "lateral_x", "lateral_y")))
+        return WaveModes(*(np.concatenate([getattr(p, name) for p in parts]) for name in _ARRAYS))

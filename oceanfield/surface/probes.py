@@ -20,6 +20,7 @@ they reproduce the maps (tested to half-float precision).
 
 from __future__ import annotations
 
+import weakref
 from dataclasses import dataclass
 
 import numpy as np
@@ -27,9 +28,23 @@ from numpy.typing import ArrayLike, NDArray
 
 from .modes import WaveModes
 
-__all__ = ["SurfacePoints", "surface_at", "DEFAULT_MAX_ITERATIONS"]
+__all__ = ["SurfacePoints", "surface_at", "DEFAULT_MAX_ITERATIONS", "SAMPLED_MEMORY_LIMIT"]
 
 DEFAULT_MAX_ITERATIONS = 200
+_METHODS = ("auto", "exact", "sampled")
+#: What the exact kernel is given for its unused sampler arguments.
+_NO_SAMPLER = (np.zeros(1, dtype=np.complex128), np.zeros(1, dtype=np.int64), np.zeros(1, dtype=np.int64),
+               np.zeros(1, dtype=np.int64), np.zeros(1), 1, 1.0)
+#: Exact mode-steps (one mode at one point and inversion step; about 5 steps a point) that
+#: cost as much as one fine-grid texel of a frame's sampled grids (its share of the scatter
+#: and the FFTs): measured on open_ocean_horizon, 2.5 M modes, two shared cores (2026),
+#: about 14 ns a mode-step and 20 ns a texel; sampled pays beyond about 3 probes a frame.
+_SAMPLED_TEXEL_COST = 1.5
+_STEPS_PER_POINT = 5
+#: The most memory "auto" lets a frame's sampled grids take (complex128 texels); beyond it
+#: the exact sums run instead (open_ocean_horizon's take ~350 MB).
+SAMPLED_MEMORY_LIMIT = 2**30
+_BYTES_PER_TEXEL = 16
 
 
 @dataclass(frozen=True, eq=False)
@@ -82,6 +97,7 @@ def surface_at(
     invert: bool = True,
     tolerance: float = 1e-7,
     max_iterations: int = DEFAULT_MAX_ITERATIONS,
+    method: str = "auto",
 ) -> SurfacePoints:
     """The displaced surface above (x, y) at time t, by exact sums over ``modes``.
 
@@ -102,13 +118,25 @@ def surface_at(
         Residual in metres at which the inversion stops (> 0).
     max_iterations : int
         Most inversion steps per point.
+    method : {"auto", "exact", "sampled"}
+        "exact": one pass over the modes per point and step. "sampled": for modes on
+        lattices (``WaveModes.lattice``; a tile's or a band stack's), each frame's fields
+        are made once on an oversampled grid per lattice (the first half of a type-2
+        non-uniform FFT, ``_nufft.sample_grids``) and every step reads the grid around its
+        point, to under 1e-6 of each field's standard deviation. "auto": sampled where it
+        is the cheaper (many points a frame on many modes) and its grids fit in
+        ``SAMPLED_MEMORY_LIMIT`` bytes, exact otherwise.
 
     Returns
     -------
     SurfacePoints
     """
-    from . import _sums
+    import numba
 
+    from . import _nufft, _sums
+
+    if method not in _METHODS:
+        raise ValueError(f"method: {method!r} is not allowed; allowed: {', '.join(map(repr, _METHODS))}")
     if not isinstance(modes, WaveModes):
         raise ValueError(f"modes: {type(modes).__name__} is not allowed; allowed: WaveModes (Ocean.modes())")
     if not (np.isfinite(tolerance) and tolerance > 0):
@@ -121,11 +149,22 @@ def surface_at(
     every = (modes.kx, modes.ky, modes.omega, modes.height, modes.lateral_x, modes.lateral_y)
     sideways = (modes.lateral_x != 0) | (modes.lateral_y != 0)  # in order: the same sums, bit for bit
     lateral = every if sideways.all() else tuple(np.ascontiguousarray(v[sideways]) for v in every)
-    _sums.surface_point_kernel(
-        *every, *lateral,
-        np.ascontiguousarray(xs.ravel()), np.ascontiguousarray(ys.ravel()), np.ascontiguousarray(ts.ravel()),
-        bool(invert), float(tolerance), int(max_iterations), out,
-    )
+    points = tuple(np.array(v.ravel(), dtype=np.float64) for v in (xs, ys, ts))  # own copies, not broadcast views
+    options = (bool(invert), float(tolerance), int(max_iterations))
+    if method == "auto":
+        method = "sampled" if _sampling_pays(modes, points[2]) else "exact"
+    if method == "sampled" and not np.all(np.isfinite(modes.lattice)):
+        raise ValueError("method: 'sampled' is not allowed for modes on no lattice; allowed: 'exact' or 'auto'")
+    if method == "exact":
+        _sums.surface_point_kernel(*every, *lateral, *points, *options, out, False, *_NO_SAMPLER)
+    else:
+        for t in np.unique(points[2]):  # one frame's sampled grids at a time
+            at = np.flatnonzero(points[2] == t)
+            part = np.empty((at.size, out.shape[1]))
+            sampler = _nufft.sample_grids(modes, float(t), fft_workers=numba.get_num_threads())
+            _sums.surface_point_kernel(*every, *lateral, *(np.ascontiguousarray(p[at]) for p in points),
+                                       *options, part, True, *sampler, _nufft.SAMPLE_WIDTH, _nufft.SAMPLE_BETA)
+            out[at] = part
     col = {name: out[:, i].reshape(shape) for i, name in enumerate(_sums.OUTPUT_COLUMNS)}
     rest = np.stack([col["rest_x"], col["rest_y"]], axis=-1)
     displacement = np.stack([col["dx"], col["dy"], col["h"]], axis=-1)
@@ -153,3 +192,25 @@ def surface_at(
         rise_rate=rise,
         jacobian=jac,
     )
+
+
+def _sampling_pays(modes: WaveModes, times: NDArray[np.float64]) -> bool:
+    """Whether the sampled sums cost less than the exact ones (the measured ratio above)."""
+    if len(modes) == 0 or not np.all(np.isfinite(modes.lattice)):
+        return False
+    exact = times.size * len(modes) * _STEPS_PER_POINT / np.unique(times).size
+    texels = _sampled_texels(modes)
+    return exact > _SAMPLED_TEXEL_COST * texels and texels * _BYTES_PER_TEXEL <= SAMPLED_MEMORY_LIMIT
+
+
+#: Texels of each mode set's sampled grids, kept while the set lives (a shot asks again
+#: for every chunk; the grouping costs a few passes over the modes).
+_TEXELS: "weakref.WeakKeyDictionary[WaveModes, int]" = weakref.WeakKeyDictionary()
+
+
+def _sampled_texels(modes: WaveModes) -> int:
+    from ._nufft import sample_groups
+
+    if modes not in _TEXELS:
+        _TEXELS[modes] = sum(pairs * size * size for *_, size, pairs in sample_groups(modes))
+    return _TEXELS[modes]

@@ -16,7 +16,7 @@ from __future__ import annotations
 
 import math
 import os
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import TYPE_CHECKING, Callable
 
 import numpy as np
@@ -639,13 +639,15 @@ class Ocean:
         height = 2.0 * self._h0[keep].astype(np.complex128)
         k = np.hypot(kx, ky)
         lateral = 1j * self.lateral_factor * height
-        linear = WaveModes(kx, ky, self.frequencies[keep], height, lateral * kx / k, lateral * ky / k)
+        linear = WaveModes(kx, ky, self.frequencies[keep], height, lateral * kx / k, lateral * ky / k, self.tile.dk)
         if self.bound is None:
             return linear
-        # the bound waves the frames add: one mode per pair of parents and sign (surface.bound)
+        # the bound waves the frames add: one mode per pair of parents and sign (surface.bound),
+        # k1 ± k2 on the same lattice
         if not (isinstance(bound_share, (int, float)) and 0.0 < bound_share <= 1.0):
             raise ValueError(f"bound_share: {bound_share!r} is not allowed; allowed: a number in (0, 1]")
-        return WaveModes.join(linear, self.bound.modes(self._h0, self._omega_used, share=float(bound_share)))
+        bound = self.bound.modes(self._h0, self._omega_used, share=float(bound_share))
+        return WaveModes.join(linear, replace(bound, lattice=self.tile.dk))
 
     @property
     def amplitudes(self) -> NDArray[np.complex64]:

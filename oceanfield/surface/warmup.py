@@ -37,5 +37,7 @@ def compile_kernels() -> float:
         ocean = Ocean(sea, tile, seed=1, **options)
         ocean.frame(0.5, buffer=ocean.new_buffer())
     # the exact sums at points of `probe`, `float` and `scene` (the rest position's inversion included)
-    surface_at(ocean.modes(), [3.0], [4.0], [0.5])
+    surface_at(ocean.modes(), [3.0], [4.0], [0.5], method="exact")
+    # and their sampled form (many points: the frame's grids, surface._nufft), the same kernel
+    surface_at(ocean.modes(), [3.0], [4.0], [0.5], method="sampled")
     return time.perf_counter() - started
