@@ -198,8 +198,7 @@ def test_the_blocked_sums_match_the_reference_sums_on_a_sea_with_bound_waves(inv
 
 
 def test_the_blocked_sums_are_the_same_bits_on_any_thread_count_and_point_count():
-    """One point alone (its blocks over the threads), or among many (a thread a point), on
-    one thread or two: the same bits."""
+    """Points one at a time or together, on one thread or two: the same bits."""
     import numba
 
     modes = _banded_modes()

@@ -1,21 +1,27 @@
-"""Blocked sums of travelling sinusoids at one point: the probes' fast exact engine.
+"""Blocked sums of travelling sinusoids at one point: the probes' exact engine.
 
 Knows nothing of sea states, presets or files: it works on the arrays of ``WaveModes``.
 
 The same sums as ``_sums._sums`` (Re Σ c·e^{iφ}, φ = kx·x + ky·y − ω·t, and their
 derivatives), taken a block of ``BLOCK`` modes at a time: each block's phases, then their
-sines and cosines by `sincos_block` (range reduction by a four-part π/2 (Cody & Waite 1980) and the
-minimax polynomials of fdlibm's ``__kernel_sin`` / ``__kernel_cos``, Sun Microsystems
-1993, coefficients below; no library call, so the loop vectorises), then the block's
-partial sums, in mode order. The blocks' partial sums are added in block order, so the result has the
-same bits whether the blocks run on one thread (``blocked_sums``, inside a loop that is
-parallel over points) or on all of them (``blocked_sums_parallel``, one point). Modes
-that do not move sideways (bound waves) are summed apart (``still``): height, slopes and
-rise rate only, the lateral sums they would add being exact zeros.
+sines and cosines by `sincos_block` (Cody & Waite's (1980) range reduction by π/2 in four
+parts, then the polynomials of fdlibm's ``__kernel_sin`` / ``__kernel_cos``, Sun
+Microsystems 1993; no library call, so the loop vectorises: ~2 ns a mode against ~20 ns
+for the C library's sin and cos), then the block's partial sums, in mode order, added in
+block order: one order, the same bits every run and on any thread count (the loop over
+points is the parallel one). Modes that do not move sideways (bound waves) are summed
+apart (``still``): height, slopes and rise rate only, the lateral sums they would add
+being exact zeros; and the inversion's sums skip the height.
 
 The sines and cosines agree with the C library's to ~2 ulp of 1 for |φ| < 2²⁷·π/2 (2e8 rad;
 tested against numpy); beyond, the reduction loses ~|φ|·1e-16 rad, the size of φ's own
 rounding.
+
+Measured and not adopted: spreading one point's blocks over the threads (fixed blocks, the
+same bits) made one probe on the busy shared 2-core machine 2× slower on 2 threads than on
+one (OpenMP's waiting threads spin between the inversion's ~10 short parallel regions;
+even with them passive, no faster than one thread); reassociating the partial sums so that
+they vectorise, 1.5× slower (the complex amplitudes deinterleave badly).
 """
 
 from __future__ import annotations
@@ -25,7 +31,7 @@ import math
 import numba
 import numpy as np
 
-__all__ = ["BLOCK", "sincos_block", "blocked_sums", "blocked_sums_parallel"]
+__all__ = ["BLOCK", "sincos_block", "blocked_sums"]
 
 #: Modes a block: its phases, sines and cosines (3 × 32 kB) stay in the core's cache.
 BLOCK = 4096
@@ -64,14 +70,12 @@ def sincos_block(phase, c, s, n):  # pragma: no cover - compiled
 
 
 @numba.njit(cache=True, fastmath=False)
-def _block(kx, ky, omega, a, bx, by, start, stop, x, y, t, moving, rates, out):  # pragma: no cover - compiled
-    """The sums of ``_sums._sums`` over modes [start, stop) into ``out``: ``moving`` False,
-    height, its slopes and its rate only (bx, by are not read); ``rates`` False, the
-    lateral sums and their slopes only (what the inversion reads; the rest 0)."""
+def _block(kx, ky, omega, a, bx, by, start, stop, x, y, t, moving, rates, phase, c, s, out):  # pragma: no cover
+    """The sums of ``_sums._sums`` over modes [start, stop) into ``out`` (phase, c, s: room
+    for a block): ``moving`` False, height, its slopes and its rate only (bx, by are not
+    read); ``rates`` False, the lateral sums and their slopes only (what the inversion
+    reads; the rest 0)."""
     n = stop - start
-    phase = np.empty(n)
-    c = np.empty(n)
-    s = np.empty(n)
     for i in range(n):
         j = start + i
         phase[i] = kx[j] * x + ky[j] * y - omega[j] * t
@@ -85,9 +89,7 @@ def _block(kx, ky, omega, a, bx, by, start, stop, x, y, t, moving, rates, out): 
 
 @numba.njit(cache=True, fastmath=False)
 def _lateral(kx, ky, omega, bx, by, start, c, s, n, rates, out):  # pragma: no cover - compiled
-    """The lateral sums of modes start … start + n − 1 (cosines c, sines s) into ``out``.
-    (Reassociated so as to vectorise, the sums were 1.5× slower: the complex amplitudes
-    deinterleave badly.)"""
+    """The lateral sums of modes start … start + n − 1 (cosines c, sines s) into ``out``."""
     dx = dy = dxx = dxy = dyx = dyy = dxt = dyt = 0.0
     for i in range(n):
         j = start + i
@@ -125,52 +127,21 @@ def _height(kx, ky, omega, a, start, c, s, n, out):  # pragma: no cover - compil
 
 
 @numba.njit(cache=True, fastmath=False)
-def _run_block(b, moving_blocks, kx, ky, omega, a, bx, by, skx, sky, somega, sa, x, y, t, rates,  # pragma: no cover
-               partial):
-    """Block b of the moving modes (b < moving_blocks), else of the still ones."""
-    if b < moving_blocks:
-        start = b * BLOCK
-        _block(kx, ky, omega, a, bx, by, start, min(start + BLOCK, kx.shape[0]), x, y, t, True, rates, partial[b])
-    else:
-        start = (b - moving_blocks) * BLOCK
-        _block(skx, sky, somega, sa, sa, sa, start, min(start + BLOCK, skx.shape[0]), x, y, t, False, True,
-               partial[b])
-
-
-@numba.njit(cache=True, fastmath=False)
-def _total(partial):  # pragma: no cover - compiled
+def blocked_sums(kx, ky, omega, a, bx, by, skx, sky, somega, sa, x, y, t, rates):  # pragma: no cover - compiled
+    """The 12 sums of ``_sums._sums`` at (x, y, t) over the moving modes (kx … by) and, with
+    ``rates``, the still ones (skx … sa: no lateral part) too. Without ``rates``: the
+    lateral sums and their slopes over the moving modes only (what the inversion reads),
+    the rest 0."""
     total = np.zeros(_FIELDS)
-    for b in range(partial.shape[0]):  # block order: the same bits on any thread count
-        for f in range(_FIELDS):
-            total[f] += partial[b, f]
+    partial = np.empty(_FIELDS)
+    phase, c, s = np.empty(BLOCK), np.empty(BLOCK), np.empty(BLOCK)
+    still = skx.shape[0] if rates else 0
+    for start in range(0, kx.shape[0], BLOCK):
+        _block(kx, ky, omega, a, bx, by, start, min(start + BLOCK, kx.shape[0]), x, y, t, True, rates, phase, c, s,
+               partial)
+        total += partial
+    for start in range(0, still, BLOCK):
+        _block(skx, sky, somega, sa, sa, sa, start, min(start + BLOCK, still), x, y, t, False, True, phase, c, s, partial)
+        total += partial
     return (total[0], total[1], total[2], total[3], total[4], total[5],
             total[6], total[7], total[8], total[9], total[10], total[11])
-
-
-@numba.njit(cache=True, fastmath=False)
-def _blocks(kx, skx, rates):  # pragma: no cover - compiled
-    moving = (kx.shape[0] + BLOCK - 1) // BLOCK
-    still = (skx.shape[0] + BLOCK - 1) // BLOCK if rates else 0
-    return moving, moving + still
-
-
-@numba.njit(cache=True, fastmath=False)
-def blocked_sums(kx, ky, omega, a, bx, by, skx, sky, somega, sa, x, y, t, rates):  # pragma: no cover - compiled
-    """``_sums._sums`` over the moving modes (kx … by) and, with ``rates``, the still ones
-    (skx … sa: no lateral part) too; one thread. Without ``rates``: the lateral sums and
-    their slopes over the moving modes only (what the inversion reads), the rest 0."""
-    moving, count = _blocks(kx, skx, rates)
-    partial = np.zeros((count, _FIELDS))
-    for b in range(count):
-        _run_block(b, moving, kx, ky, omega, a, bx, by, skx, sky, somega, sa, x, y, t, rates, partial)
-    return _total(partial)
-
-
-@numba.njit(parallel=True, cache=True, fastmath=False)
-def blocked_sums_parallel(kx, ky, omega, a, bx, by, skx, sky, somega, sa, x, y, t, rates):  # pragma: no cover
-    """`blocked_sums` with its blocks spread over the threads: the same bits."""
-    moving, count = _blocks(kx, skx, rates)
-    partial = np.zeros((count, _FIELDS))
-    for b in numba.prange(count):
-        _run_block(b, moving, kx, ky, omega, a, bx, by, skx, sky, somega, sa, x, y, t, rates, partial)
-    return _total(partial)

@@ -181,8 +181,7 @@ def surface_at(
 def _point_columns(modes: WaveModes, points: tuple[NDArray[np.float64], ...], options: tuple,
                    method: str) -> NDArray[np.float64]:
     """The kernel's `_sums.OUTPUT_COLUMNS` at the points (x, y, t): "exact" by the blocked
-    sums (one point's blocks over the threads when the points are fewer than the threads,
-    the same bits either way), "sampled" from each frame's grids, "reference" by the C
+    sums (``_point_kernels``), "sampled" from each frame's grids, "reference" by the C
     library's sine and cosine per mode (the exact path before the blocked sums; tests and
     the benchmark compare against it)."""
     import numba
@@ -194,10 +193,7 @@ def _point_columns(modes: WaveModes, points: tuple[NDArray[np.float64], ...], op
     if method == "reference":
         _sums.surface_point_kernel(*every, *lateral, *points, *options, out, _sums.EXACT, *_NO_SAMPLER, *still)
     elif method == "exact":
-        few = points[0].size < numba.get_num_threads()
-        kernel = _sums.surface_points_serial if few else _sums.surface_point_kernel
-        kernel(*every, *lateral, *points, *options, out, _sums.BLOCKED_PARALLEL if few else _sums.BLOCKED,
-               *_NO_SAMPLER, *still)
+        _sums.surface_point_kernel(*every, *lateral, *points, *options, out, _sums.BLOCKED, *_NO_SAMPLER, *still)
     else:
         for t in np.unique(points[2]):  # one frame's sampled grids at a time
             at = np.flatnonzero(points[2] == t)
