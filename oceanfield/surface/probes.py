@@ -38,8 +38,9 @@ _NO_SAMPLER = (np.zeros(1, dtype=np.complex128), np.zeros(1, dtype=np.int64), np
 #: Exact mode-steps (one mode at one point and inversion step; about 5 steps a point) that
 #: cost as much as one fine-grid texel of a frame's sampled grids (its share of the scatter
 #: and the FFTs): measured on open_ocean_horizon, 2.5 M modes, two shared cores (2026),
-#: about 14 ns a mode-step and 20 ns a texel; sampled pays beyond about 3 probes a frame.
-_SAMPLED_TEXEL_COST = 1.5
+#: about 3.5 ns a mode-step with the blocked sums (14 ns with a C-library sine and cosine a
+#: mode) and 20 ns a texel; sampled pays beyond about 10 probes a frame.
+_SAMPLED_TEXEL_COST = 5.0
 _STEPS_PER_POINT = 5
 #: The most memory "auto" lets a frame's sampled grids take (complex128 texels); beyond it
 #: the exact sums run instead (open_ocean_horizon's take ~350 MB).
