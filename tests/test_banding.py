@@ -48,7 +48,7 @@ def test_single_tile_presets_keep_their_hash():
     import hashlib
     import json
 
-    from oceanfield.preset.schema import _as_tree
+    from oceanfield.preset.resolved import _as_tree
 
     preset = load_preset("moderate_breeze")
     tree = _as_tree(preset)

@@ -6,7 +6,10 @@ which makes its ``SeaState`` and ``Ocean``; this package also reports a preset i
 
 ==============  ==================================================================
 ``_yamltree``   located YAML: safe parse with file:line, ``extends``, ``--set`` overrides
-``schema``      the settings, defaults, validation, dump and hash; ``load_preset``
+``schema``      ``load_preset`` by name or path; re-exports the three below
+``settings``    the resolved settings (``Preset`` and its sections); ``to_sea_state``
+``reading``     every key's default and check, from the located tree
+``resolved``    the resolved preset as editable YAML (``dump_preset``) and its hash
 ``record``      a component sized by a measured wave record (file, directions, tail)
 ``warnings``    physically doubtful choices in a valid preset, one sentence each
 ``stats``       the numbers behind ``oceanfield stats``; the folded share

@@ -13,7 +13,7 @@ from dataclasses import replace
 
 from ..physics.constants import SURFACE_TENSION
 from ..physics.seastate import SeaState
-from .schema import Preset, _component
+from .settings import Preset, _component
 
 __all__ = ["preset_warnings"]
 
