@@ -37,7 +37,7 @@ from numpy.typing import NDArray
 
 from oceanfield.io.atomic import atomic_output, prepare_output
 
-__all__ = ["USD_SUFFIXES", "Look", "SeaMesh", "require_usd", "write_stage"]
+__all__ = ["USD_SUFFIXES", "Look", "PrimTrack", "SeaMesh", "read_prim_track", "require_usd", "write_stage"]
 
 #: File suffixes a stage can be written as.
 USD_SUFFIXES = (".usda", ".usd", ".usdc")
@@ -232,3 +232,75 @@ def _material(stage, look: Look, frames: Sequence[int], Sdf, Usd, UsdShade):
         if note:
             texture.GetPrim().SetDocumentation(note)
     return material
+
+
+@dataclass(frozen=True, eq=False)
+class PrimTrack:
+    """Where a prim's origin is over time in a USD layout, as the file stores it.
+
+    ``codes`` are the time codes sampled (increasing), ``points`` (codes, 3) the prim's
+    world-space origin at each in the stage's own units and axes, with the stage's
+    ``metres_per_unit``, ``up_axis`` (``"y"`` or ``"z"``) and ``codes_per_second``.
+    """
+
+    path: Path
+    prim: str
+    codes: NDArray[np.float64]
+    points: NDArray[np.float64]
+    metres_per_unit: float
+    up_axis: str
+    codes_per_second: float
+
+
+def read_prim_track(path: str | os.PathLike[str], prim: str) -> PrimTrack:
+    """The world-space origin of ``prim`` at every time code where it or a parent moves.
+
+    The time codes are the union of the time samples of the prim's and its ancestors'
+    transform operations; the origin is the translation of the prim's local-to-world
+    matrix there (``UsdGeom.Xformable.ComputeLocalToWorldTransform``).
+
+    Raises
+    ------
+    ValueError
+        One line: usd-core missing (naming the extra), the file not a stage, no such prim,
+        a prim that is not transformable, or fewer than two time samples.
+    """
+    require_usd()
+    from pxr import Sdf, Usd, UsdGeom
+
+    path = Path(path)
+    try:
+        stage = Usd.Stage.Open(str(path))
+    except Exception as error:  # noqa: BLE001 - pxr raises its own error types
+        first = str(error).strip().splitlines()[0] if str(error).strip() else type(error).__name__
+        raise ValueError(f"{path}: not a USD stage ({first})") from None
+    if stage is None:
+        raise ValueError(f"{path}: not a USD stage")
+    if not Sdf.Path.IsValidPathString(prim) or not prim.startswith("/"):
+        raise ValueError(f"{path}: `{prim}` is not an absolute prim path (e.g. /Layout/Boat)")
+    found = stage.GetPrimAtPath(prim)
+    if not found or not found.IsValid():
+        raise ValueError(f"{path}: no prim at `{prim}`")
+    xformable = UsdGeom.Xformable(found)
+    if not xformable:
+        raise ValueError(f"{path}: `{prim}` is a {found.GetTypeName() or 'typeless prim'}, not a transformable prim")
+    codes: set[float] = set()
+    walk = found
+    while walk and walk.IsValid() and not walk.IsPseudoRoot():
+        parent_xform = UsdGeom.Xformable(walk)
+        if parent_xform:
+            codes.update(float(code) for code in parent_xform.GetTimeSamples())
+        walk = walk.GetParent()
+    ordered = np.array(sorted(codes), dtype=np.float64)
+    if ordered.size < 2:
+        raise ValueError(f"{path}: `{prim}` is not animated (its transform has {ordered.size} time sample(s); "
+                         f"a course needs at least two)")
+    cache = UsdGeom.XformCache()
+    points = np.empty((ordered.size, 3), dtype=np.float64)
+    for i, code in enumerate(ordered):
+        cache.SetTime(Usd.TimeCode(float(code)))
+        translation = cache.GetLocalToWorldTransform(found).ExtractTranslation()
+        points[i] = (translation[0], translation[1], translation[2])
+    up = str(UsdGeom.GetStageUpAxis(stage)).lower()
+    return PrimTrack(path, prim, ordered, points, float(UsdGeom.GetStageMetersPerUnit(stage)), up,
+                     float(stage.GetTimeCodesPerSecond()))

@@ -27,6 +27,7 @@ from ..physics.seastate import SeaState
 from ..physics.spectra import JONSWAP_GAMMA, SPECTRA
 from ..physics.spreading import SPREADING
 from .record import read_record
+from .vessels import check_region, read_vessels, read_wake
 from .settings import (
     _DEFAULT_SPREAD_DEG,
     _FRAME_RUN,
@@ -76,6 +77,10 @@ def _build_preset(tree: Node, errors: list[str], path: Path, allow_outside_outpu
                     if valid(tile) and getattr(tile, str(key), None) != getattr(_DEFAULT_TILE, str(key), None)}
     bands = read_bands(top.section("bands"), tile_written=tile_written, maps=maps,
                        multilayer=output.multilayer if valid(output) else None)
+    vessels = read_vessels(top, time)
+    wake_section = top.section("wake")
+    wake = read_wake(wake_section)
+    check_region(wake_section, vessels, wake, time)
     context.report_unknown_keys()
     if valid(bands) and valid(sea) and bands.active and "surface_tension_npm" not in sea_section.items:
         # Bands reaching ripples shorter than ~10 cm: clean water's surface tension by default.
@@ -88,7 +93,8 @@ def _build_preset(tree: Node, errors: list[str], path: Path, allow_outside_outpu
     if errors:
         return None
     return Preset(
-        description, seed, sea, tile, surface, maps, time, output, scene, bands, name=path.stem, source=path.resolve()
+        description, seed, sea, tile, surface, maps, time, output, scene, bands, vessels, wake,
+        name=path.stem, source=path.resolve(),
     )
 
 

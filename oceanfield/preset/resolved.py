@@ -19,6 +19,7 @@ import yaml
 
 from ._yamltree import Node
 from .banding import NO_BANDS
+from .vessels import NO_WAKE
 from ..physics.spectra import JONSWAP_GAMMA
 from .settings import _DEFAULT_SPREAD_DEG, ComponentSettings, Preset
 
@@ -158,6 +159,11 @@ def preset_hash(preset: Preset) -> str:
             del component["record"]["file"]
     if not preset.bands.active and preset.bands == NO_BANDS:
         del tree["bands"]  # a single tile hashes as it did before bands existed
+    if not preset.vessels and preset.wake == NO_WAKE:
+        del tree["vessels"], tree["wake"]  # a sea without vessels hashes as it did before them
+    for vessel in tree["vessels"] if "vessels" in tree else ():  # a course file counts by its contents
+        vessel["course"].pop("file", None)
+        vessel["course"].pop("usd_file", None)
     canonical = json.dumps(tree, sort_keys=True, separators=(",", ":"), allow_nan=False)
     return hashlib.sha256(canonical.encode("utf-8")).hexdigest()
 
@@ -180,4 +186,12 @@ def _as_tree(preset: Preset) -> dict[str, Any]:
         {"label": item["label"], "record": item["record"]} if item["record"] else item
         for item in tree["sea"]["components"]
     ]
+    for vessel in tree["vessels"]:  # a course writes only the keys of its own kind
+        course = vessel["course"]
+        keep = ("interpolation", "keys") if course["keys"] else ("interpolation", "file", "usd_file", "prim", "sha256")
+        vessel["course"] = {key: course[key] for key in keep if course[key] is not None}
+        for key in vessel["course"].get("keys", ()):
+            for name in ("time_s", "frame", "heading_deg"):
+                if key[name] is None:
+                    del key[name]
     return tree

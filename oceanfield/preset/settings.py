@@ -19,6 +19,7 @@ from typing import Any, Sequence
 from .banding import NO_BANDS, BandSettings
 from ..physics.seastate import Component, SeaState, beaufort_sea, height_period, wind_sea
 from .record import RecordSettings, record_component
+from .vessels import NO_WAKE, VesselSettings, WakeSettings
 
 __all__ = [
     "PresetError",
@@ -193,6 +194,8 @@ class Preset:
     output: OutputSettings
     scene: SceneSettings
     bands: BandSettings = NO_BANDS
+    vessels: tuple[VesselSettings, ...] = ()
+    wake: WakeSettings = NO_WAKE
     name: str = field(default="", compare=False)
     source: Path | None = field(default=None, compare=False)
 

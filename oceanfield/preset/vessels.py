@@ -1,0 +1,238 @@
+"""Moving bodies and their wake in a preset: the ``vessels`` list and the ``wake`` region.
+
+Knows nothing of rendering. Each vessel is a hull (waterline length, beam, draft in metres)
+that follows a course (``courses``: keyframes, a CSV table or a USD prim); the ``wake``
+section places the square, non-periodic region the wake is computed on (origin and size in
+tile metres, texels per side) and how far back in time each frame looks. A region left
+null is derived from the courses: the box around every position a vessel holds from one
+look-back before the first frame to the last frame, widened on every side by the Kelvin
+wedge's half-width behind the longest stretch of the trail (tan 19.47° × that length;
+Kelvin 1887), by a transverse wavelength 2πU²/g at the fastest speed and by four hull
+lengths, whichever is most; its texels resolve a quarter of the shortest hull and a
+twentieth of that wavelength (common practice: a wave needs about ten texels across).
+
+This module turns the settings into the surface's wake (``surface.wake``: ``Hull``,
+``Course``, ``WakeRegion``, ``Wake``) and checks that an explicit region holds every course.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+
+from ._yamltree import BAD, Section, describe, valid
+from .courses import CourseSamples, CourseSettings, course_samples, read_course
+from ..physics.constants import GRAVITY
+
+__all__ = [
+    "VesselSettings",
+    "WakeSettings",
+    "NO_WAKE",
+    "read_vessels",
+    "read_wake",
+    "check_region",
+    "vessel_samples",
+    "wake_region",
+    "preset_wake",
+    "vessel_speeds",
+]
+
+#: The Kelvin wedge's half-angle in deep water, arcsin(1/3) (Kelvin 1887; Lighthill 1978, §3.10).
+KELVIN_HALF_ANGLE = math.asin(1.0 / 3.0)
+_HULL_LENGTHS_OF_MARGIN = 4.0  # common practice: the near field and bow wave stay inside
+_TEXELS_PER_TRANSVERSE_WAVE = 20.0  # common practice: ~10 texels a wave, twice for the divergent waves
+_TEXELS_PER_HULL = 4.0  # the pressure patch is smooth over its own length: four texels along the shortest
+_MIN_RESOLUTION, _MAX_RESOLUTION = 64, 2048
+_MAX_REGION_M = 20_000.0
+
+
+@dataclass(frozen=True)
+class VesselSettings:
+    """One moving body as written: a name, its hull in metres and its course."""
+
+    name: str
+    length_m: float
+    beam_m: float
+    draft_m: float
+    course: CourseSettings
+
+
+@dataclass(frozen=True)
+class WakeSettings:
+    """The wake's region (origin, size and resolution; null: derived from the courses) and
+    its look-back in seconds (how far into the past each frame sums the vessels' forcing)."""
+
+    origin_x_m: float | None = None
+    origin_y_m: float | None = None
+    size_m: float | None = None
+    resolution: int | None = None
+    lookback_s: float = 60.0
+
+
+NO_WAKE = WakeSettings()
+
+
+# -- reading -----------------------------------------------------------------------------------
+
+
+def read_vessels(top: Section, time: Any) -> Any:
+    """The top-level ``vessels`` list as a tuple of :class:`VesselSettings` (``()`` when absent)."""
+    node = top.node("vessels")
+    if node is None or node.value is None or node.value == []:
+        return ()
+    if not isinstance(node.value, list):
+        return top.fail("vessels", f"expected a list of vessels, got {describe(node)}")
+    vessels: list[Any] = []
+    for index, item in enumerate(node.value):
+        sec = Section(top.context, item, f"vessels.{index}", top.where)
+        name = sec.text("name", f"vessel{index + 1}")
+        length = sec.number("length_m", None, low=0.1, high=500.0)
+        beam = sec.number("beam_m", None, low=0.05, high=100.0)
+        draft = sec.number("draft_m", None, low=0.0, high=30.0)
+        for key, value in (("length_m", length), ("beam_m", beam), ("draft_m", draft)):
+            if valid(value) and value is None:
+                sec.fail(key, "needs a value in metres (the hull's waterline length, beam and draft)")
+        if valid(name) and not name.replace("_", "").replace("-", "").isalnum():
+            name = sec.fail("name", f"`{name}` is not a name (allowed: letters, digits, _ and -)")
+        elif valid(name) and name in [v.name for v in vessels if valid(v)]:
+            name = sec.fail("name", f"`{name}` names two vessels")
+        course_node = sec.node("course")
+        if course_node is None or course_node.value is None:
+            course = sec.fail("", "needs a course (keys, a file or a usd_file with its prim)")
+        else:
+            course = read_course(Section(top.context, course_node, f"vessels.{index}.course", sec.where), time)
+        if valid(length, beam) and length is not None and beam is not None and beam > length:
+            beam = sec.fail("beam_m", f"`{beam:g}` is wider than the hull is long ({length:g} m)")
+        if not valid(name, length, beam, draft, course) or None in (length, beam, draft):
+            vessels.append(BAD)
+            continue
+        vessels.append(VesselSettings(name, length, beam, draft, course))
+    return tuple(vessels) if valid(*vessels) else BAD
+
+
+def read_wake(sec: Section) -> Any:
+    """The ``wake`` section as :class:`WakeSettings`."""
+    origin_x = sec.number("origin_x_m", None, low=-1.0e6, high=1.0e6, optional=True)
+    origin_y = sec.number("origin_y_m", None, low=-1.0e6, high=1.0e6, optional=True)
+    size = sec.number("size_m", None, low=1.0, high=_MAX_REGION_M, optional=True)
+    resolution = sec.number("resolution", None, low=16, high=8192, whole=True, optional=True)
+    lookback = sec.number("lookback_s", NO_WAKE.lookback_s, low=0.0, high=3600.0, low_open=True)
+    if valid(resolution) and resolution is not None and resolution % 2:
+        resolution = sec.fail("resolution", f"`{resolution}` is odd (allowed: an even whole number, or null)")
+    placed = [value is not None for value in (origin_x, origin_y, size)]
+    if valid(origin_x, origin_y, size) and any(placed) and not all(placed):
+        missing = ("origin_x_m", "origin_y_m", "size_m")[placed.index(False)]
+        return sec.fail(missing, "needs a value: origin_x_m, origin_y_m and size_m place the region together "
+                                 "(or set all three null to derive it from the courses)")
+    if not valid(origin_x, origin_y, size, resolution, lookback):
+        return BAD
+    return WakeSettings(origin_x, origin_y, size, resolution, lookback)
+
+
+def check_region(sec: Section, vessels: Any, wake: Any, time: Any) -> None:
+    """Every course of an explicit region must lie inside it: one line naming the sample."""
+    if not valid(vessels, wake, time) or not vessels or wake.size_m is None:
+        return
+    x0, y0, size = wake.origin_x_m, wake.origin_y_m, wake.size_m
+    for index, vessel in enumerate(vessels):
+        samples = course_samples(vessel.course, time, where=f"vessels.{index}.course")
+        outside = np.flatnonzero((samples.x < x0) | (samples.x > x0 + size) | (samples.y < y0) | (samples.y > y0 + size))
+        if outside.size:
+            i = int(outside[0])
+            sec.fail("size_m", f"vessel `{vessel.name}` leaves the region at {samples.origins[i]} "
+                               f"(x {samples.x[i]:.6g} m, y {samples.y[i]:.6g} m; the region spans x {x0:g} to "
+                               f"{x0 + size:g} m, y {y0:g} to {y0 + size:g} m); allowed: a region holding every "
+                               f"course, or origin_x_m, origin_y_m and size_m null to derive one")
+            return
+
+
+# -- the wake in SI units ------------------------------------------------------------------------
+
+
+def vessel_samples(preset) -> tuple[CourseSamples, ...]:
+    """Each vessel's course sampled in SI units (built once per preset)."""
+    cached = preset.__dict__.get("_vessel_samples")
+    if cached is None:
+        cached = tuple(course_samples(v.course, preset.time, where=f"vessels.{i}.course")
+                       for i, v in enumerate(preset.vessels))
+        object.__setattr__(preset, "_vessel_samples", cached)  # frozen: a cache, not a field
+    return cached
+
+
+def vessel_speeds(samples: CourseSamples) -> np.ndarray:
+    """Speed over ground in m/s on each piece between samples (piecewise-linear course)."""
+    return np.hypot(np.diff(samples.x), np.diff(samples.y)) / np.diff(samples.times)
+
+
+def _window(preset) -> tuple[float, float]:
+    """From one look-back before the first frame to the last frame (s)."""
+    time = preset.time
+    return time.frame_time(time.first_frame) - preset.wake.lookback_s, time.frame_time(time.last_frame)
+
+
+def wake_region(preset) -> tuple[float, float, float, int]:
+    """(origin_x, origin_y, size in metres, resolution) of the preset's wake region, derived
+    from the courses where the preset leaves it null (see the module notes)."""
+    wake = preset.wake
+    samples = vessel_samples(preset)
+    start, end = _window(preset)
+    xs, ys, trail, fastest = [], [], 0.0, 0.0
+    for course in samples:
+        inside = (course.times >= start) & (course.times <= end)
+        t = np.concatenate([[start, end], course.times[inside]])
+        xs.append(np.interp(t, course.times, course.x))
+        ys.append(np.interp(t, course.times, course.y))
+        speeds = vessel_speeds(course)
+        fastest = max(fastest, float(speeds.max()) if speeds.size else 0.0)
+        order = np.sort(t)
+        px, py = np.interp(order, course.times, course.x), np.interp(order, course.times, course.y)
+        trail = max(trail, float(np.hypot(np.diff(px), np.diff(py)).sum()))
+    gravity = preset.sea.gravity_mps2
+    transverse = 2.0 * math.pi * fastest**2 / gravity
+    longest = max(v.length_m for v in preset.vessels)
+    shortest = min(v.length_m for v in preset.vessels)
+    if wake.size_m is not None:
+        x0, y0, size = wake.origin_x_m, wake.origin_y_m, wake.size_m
+    else:
+        x, y = np.concatenate(xs), np.concatenate(ys)
+        margin = max(math.tan(KELVIN_HALF_ANGLE) * trail, transverse, _HULL_LENGTHS_OF_MARGIN * longest)
+        size = min(_MAX_REGION_M, float(math.ceil(max(np.ptp(x), np.ptp(y)) + 2.0 * margin)))
+        x0 = float(math.floor(0.5 * (x.min() + x.max()) - 0.5 * size))
+        y0 = float(math.floor(0.5 * (y.min() + y.max()) - 0.5 * size))
+    if wake.resolution is not None:
+        resolution = wake.resolution
+    else:
+        spacing = shortest / _TEXELS_PER_HULL
+        if transverse > 0:
+            spacing = min(spacing, transverse / _TEXELS_PER_TRANSVERSE_WAVE)
+        resolution = int(16 * math.ceil(size / spacing / 16))
+        resolution = max(_MIN_RESOLUTION, min(_MAX_RESOLUTION, resolution))
+    return x0, y0, size, resolution
+
+
+def _hull_and_course(vessel: VesselSettings, samples: CourseSamples):
+    from ..surface.wake import Course, Hull
+
+    return (Hull(vessel.length_m, vessel.beam_m, vessel.draft_m),
+            Course(samples.times, samples.x, samples.y, samples.heading))
+
+
+def preset_wake(preset, *, fft_workers: int | None = None, velocity: bool | None = None):
+    """The preset's :class:`~oceanfield.surface.wake.Wake` (its vessels on its region), or
+    None for a preset without vessels."""
+    if not preset.vessels:
+        return None
+    from ..surface.wake import Wake, WakeRegion
+
+    x0, y0, size, resolution = wake_region(preset)
+    vessels = [_hull_and_course(v, s) for v, s in zip(preset.vessels, vessel_samples(preset))]
+    return Wake.for_sea(
+        preset.sea_state(), vessels, WakeRegion(x0, y0, size, resolution),
+        lookback=preset.wake.lookback_s,
+        lateral_factor=preset.surface.lateral_factor,
+        velocity=("velocity" in preset.maps) if velocity is None else velocity,
+        fft_workers=fft_workers,
+    )
