@@ -1,0 +1,303 @@
+"""The wake's fast path: numba kernels for its spectra, its point sums and its foam trail.
+
+Knows nothing of presets or files: it works on arrays of lattice wavenumbers and of the
+path pieces a frame looks back over. Each kernel has a plain-numpy reference the tests
+hold it against.
+
+Why they are shaped this way:
+
+* ``wake_spectra_kernel`` makes one pass over the half lattice (kx ≥ 0, the layout of a
+  real inverse FFT), row by row in parallel. For each wave it walks the path pieces from
+  the newest to the oldest in a fixed order (so a frame's bits do not depend on which
+  frames came before) and adds each piece's closed-form time integral (see
+  ``physics.wake.segment_response``). The piece's position phase e^{−ik·x_b} and drift
+  e^{ik·VΔ} are products of one-dimensional factors (e^{−ikx·x}·e^{−iky·y}) computed once
+  per piece and row/column; the only transcendental a wave and piece need is
+  e^{iωΔ}, which also carries the age rotation e^{iω(t − τb)} from piece to piece by
+  multiplication. The pressure patch's Gaussian is recomputed only where a piece's
+  heading or hull differs from the previous one's. The kernel writes the spectra of the
+  eight (eleven with velocity) real fields, ready for ``scipy.fft.irfft2``.
+* ``wake_point_kernel`` sums the half-lattice spectrum at scattered points (probes).
+* ``foam_trail_kernel`` paints capsules along the path pieces of the foam look-back into
+  the region's texels, visiting only each capsule's bounding box, and keeps the maximum
+  (order-independent, so deterministic in parallel).
+
+Window: the look-back T weights a piece of age u by w(u) = (e^{−εu} − e^{−εT})/(1 − e^{−εT})
+(continuous at u = T, so cutting the look-back starts no wave), which is a difference of
+two exponentials: the kernel accumulates J± with damping ε and with none.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+
+os.environ.setdefault("OMP_WAIT_POLICY", "PASSIVE")  # as surface/_kernels.py: FFTs share the cores
+
+import numba  # noqa: E402
+import numpy as np  # noqa: E402
+from numpy.typing import NDArray  # noqa: E402
+
+__all__ = [
+    "FIELD_COUNT",
+    "VELOCITY_FIELD_COUNT",
+    "wake_spectra_kernel",
+    "wake_spectra_reference",
+    "wake_point_kernel",
+    "wake_point_reference",
+    "foam_trail_kernel",
+    "foam_trail_reference",
+]
+
+#: Spectra written per frame: h, Dx, Dy, ∂h/∂x, ∂h/∂y, ∂Dx/∂x, ∂Dy/∂y, ∂Dx/∂y.
+FIELD_COUNT = 8
+#: With velocity: then ∂h/∂t, ∂Dx/∂t, ∂Dy/∂t.
+VELOCITY_FIELD_COUNT = 11
+
+_SERIES_BELOW = 1e-2  # |z| below which (1 − e^{−z})/z is its Taylor series (error < 1e-14)
+
+
+@numba.njit(inline="always", cache=True)
+def _ratio(zr, zi, er, ei):  # pragma: no cover - compiled
+    """(1 − e^{−z})/z for z = zr + i zi, given e^{−z} = er + i ei (series near 0)."""
+    z = complex(zr, zi)
+    if zr * zr + zi * zi < _SERIES_BELOW * _SERIES_BELOW:
+        return 1.0 - z * (0.5 - z * (1.0 / 6.0 - z * (1.0 / 24.0 - z / 120.0)))
+    return complex(1.0 - er, -ei) / z
+
+
+@numba.njit(parallel=True, cache=True, fastmath=False, nogil=True)
+def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, end_y,
+                        vel_x, vel_y, patch_a, patch_b, patch_c, patch_amp,
+                        damping, tail, lateral, out):  # pragma: no cover - compiled
+    """Fill ``out`` (F, M, M//2+1) complex64 with the wake's field spectra; see module doc.
+
+    ``gain`` = −κ/(ρ ω A) per wave (0 where not evaluated), ``tail`` = e^{−εT}.
+    """
+    m = ky.shape[0]
+    mh = kx.shape[0]
+    pieces = age_end.shape[0]
+    velocity = out.shape[0] > 8
+    # one-dimensional factors per piece: e^{−ikx·x_b}, e^{−iky·y_b}, e^{ikx·vxΔ}, e^{iky·vyΔ}
+    px = np.empty((pieces, mh), dtype=np.complex128)
+    dxp = np.empty((pieces, mh), dtype=np.complex128)
+    py = np.empty((pieces, m), dtype=np.complex128)
+    dyp = np.empty((pieces, m), dtype=np.complex128)
+    for j in range(pieces):
+        for ix in range(mh):
+            a = -kx[ix] * end_x[j]
+            px[j, ix] = complex(math.cos(a), math.sin(a))
+            b = kx[ix] * vel_x[j] * duration[j]
+            dxp[j, ix] = complex(math.cos(b), math.sin(b))
+        for iy in range(m):
+            a = -ky[iy] * end_y[j]
+            py[j, iy] = complex(math.cos(a), math.sin(a))
+            b = ky[iy] * vel_y[j] * duration[j]
+            dyp[j, iy] = complex(math.cos(b), math.sin(b))
+    damp_end = np.empty(pieces)
+    damp_step = np.empty(pieces)
+    for j in range(pieces):
+        damp_end[j] = math.exp(-damping * age_end[j])
+        damp_step[j] = math.exp(-damping * duration[j])
+    scale = 1.0 / (1.0 - tail)
+    for iy in numba.prange(m):
+        kyv = ky[iy]
+        for ix in range(mh):
+            kxv = kx[ix]
+            k2 = kxv * kxv + kyv * kyv
+            g = gain[iy, ix]
+            if k2 > kcut2 or g == 0.0:
+                for f in range(out.shape[0]):
+                    out[f, iy, ix] = 0.0
+                continue
+            w = omega[iy, ix]
+            jp = 0j   # damped, e^{+iω(t−τ)}
+            jm = 0j   # damped, e^{−iω(t−τ)}
+            zp0 = 0j  # undamped
+            zm0 = 0j
+            rot = 1.0 + 0j  # e^{iω(t − τb)} of the current piece
+            last_a = np.nan
+            last_b = np.nan
+            last_c = np.nan
+            last_amp = np.nan
+            patch = 0.0
+            for j in range(pieces):
+                dur = duration[j]
+                if age_end[j] == 0.0:  # a vessel's newest piece: its rotation starts at 1
+                    rot = 1.0 + 0j
+                if (patch_a[j] != last_a or patch_b[j] != last_b or patch_c[j] != last_c
+                        or patch_amp[j] != last_amp):
+                    last_a = patch_a[j]
+                    last_b = patch_b[j]
+                    last_c = patch_c[j]
+                    last_amp = patch_amp[j]
+                    patch = last_amp * math.exp(-(last_a * kxv * kxv + last_b * kyv * kyv
+                                                  + last_c * kxv * kyv))
+                wd = w * dur
+                c = complex(math.cos(wd), math.sin(wd))
+                base = patch * dur * (px[j, ix] * py[j, iy])
+                q = dxp[j, ix] * dyp[j, iy]  # e^{ik·VΔ}
+                kv = (kxv * vel_x[j] + kyv * vel_y[j]) * dur
+                qc = q * c
+                qcc = q * c.conjugate()
+                ed = damping * dur
+                es = damp_step[j]
+                # damped: z± = εΔ − i(k·V ± ω)Δ, e^{−z±} = e^{−εΔ} q e^{±iωΔ}
+                ep = _ratio(ed, -(kv + wd), es * qc.real, es * qc.imag)
+                em = _ratio(ed, -(kv - wd), es * qcc.real, es * qcc.imag)
+                e0p = _ratio(0.0, -(kv + wd), qc.real, qc.imag)
+                e0m = _ratio(0.0, -(kv - wd), qcc.real, qcc.imag)
+                br = base * rot
+                brc = base * rot.conjugate()
+                de = damp_end[j]
+                jp += de * br * ep
+                jm += de * brc * em
+                zp0 += br * e0p
+                zm0 += brc * e0m
+                rot = rot * c
+            # windowed sine and cosine integrals
+            sin_w = ((jp - jm) - tail * (zp0 - zm0)) * scale / 2j
+            h = g * sin_w
+            k = math.sqrt(k2)
+            ux = kxv / k
+            uy = kyv / k
+            ih = 1j * h
+            out[0, iy, ix] = h
+            out[1, iy, ix] = lateral * ux * ih
+            out[2, iy, ix] = lateral * uy * ih
+            out[3, iy, ix] = kxv * ih
+            out[4, iy, ix] = kyv * ih
+            out[5, iy, ix] = -lateral * kxv * ux * h
+            out[6, iy, ix] = -lateral * kyv * uy * h
+            out[7, iy, ix] = -lateral * kxv * uy * h
+            if velocity:
+                cos_w = ((jp + jm) - tail * (zp0 + zm0)) * scale / 2.0
+                sin_d = (jp - jm) * scale / 2j
+                ht = g * (w * cos_w - damping * sin_d)
+                out[8, iy, ix] = ht
+                out[9, iy, ix] = lateral * ux * 1j * ht
+                out[10, iy, ix] = lateral * uy * 1j * ht
+
+
+def wake_spectra_reference(kx, ky, omega, gain, kcut2, age_end, duration, end_x, end_y,
+                           vel_x, vel_y, patch_a, patch_b, patch_c, patch_amp,
+                           damping, tail, lateral, fields):
+    """The same spectra as `wake_spectra_kernel`, by numpy over the lattice, piece by piece."""
+    from ..physics.wake import segment_response
+
+    kxg, kyg = np.meshgrid(kx, ky)
+    live = (kxg**2 + kyg**2 <= kcut2) & (gain != 0.0)
+    jp = np.zeros(kxg.shape, complex)
+    jm = np.zeros_like(jp)
+    zp = np.zeros_like(jp)
+    zm = np.zeros_like(jp)
+    for j in range(len(age_end)):
+        patch = patch_amp[j] * np.exp(-(patch_a[j] * kxg**2 + patch_b[j] * kyg**2 + patch_c[j] * kxg * kyg))
+        args = dict(age_end=age_end[j], duration=duration[j], end_x=end_x[j], end_y=end_y[j],
+                    velocity_x=vel_x[j], velocity_y=vel_y[j])
+        a, b = segment_response(kxg, kyg, omega, damping=damping, **args)
+        c, d = segment_response(kxg, kyg, omega, damping=0.0, **args)
+        jp += patch * a
+        jm += patch * b
+        zp += patch * c
+        zm += patch * d
+    scale = 1.0 / (1.0 - tail)
+    h = np.where(live, gain * ((jp - jm) - tail * (zp - zm)) * scale / 2j, 0)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        k = np.sqrt(kxg**2 + kyg**2)
+        ux = np.where(k > 0, kxg / k, 0.0)
+        uy = np.where(k > 0, kyg / k, 0.0)
+    out = [h, lateral * ux * 1j * h, lateral * uy * 1j * h, kxg * 1j * h, kyg * 1j * h,
+           -lateral * kxg * ux * h, -lateral * kyg * uy * h, -lateral * kxg * uy * h]
+    if fields > 8:
+        cos_w = ((jp + jm) - tail * (zp + zm)) * scale / 2.0
+        sin_d = (jp - jm) * scale / 2j
+        ht = np.where(live, gain * (omega * cos_w - damping * sin_d), 0)
+        out += [ht, lateral * ux * 1j * ht, lateral * uy * 1j * ht]
+    return np.stack(out).astype(np.complex64)
+
+
+#: Columns of the point kernel's output.
+POINT_COLUMNS = ("h", "dx", "dy", "h_x", "h_y", "dx_x", "dy_y", "dx_y", "h_t", "dx_t", "dy_t")
+
+
+@numba.njit(parallel=True, cache=True, fastmath=False, nogil=True)
+def wake_point_kernel(mkx, mky, weight, spec, x, y, out):  # pragma: no cover - compiled
+    """Sum Σ w·Re(ĉ e^{ik·x}) of each of ``spec``'s rows (11 fields) at points (x, y)."""
+    fields = spec.shape[0]
+    for p in numba.prange(x.shape[0]):
+        acc = np.zeros(fields)
+        for j in range(mkx.shape[0]):
+            a = mkx[j] * x[p] + mky[j] * y[p]
+            c = math.cos(a)
+            s = math.sin(a)
+            wj = weight[j]
+            for f in range(fields):
+                v = spec[f, j]
+                acc[f] += wj * (v.real * c - v.imag * s)
+        for f in range(fields):
+            out[p, f] = acc[f]
+
+
+def wake_point_reference(mkx, mky, weight, spec, x, y):
+    """The same sums by numpy."""
+    phase = np.exp(1j * (np.outer(x, mkx) + np.outer(y, mky)))
+    return ((phase * weight) @ spec.T).real
+
+
+@numba.njit(parallel=True, cache=True, fastmath=False, nogil=True)
+def foam_trail_kernel(origin_x, origin_y, spacing, ax, ay, bx, by,
+                      width_a, width_b, strength_a, strength_b, out):  # pragma: no cover - compiled
+    """Paint each capsule (a→b, width and strength linear along it) into ``out`` (max)."""
+    n = out.shape[0]
+    pieces = ax.shape[0]
+    # rows in parallel; each row visits only the capsules whose box it crosses
+    for iy in numba.prange(n):
+        yv = origin_y + iy * spacing
+        for j in range(pieces):
+            w = max(width_a[j], width_b[j])
+            if yv < min(ay[j], by[j]) - w or yv > max(ay[j], by[j]) + w:
+                continue
+            x_lo = min(ax[j], bx[j]) - w
+            x_hi = max(ax[j], bx[j]) + w
+            i0 = max(0, int(math.floor((x_lo - origin_x) / spacing)))
+            i1 = min(n - 1, int(math.ceil((x_hi - origin_x) / spacing)))
+            dx = bx[j] - ax[j]
+            dy = by[j] - ay[j]
+            ll = dx * dx + dy * dy
+            for ix in range(i0, i1 + 1):
+                xv = origin_x + ix * spacing
+                if ll > 0.0:
+                    s = ((xv - ax[j]) * dx + (yv - ay[j]) * dy) / ll
+                    s = min(max(s, 0.0), 1.0)
+                else:
+                    s = 0.0
+                ex = xv - (ax[j] + s * dx)
+                ey = yv - (ay[j] + s * dy)
+                width = width_a[j] + s * (width_b[j] - width_a[j])
+                r2 = (ex * ex + ey * ey) / (width * width)
+                if r2 >= 1.0:
+                    continue
+                strength = strength_a[j] + s * (strength_b[j] - strength_a[j])
+                value = strength * (1.0 - r2) * (1.0 - r2)
+                if value > out[iy, ix]:
+                    out[iy, ix] = value
+
+
+def foam_trail_reference(origin_x, origin_y, spacing, ax, ay, bx, by,
+                         width_a, width_b, strength_a, strength_b, out):
+    """The same painting by numpy, capsule by capsule over the whole region."""
+    n = out.shape[0]
+    xs = origin_x + np.arange(n) * spacing
+    X, Y = np.meshgrid(xs, origin_y + np.arange(n) * spacing)
+    for j in range(len(ax)):
+        dx, dy = bx[j] - ax[j], by[j] - ay[j]
+        ll = dx * dx + dy * dy
+        s = np.clip(((X - ax[j]) * dx + (Y - ay[j]) * dy) / ll, 0, 1) if ll > 0 else np.zeros_like(X)
+        ex, ey = X - (ax[j] + s * dx), Y - (ay[j] + s * dy)
+        width = width_a[j] + s * (width_b[j] - width_a[j])
+        r2 = (ex**2 + ey**2) / width**2
+        strength = strength_a[j] + s * (strength_b[j] - strength_a[j])
+        value = np.where(r2 < 1, strength * (1 - r2) ** 2, 0).astype(out.dtype)
+        np.maximum(out, value, out=out)
+    return out
