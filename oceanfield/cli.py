@@ -342,12 +342,20 @@ def _cmd_stats(args: argparse.Namespace) -> int:
     finally:
         if bar is not None:
             bar.close()
+    if preset.vessels:  # the vessels and their wake (preset.vessels)
+        from .preset.vessels import wake_report
+
+        report["wake"] = wake_report(preset)
     if args.json:
         print(json.dumps(report, indent=2))
     else:
         from .preset.stats import format_sea_report
 
         print(format_sea_report(report))
+        if preset.vessels:
+            from .preset.vessels import format_wake_report
+
+            print("\n".join(format_wake_report(report["wake"])))
     return 0
 
 

@@ -7,8 +7,8 @@ tile metres, texels per side) and how far back in time each frame looks. A regio
 null is derived from the courses: the box around every position a vessel holds from one
 look-back before the first frame to the last frame, widened on every side by the Kelvin
 wedge's half-width behind the longest stretch of the trail (tan 19.47° × that length;
-Kelvin 1887), by a transverse wavelength 2πU²/g at the fastest speed and by four hull
-lengths, whichever is most; its texels resolve a quarter of the shortest hull and a
+Kelvin 1887), by half a transverse wavelength 2πU²/g at the fastest speed in that window
+and by four hull lengths, whichever is most; its texels resolve a quarter of the shortest hull and a
 twentieth of that wavelength (common practice: a wave needs about ten texels across).
 
 This module turns the settings into the surface's wake (``surface.wake``: ``Hull``,
@@ -25,7 +25,6 @@ import numpy as np
 
 from ._yamltree import BAD, Section, describe, valid
 from .courses import CourseSamples, CourseSettings, course_samples, read_course
-from ..physics.constants import GRAVITY
 
 __all__ = [
     "VesselSettings",
@@ -38,6 +37,13 @@ __all__ = [
     "wake_region",
     "preset_wake",
     "vessel_speeds",
+    "wake_notes",
+    "wake_report",
+    "format_wake_report",
+    "WAKE_PREFIX",
+    "wake_map_names",
+    "WakeFrame",
+    "WakeRenderer",
 ]
 
 #: The Kelvin wedge's half-angle in deep water, arcsin(1/3) (Kelvin 1887; Lighthill 1978, §3.10).
@@ -186,7 +192,8 @@ def wake_region(preset) -> tuple[float, float, float, int]:
         xs.append(np.interp(t, course.times, course.x))
         ys.append(np.interp(t, course.times, course.y))
         speeds = vessel_speeds(course)
-        fastest = max(fastest, float(speeds.max()) if speeds.size else 0.0)
+        live = (course.times[1:] > start) & (course.times[:-1] < end)  # pieces inside the window
+        fastest = max(fastest, float(speeds[live].max()) if live.any() else 0.0)
         order = np.sort(t)
         px, py = np.interp(order, course.times, course.x), np.interp(order, course.times, course.y)
         trail = max(trail, float(np.hypot(np.diff(px), np.diff(py)).sum()))
@@ -198,7 +205,7 @@ def wake_region(preset) -> tuple[float, float, float, int]:
         x0, y0, size = wake.origin_x_m, wake.origin_y_m, wake.size_m
     else:
         x, y = np.concatenate(xs), np.concatenate(ys)
-        margin = max(math.tan(KELVIN_HALF_ANGLE) * trail, transverse, _HULL_LENGTHS_OF_MARGIN * longest)
+        margin = max(math.tan(KELVIN_HALF_ANGLE) * trail, 0.5 * transverse, _HULL_LENGTHS_OF_MARGIN * longest)
         size = min(_MAX_REGION_M, float(math.ceil(max(np.ptp(x), np.ptp(y)) + 2.0 * margin)))
         x0 = float(math.floor(0.5 * (x.min() + x.max()) - 0.5 * size))
         y0 = float(math.floor(0.5 * (y.min() + y.max()) - 0.5 * size))
@@ -236,3 +243,125 @@ def preset_wake(preset, *, fft_workers: int | None = None, velocity: bool | None
         velocity=("velocity" in preset.maps) if velocity is None else velocity,
         fft_workers=fft_workers,
     )
+
+
+def wake_notes(preset, wake=None) -> list[str]:
+    """The wake's notes (``Wake.notes``: where linear theory or the set-up is doubtful),
+    each vessel called by its name, and a looping sea's wake that does not loop."""
+    wake = preset_wake(preset) if wake is None else wake
+    notes = []
+    for note in wake.notes():
+        for index, vessel in sorted(enumerate(preset.vessels), reverse=True):  # vessel 10 before vessel 1
+            note = note.replace(f"vessel {index}:", f"vessel `{vessel.name}`:")
+        notes.append(f"wake: {note}")
+    if preset.time.loop_period_s is not None:
+        notes.append(f"wake: time.loop_period_s {preset.time.loop_period_s:g} s loops the sea, not the wake "
+                     f"(a vessel's course does not repeat): the wake maps do not loop")
+    return notes
+
+
+_KNOT_MPS = 1852.0 / 3600.0  # one knot: a nautical mile (1852 m, BIPM SI brochure table 8) an hour
+
+
+def wake_report(preset) -> dict[str, Any]:
+    """The figures ``oceanfield stats`` gives of the vessels and their wake, JSON-ready.
+
+    Per vessel: hull, course span, top and mean speed over the render's window, the hull
+    Froude number U/√(gL) and depth Froude number U/√(gh) at the top speed, the transverse
+    wavelength 2πU²/g and the wake's half-angle (Kelvin's 19.47° in deep water, Havelock's
+    in finite depth); the region (and whether it was derived); the notes.
+    """
+    from ..physics import wake as physics
+
+    sea = preset.sea
+    wake = preset_wake(preset)
+    start, end = _window(preset)
+    vessels = []
+    for vessel, samples in zip(preset.vessels, vessel_samples(preset)):
+        speeds = vessel_speeds(samples)
+        pieces_start, pieces_end = samples.times[:-1], samples.times[1:]
+        live = (pieces_end > start) & (pieces_start < end)
+        top = float(speeds[live].max()) if live.any() else 0.0
+        span = np.clip(np.minimum(pieces_end, end) - np.maximum(pieces_start, start), 0.0, None)
+        mean = float(np.sum(speeds * span) / np.sum(span)) if np.sum(span) > 0 else 0.0
+        depth_froude = float(physics.depth_froude_number(top, sea.depth_m, gravity=sea.gravity_mps2))
+        angle = physics.havelock_half_angle(depth_froude) if depth_froude > 0 else physics.kelvin_half_angle()
+        vessels.append({
+            "name": vessel.name,
+            "length_m": vessel.length_m, "beam_m": vessel.beam_m, "draft_m": vessel.draft_m,
+            "course_start_s": float(samples.times[0]), "course_end_s": float(samples.times[-1]),
+            "top_speed_mps": top, "mean_speed_mps": mean, "top_speed_knots": top / _KNOT_MPS,
+            "hull_froude": float(physics.hull_froude_number(top, vessel.length_m, gravity=sea.gravity_mps2)),
+            "depth_froude": depth_froude if math.isfinite(sea.depth_m) else None,
+            "transverse_wavelength_m": 2.0 * math.pi * top**2 / sea.gravity_mps2,
+            "half_angle_deg": math.degrees(angle),
+        })
+    x0, y0, size, resolution = wake_region(preset)
+    return {
+        "vessels": vessels,
+        "region": {"origin_x_m": x0, "origin_y_m": y0, "size_m": size, "resolution": resolution,
+                   "texel_m": size / resolution, "derived": preset.wake.size_m is None,
+                   "lookback_s": preset.wake.lookback_s, "lattice_size": getattr(wake, "lattice_size", None)},
+        "notes": wake_notes(preset, wake),
+    }
+
+
+def format_wake_report(report: dict[str, Any]) -> list[str]:
+    """The wake's lines of ``oceanfield stats``."""
+    lines = []
+    for v in report["vessels"]:
+        depth = "" if v["depth_froude"] is None else f", depth Froude {v['depth_froude']:.2f}"
+        lines.append(
+            f"vessel {v['name']}: {v['length_m']:g} × {v['beam_m']:g} m, draft {v['draft_m']:g} m; course "
+            f"{v['course_start_s']:g} to {v['course_end_s']:g} s; top speed {v['top_speed_mps']:.3g} m/s "
+            f"({v['top_speed_knots']:.3g} kn), mean {v['mean_speed_mps']:.3g} m/s; hull Froude "
+            f"{v['hull_froude']:.2f}{depth}; transverse waves {v['transverse_wavelength_m']:.3g} m, wake "
+            f"half-angle {v['half_angle_deg']:.2f}°")
+    r = report["region"]
+    how = "derived from the courses" if r["derived"] else "set by the preset"
+    lines.append(f"wake region: {r['size_m']:g} m at {r['resolution']}² ({r['texel_m']:.3g} m texels) from "
+                 f"x {r['origin_x_m']:g} m, y {r['origin_y_m']:g} m ({how}); look-back {r['lookback_s']:g} s")
+    lines.extend(f"wake note: {note.removeprefix('wake: ')}" for note in report["notes"])
+    return lines
+
+
+# -- the render job's view ---------------------------------------------------------------------
+
+#: File map names of the wake are the sea's with this prefix (``wake_displacement``, ...).
+WAKE_PREFIX = "wake_"
+
+
+def wake_map_names(preset, layers_map: str | None = None) -> list[tuple[str, str]]:
+    """(file map name, map) of the wake's files of one frame: ``wake_<map>`` for each of the
+    preset's maps, and ``wake_<layers_map>`` for a multi-layer file; none without vessels."""
+    if not preset.vessels:
+        return []
+    names = [(f"{WAKE_PREFIX}{name}", name) for name in preset.maps]
+    if layers_map is not None:
+        names.append((f"{WAKE_PREFIX}{layers_map}", layers_map))
+    return names
+
+
+@dataclass(frozen=True)
+class WakeFrame:
+    """One frame of a sea with vessels: the sea's frame (Fields, or a band stack's) and the
+    wake's Fields on its own region."""
+
+    sea: Any
+    wake: Any
+
+
+class WakeRenderer:
+    """What the render job asks of a synthesiser (``frame(t, buffer=)``, ``new_buffer()``),
+    for a sea with vessels: the sea's synthesiser's frame and the wake's, both pure
+    functions of t."""
+
+    def __init__(self, preset, sea, *, fft_workers: int | None = None) -> None:
+        self.sea = sea
+        self.wake = preset_wake(preset, fft_workers=fft_workers)
+
+    def new_buffer(self):
+        return self.sea.new_buffer()
+
+    def frame(self, t: float, *, buffer=None) -> WakeFrame:
+        return WakeFrame(self.sea.frame(t, buffer=buffer), self.wake.frame(t))

@@ -112,6 +112,10 @@ def _cached_ocean(plan: RenderPlan, threads: int, build_progress: Callable[[int]
             _OCEANS[key] = synthesizer(plan.preset, fft_workers=threads)
         else:
             _OCEANS[key] = Ocean.from_preset(plan.preset, fft_workers=threads, build_progress=build_progress)
+        if plan.preset.vessels:  # the sea's frame and the wake's on its own region
+            from ..preset.vessels import WakeRenderer
+
+            _OCEANS[key] = WakeRenderer(plan.preset, _OCEANS[key], fft_workers=threads)
     return _OCEANS[key]
 
 

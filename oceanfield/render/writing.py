@@ -120,10 +120,15 @@ def encode_frame(plan: RenderPlan, frame: int, fields, png_scales: dict[str, flo
     preset = plan.preset
     output, scene = preset.output, preset.scene
     jobs = []
+    wake = _wake_fields(plan, fields)
+    if wake is not None:
+        fields = fields.sea
     banded = _banded_fields(plan, fields)
     for file_name, path in plan.files(frame).items():
         name, tile_size = file_name, None
-        if banded is not None:  # band<b>_<map> or composite_<map>: that band's fields and size
+        if wake is not None and file_name in wake:  # wake_<map>: the wake's fields on its region
+            fields, name, tile_size = wake[file_name]
+        elif banded is not None:  # band<b>_<map> or composite_<map>: that band's fields and size
             fields, name, tile_size = banded[file_name]
         if output.format == "exr":
             # Views into the frame, converted to pixels in one pass each (no float32 copies).
@@ -136,7 +141,9 @@ def encode_frame(plan: RenderPlan, frame: int, fields, png_scales: dict[str, flo
                     pixels[channel] = to_pixels(channel, source.array, output.precision_for(layer),
                                                 negate=source.negate, divisor=source.divisor)
             attributes = _attributes(plan, frame, name, tile_size)
-            if banded is not None:
+            if wake is not None and file_name in wake:
+                attributes.update(_wake_attributes(plan))
+            elif banded is not None:
                 attributes[f"{ATTRIBUTE_PREFIX}band"] = file_name.split("_")[0]  # band<b> or composite
             jobs.append(FileJob("exr", path, pixels, output.compression, attributes))
         else:
@@ -161,6 +168,37 @@ def _banded_fields(plan: RenderPlan, frame_fields) -> dict[str, tuple[Any, str, 
         else:
             out[file_name] = (frame_fields.bands[band], name, frame_fields.sizes[band])
     return out
+
+
+def _wake_fields(plan: RenderPlan, frame_fields) -> dict[str, tuple[Any, str, float]] | None:
+    """For a preset with vessels: wake file map name → (the wake's fields, map, region size in metres)."""
+    if not plan.preset.vessels:
+        return None
+    from ..preset.vessels import wake_map_names, wake_region
+
+    size = wake_region(plan.preset)[2]
+    return {file_name: (frame_fields.wake, name, size) for file_name, name in wake_map_names(plan.preset, LAYERS_MAP)}
+
+
+def _wake_attributes(plan: RenderPlan) -> dict[str, Any]:
+    """Where a wake file lies over the tiled sea: its corner in tile axes and scene units
+    (``wake_origin_x``, ``wake_origin_y``: the point of texel (0, 0), the file's bottom-left,
+    where the tile's own texel (0, 0) is at 0, 0), its side (``tile_size``, ``wake_size``)
+    and texels per side (``wake_resolution``); ``map`` is the map (``displacement``, ...), ``band`` is ``wake``."""
+    from ..preset.vessels import wake_region
+
+    x0, y0, size, resolution = wake_region(plan.preset)
+    unit = plan.preset.scene.metres_per_unit
+    p = ATTRIBUTE_PREFIX
+    return {
+        f"{p}wake_origin_x": float(x0 / unit),
+        f"{p}wake_origin_y": float(y0 / unit),
+        f"{p}wake_size": float(size / unit),
+        f"{p}wake_resolution": int(resolution),
+        f"{p}wake_lookback_s": float(plan.preset.wake.lookback_s),
+        f"{p}wake_vessels": ",".join(v.name for v in plan.preset.vessels),
+        f"{p}band": "wake",  # which part of the sea the file holds, as band<b> and composite do
+    }
 
 
 def write_jobs(jobs: Iterable[FileJob]) -> list[Path]:
