@@ -1,7 +1,8 @@
 """An OpenUSD stage of an animated shot, through the ``usd-core`` package (optional extra).
 
 Knows nothing of physics: it takes arrays already in scene axes and units, and frame
-numbers, and writes them as a USD stage.
+numbers, and writes them as a USD stage; it also reads a layout prim's animated origin
+(`read_prim_track`, for a course).
 
 The stage (``/Shot`` is its default prim):
 
@@ -16,6 +17,8 @@ The stage (``/Shot`` is its default prim):
   plus one ``UsdUVTexture`` per other map sequence with its file time-sampled frame by
   frame, documented but not wired (the mesh is already displaced; a normal map in scene
   axes is not the tangent-space normal ``UsdPreviewSurface`` expects);
+* ``/Shot/Wake`` (a preset with vessels): a second mesh, a patch over the wake region, with
+  its own material ``/Shot/Looks/WakeMaterial`` (the same shape, textures clamped);
 * ``/Shot/Probes/<name>``: an ``Xform`` with a time-sampled translate per probe;
 * ``/Shot/Bodies/<name>``: an ``Xform`` with a time-sampled 4×4 transform per body.
 
@@ -82,6 +85,8 @@ class Look:
     foam_map: str | None = "foam"
     water_colour: tuple[float, float, float] = (0.02, 0.08, 0.10)
     notes: Mapping[str, str] = field(default_factory=dict)
+    #: how textures wrap beyond [0, 1]: ``repeat`` for the tiled sea, ``clamp`` for a patch
+    wrap: str = "repeat"
 
 
 def write_stage(
@@ -96,6 +101,8 @@ def write_stage(
     probes: Mapping[str, NDArray[np.float64]] | None = None,
     bodies: Mapping[str, NDArray[np.float64]] | None = None,
     comment: str = "",
+    wake: SeaMesh | None = None,
+    wake_look: Look | None = None,
 ) -> Path:
     """Write the shot as a USD stage (see the module notes); returns the path.
 
@@ -122,6 +129,9 @@ def write_stage(
         the last row).
     comment : str
         The root layer's comment.
+    wake, wake_look : SeaMesh and Look, optional
+        A second mesh, ``/Shot/Wake`` (a patch over a wake region), and its material
+        ``/Shot/Looks/WakeMaterial``.
     """
     require_usd()
     from pxr import Gf, Sdf, Tf, Usd, UsdGeom, UsdShade, Vt
@@ -143,27 +153,15 @@ def write_stage(
     shot = UsdGeom.Xform.Define(stage, "/Shot")
     stage.SetDefaultPrim(shot.GetPrim())
 
-    sea = UsdGeom.Mesh.Define(stage, "/Shot/Sea")
-    sea.CreateSubdivisionSchemeAttr(UsdGeom.Tokens.none)
-    sea.CreateFaceVertexCountsAttr(Vt.IntArray.FromNumpy(np.ascontiguousarray(mesh.face_vertex_counts, np.int32)))
-    sea.CreateFaceVertexIndicesAttr(Vt.IntArray.FromNumpy(np.ascontiguousarray(mesh.face_vertex_indices, np.int32)))
-    points_attr = sea.CreatePointsAttr()
-    normals_attr = sea.CreateNormalsAttr()
-    sea.SetNormalsInterpolation(UsdGeom.Tokens.vertex)
-    extent_attr = sea.CreateExtentAttr()
-    for index, frame in enumerate(frames):
-        time = Usd.TimeCode(frame)
-        points = np.ascontiguousarray(mesh.points[index], dtype=np.float32)
-        points_attr.Set(Vt.Vec3fArray.FromNumpy(points), time)
-        normals_attr.Set(Vt.Vec3fArray.FromNumpy(np.ascontiguousarray(mesh.normals[index], dtype=np.float32)), time)
-        extent_attr.Set(Vt.Vec3fArray.FromNumpy(np.stack([points.min(axis=0), points.max(axis=0)])), time)
-    st = UsdGeom.PrimvarsAPI(sea.GetPrim()).CreatePrimvar(
-        "st", Sdf.ValueTypeNames.TexCoord2fArray, UsdGeom.Tokens.vertex)
-    st.Set(Vt.Vec2fArray.FromNumpy(np.ascontiguousarray(mesh.st, dtype=np.float32)))
-
+    sea = _mesh(stage, "/Shot/Sea", mesh, frames, Sdf, Usd, UsdGeom, Vt)
     if look is not None:
         material = _material(stage, look, frames, Sdf, Usd, UsdShade)
         UsdShade.MaterialBindingAPI.Apply(sea.GetPrim()).Bind(material)
+    if wake is not None:
+        patch = _mesh(stage, "/Shot/Wake", wake, frames, Sdf, Usd, UsdGeom, Vt)
+        if wake_look is not None:
+            material = _material(stage, wake_look, frames, Sdf, Usd, UsdShade, root="/Shot/Looks/WakeMaterial")
+            UsdShade.MaterialBindingAPI.Apply(patch.GetPrim()).Bind(material)
 
     for group, items in (("Probes", probes or {}), ("Bodies", bodies or {})):
         if not items:
@@ -190,9 +188,30 @@ def write_stage(
     return final
 
 
-def _material(stage, look: Look, frames: Sequence[int], Sdf, Usd, UsdShade):
+def _mesh(stage, path: str, mesh: SeaMesh, frames: Sequence[int], Sdf, Usd, UsdGeom, Vt):
+    """A quad mesh with time-sampled points, normals and extent, and its ``st`` coordinates."""
+    prim = UsdGeom.Mesh.Define(stage, path)
+    prim.CreateSubdivisionSchemeAttr(UsdGeom.Tokens.none)
+    prim.CreateFaceVertexCountsAttr(Vt.IntArray.FromNumpy(np.ascontiguousarray(mesh.face_vertex_counts, np.int32)))
+    prim.CreateFaceVertexIndicesAttr(Vt.IntArray.FromNumpy(np.ascontiguousarray(mesh.face_vertex_indices, np.int32)))
+    points_attr = prim.CreatePointsAttr()
+    normals_attr = prim.CreateNormalsAttr()
+    prim.SetNormalsInterpolation(UsdGeom.Tokens.vertex)
+    extent_attr = prim.CreateExtentAttr()
+    for index, frame in enumerate(frames):
+        time = Usd.TimeCode(frame)
+        points = np.ascontiguousarray(mesh.points[index], dtype=np.float32)
+        points_attr.Set(Vt.Vec3fArray.FromNumpy(points), time)
+        normals_attr.Set(Vt.Vec3fArray.FromNumpy(np.ascontiguousarray(mesh.normals[index], dtype=np.float32)), time)
+        extent_attr.Set(Vt.Vec3fArray.FromNumpy(np.stack([points.min(axis=0), points.max(axis=0)])), time)
+    st = UsdGeom.PrimvarsAPI(prim.GetPrim()).CreatePrimvar(
+        "st", Sdf.ValueTypeNames.TexCoord2fArray, UsdGeom.Tokens.vertex)
+    st.Set(Vt.Vec2fArray.FromNumpy(np.ascontiguousarray(mesh.st, dtype=np.float32)))
+    return prim
+
+
+def _material(stage, look: Look, frames: Sequence[int], Sdf, Usd, UsdShade, root: str = "/Shot/Looks/SeaMaterial"):
     """The preview material: foam → diffuse colour, every map sequence as a texture."""
-    root = "/Shot/Looks/SeaMaterial"
     material = UsdShade.Material.Define(stage, root)
     surface = UsdShade.Shader.Define(stage, f"{root}/PreviewSurface")
     surface.CreateIdAttr("UsdPreviewSurface")
@@ -218,8 +237,8 @@ def _material(stage, look: Look, frames: Sequence[int], Sdf, Usd, UsdShade):
         for frame, file in zip(frames, files):
             file_input.Set(Sdf.AssetPath(file), Usd.TimeCode(frame))
         texture.CreateInput("st", Sdf.ValueTypeNames.Float2).ConnectToSource(reader_output)
-        texture.CreateInput("wrapS", Sdf.ValueTypeNames.Token).Set("repeat")
-        texture.CreateInput("wrapT", Sdf.ValueTypeNames.Token).Set("repeat")
+        texture.CreateInput("wrapS", Sdf.ValueTypeNames.Token).Set(look.wrap)
+        texture.CreateInput("wrapT", Sdf.ValueTypeNames.Token).Set(look.wrap)
         texture.CreateInput("sourceColorSpace", Sdf.ValueTypeNames.Token).Set("raw")
         rgb = texture.CreateOutput("rgb", Sdf.ValueTypeNames.Float3)
         texture.CreateOutput("r", Sdf.ValueTypeNames.Float)

@@ -16,6 +16,7 @@ nothing of presets, files or render jobs.
 ``probes``     ``surface_at``: the displaced surface above any point, by exact sums
 ``bodies``     ``Body``, ``body_motion``: heave, pitch, roll of a floating waterplane
 ``wake``       ``Wake``: the linear wakes of moving hulls on a non-periodic region
+``riding``     ``ride``: a body on a course (or standing) riding the sea plus the wakes
 =============  ====================================================================
 """
 
@@ -34,3 +35,8 @@ from .wake import *  # noqa: F401,F403  (the names in wake.__all__)
 
 __all__ = [*_tile.__all__, *_fields.__all__, *_maps.__all__, *_synth.__all__,
            *_modes.__all__, *_probes.__all__, *_bodies.__all__, *_wake.__all__]
+
+from . import riding as _riding  # bodies on courses, riding the sea and the wakes
+from .riding import *  # noqa: F401,F403,E402  (the names in riding.__all__)
+
+__all__ += _riding.__all__
