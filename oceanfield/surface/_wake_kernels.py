@@ -59,20 +59,29 @@ _SERIES_BELOW = 1e-2  # |z| below which (1 − e^{−z})/z is its Taylor series 
 
 @numba.njit(inline="always", cache=True)
 def _ratio(zr, zi, er, ei):  # pragma: no cover - compiled
-    """(1 − e^{−z})/z for z = zr + i zi, given e^{−z} = er + i ei (series near 0)."""
-    z = complex(zr, zi)
-    if zr * zr + zi * zi < _SERIES_BELOW * _SERIES_BELOW:
+    """(1 − e^{−z})/z for z = zr + i·zi, given e^{−z} = er + i·ei (its series near 0).
+
+    Written in real arithmetic: one real division (1/z = conj(z)/|z|²) instead of a
+    complex division with its scaling branches (the kernel's inner loop does four).
+    """
+    r2 = zr * zr + zi * zi
+    if r2 < _SERIES_BELOW * _SERIES_BELOW:
+        z = complex(zr, zi)
         return 1.0 - z * (0.5 - z * (1.0 / 6.0 - z * (1.0 / 24.0 - z / 120.0)))
-    return complex(1.0 - er, -ei) / z
+    inv = 1.0 / r2
+    nr = 1.0 - er
+    ni = -ei
+    return complex((nr * zr + ni * zi) * inv, (ni * zr - nr * zi) * inv)
 
 
 @numba.njit(parallel=True, cache=True, fastmath=False, nogil=True)
 def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, end_y,
-                        vel_x, vel_y, patch_a, patch_b, patch_c, patch_amp,
+                        vel_x, vel_y, patch_a, patch_b, patch_c, patch_amp, floor_log,
                         damping, tail, lateral, out):  # pragma: no cover - compiled
     """Fill ``out`` (F, M, M//2+1) complex64 with the wake's field spectra; see module doc.
 
-    ``gain`` = −κ/(ρ ω A) per wave (0 where not evaluated), ``tail`` = e^{−εT}.
+    ``gain`` = −κ/(ρ ω A) per wave (0 where not evaluated), ``tail`` = e^{−εT}; a piece
+    adds nothing to a wave where its patch spectrum is below e^{−floor_log} of its peak.
     """
     m = ky.shape[0]
     mh = kx.shape[0]
@@ -116,23 +125,31 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
             zp0 = 0j  # undamped
             zm0 = 0j
             rot = 1.0 + 0j  # e^{iω(t − τb)} of the current piece
+            carried = False  # whether rot holds it (carried from the piece before)
             last_a = np.nan
             last_b = np.nan
             last_c = np.nan
             last_amp = np.nan
             patch = 0.0
             for j in range(pieces):
-                dur = duration[j]
                 if age_end[j] == 0.0:  # a vessel's newest piece: its rotation starts at 1
                     rot = 1.0 + 0j
+                    carried = True
+                quad = patch_a[j] * kxv * kxv + patch_b[j] * kyv * kyv + patch_c[j] * kxv * kyv
+                if quad > floor_log:  # this wave is outside this piece's patch spectrum
+                    carried = False
+                    continue
+                if not carried:
+                    a = w * age_end[j]
+                    rot = complex(math.cos(a), math.sin(a))
                 if (patch_a[j] != last_a or patch_b[j] != last_b or patch_c[j] != last_c
                         or patch_amp[j] != last_amp):
                     last_a = patch_a[j]
                     last_b = patch_b[j]
                     last_c = patch_c[j]
                     last_amp = patch_amp[j]
-                    patch = last_amp * math.exp(-(last_a * kxv * kxv + last_b * kyv * kyv
-                                                  + last_c * kxv * kyv))
+                    patch = last_amp * math.exp(-quad)
+                dur = duration[j]
                 wd = w * dur
                 c = complex(math.cos(wd), math.sin(wd))
                 base = patch * dur * (px[j, ix] * py[j, iy])
@@ -155,6 +172,7 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
                 zp0 += br * e0p
                 zm0 += brc * e0m
                 rot = rot * c
+                carried = True
             # windowed sine and cosine integrals
             sin_w = ((jp - jm) - tail * (zp0 - zm0)) * scale / 2j
             h = g * sin_w
@@ -180,7 +198,7 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
 
 
 def wake_spectra_reference(kx, ky, omega, gain, kcut2, age_end, duration, end_x, end_y,
-                           vel_x, vel_y, patch_a, patch_b, patch_c, patch_amp,
+                           vel_x, vel_y, patch_a, patch_b, patch_c, patch_amp, floor_log,
                            damping, tail, lateral, fields):
     """The same spectra as `wake_spectra_kernel`, by numpy over the lattice, piece by piece."""
     from ..physics.wake import segment_response
@@ -192,7 +210,8 @@ def wake_spectra_reference(kx, ky, omega, gain, kcut2, age_end, duration, end_x,
     zp = np.zeros_like(jp)
     zm = np.zeros_like(jp)
     for j in range(len(age_end)):
-        patch = patch_amp[j] * np.exp(-(patch_a[j] * kxg**2 + patch_b[j] * kyg**2 + patch_c[j] * kxg * kyg))
+        quad = patch_a[j] * kxg**2 + patch_b[j] * kyg**2 + patch_c[j] * kxg * kyg
+        patch = np.where(quad > floor_log, 0.0, patch_amp[j] * np.exp(-quad))
         args = dict(age_end=age_end[j], duration=duration[j], end_x=end_x[j], end_y=end_y[j],
                     velocity_x=vel_x[j], velocity_y=vel_y[j])
         a, b = segment_response(kxg, kyg, omega, damping=damping, **args)

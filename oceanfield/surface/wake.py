@@ -49,7 +49,7 @@ from .fields import Fields
 from .probes import SurfacePoints
 
 __all__ = ["Hull", "Course", "WakeRegion", "Wake", "combine", "WINDOW_RATE", "MERGE_TOLERANCE",
-           "DEFAULT_FOAM_LIFETIME"]
+           "DEFAULT_FOAM_LIFETIME", "PATCH_FLOOR"]
 
 #: εT of the look-back window w(u): the wake emitted half a look-back ago weighs 0.38.
 WINDOW_RATE = 1.0
@@ -62,7 +62,9 @@ MERGE_HEADING = math.radians(2.0)
 #: e-folding time of the foam trail in seconds (common practice: a boat's white water
 #: fades in tens of seconds in a moderate sea).
 DEFAULT_FOAM_LIFETIME = 20.0
-_PATCH_FLOOR = 1e-7  # the patch's spectrum, relative to its peak, below which waves are not evaluated
+#: The patch's spectrum, relative to its peak, below which a piece adds nothing to a wave
+#: (its far tail: the waves it leaves out are 10⁻⁴ of the patch's own).
+PATCH_FLOOR = 1e-4
 _FOAM_PIECES_PER_LIFETIME = 8
 
 
@@ -371,7 +373,7 @@ class Wake:
         """Largest c_g/c of the steady waves the hulls can make (½ in deep water, up to 1 in shallow)."""
         speed = max(self._speeds(), default=0.0)
         b_min = min((b for _, b in self._patches), default=1.0)
-        k_top = math.sqrt(4.0 * math.pi * math.log(1.0 / _PATCH_FLOOR)) / b_min
+        k_top = math.sqrt(4.0 * math.pi * math.log(1.0 / PATCH_FLOOR)) / b_min
         k = np.geomspace(k_top * 1e-6, k_top, 4000)
         kw = dict(gravity=self.gravity, surface_tension=self.surface_tension, density=self.density)
         c = phase_velocity(k, self.depth, **kw)
@@ -407,7 +409,7 @@ class Wake:
         gain[:, -1] = 0.0  # the Nyquist column and row carry nothing (real fields, derivatives)
         gain[m // 2, :] = 0.0
         b_min = min((b for _, b in self._patches), default=1.0)
-        self._kcut2 = 4.0 * math.pi * math.log(1.0 / _PATCH_FLOOR) / b_min**2
+        self._kcut2 = 4.0 * math.pi * math.log(1.0 / PATCH_FLOOR) / b_min**2
         self._omega = omega
         self._gain = gain
 
@@ -441,7 +443,7 @@ class Wake:
         if arrays[0].size == 0:
             out[...] = 0
             return out
-        args = (self._kx, self._ky, self._omega, self._gain, self._kcut2, *arrays,
+        args = (self._kx, self._ky, self._omega, self._gain, self._kcut2, *arrays, math.log(1.0 / PATCH_FLOOR),
                 self.damping, math.exp(-WINDOW_RATE), self.lateral_factor)
         if kernel:
             kern.wake_spectra_kernel(*args, out)
