@@ -51,7 +51,7 @@ def test_an_explicit_region_must_hold_every_course(preset_file, capsys):
         load_preset(path)
     assert len(caught.value.messages) == 1
     message = caught.value.messages[0]
-    assert "wake.size_m: vessel `launch` leaves the region at vessels.0.course.keys.1" in message
+    assert "wake.size_m: vessel `launch` leaves the region at the last frame (t 0.125 s, x 145 m" in message
     assert "x -10 to 90 m" in message
     assert main(["render", str(path), "--out", "unused"]) == 2
     assert len(capsys.readouterr().err.strip().splitlines()) == 1
@@ -154,3 +154,10 @@ def test_a_usd_course_without_usd_core_is_one_line(preset_file, tmp_path, monkey
 def test_samples_of_a_straight_course_are_its_two_keys(preset_file):
     samples = vessel_samples(load_preset(preset_file("straight", settings=STRAIGHT)))[0]
     np.testing.assert_array_equal(samples.times, [-18.0, 2.0])  # two keys: smooth is the line itself
+
+
+def test_a_wake_section_without_vessels_is_refused(preset_file):
+    """A key with no effect is an error (DEVELOPERS.md), not silently ignored."""
+    with pytest.raises(PresetError) as caught:
+        load_preset(preset_file("bare", settings={"tile": {"resolution": 32}, "wake": {"lookback_s": 10}}))
+    assert len(caught.value.messages) == 1 and "wake: has no effect: the preset has no vessels" in caught.value.messages[0]

@@ -271,7 +271,9 @@ def _wake_panels(figure, height_axes, foam_axes, preset, t: float, sea_fields) -
                                vmin=-limit * h_factor, vmax=limit * h_factor)
     figure.colorbar(image, ax=height_axes, label=f"height ({h_unit})")
     height_axes.set_title(f"{what} height over the wake region", fontsize=10)
-    alone = float(np.max(np.abs(fields.height))) or 1.0
+    # the near field peaks at the hulls: scale to the wake's body (99.5th percentile) so the
+    # Kelvin pattern behind them reads
+    alone = float(np.percentile(np.abs(fields.height), 99.5)) or float(np.max(np.abs(fields.height))) or 1.0
     w_unit, w_factor = _unit_for(alone)
     image = foam_axes.imshow(fields.height * w_factor, origin="lower", extent=extent, cmap="RdBu_r",
                              vmin=-alone * w_factor, vmax=alone * w_factor)

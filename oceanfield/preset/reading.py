@@ -27,7 +27,7 @@ from ..physics.seastate import SeaState
 from ..physics.spectra import JONSWAP_GAMMA, SPECTRA
 from ..physics.spreading import SPREADING
 from .record import read_record
-from .vessels import check_region, read_vessels, read_wake
+from .vessels import NO_WAKE, check_region, read_vessels, read_wake
 from .settings import (
     _DEFAULT_SPREAD_DEG,
     _FRAME_RUN,
@@ -80,6 +80,8 @@ def _build_preset(tree: Node, errors: list[str], path: Path, allow_outside_outpu
     vessels = read_vessels(top, time)
     wake_section = top.section("wake")
     wake = read_wake(wake_section)
+    if valid(vessels, wake) and not vessels and wake != NO_WAKE:
+        wake = wake_section.fail("", "has no effect: the preset has no vessels (add vessels, or leave wake out)")
     check_region(wake_section, vessels, wake, time)
     context.report_unknown_keys()
     if valid(bands) and valid(sea) and bands.active and "surface_tension_npm" not in sea_section.items:
