@@ -124,13 +124,13 @@ class Course:
                 raise ValueError(f"course {name}: {arr.size} values is not allowed; allowed: one per time ({n})")
             bad = np.flatnonzero(~np.isfinite(arr))
             if bad.size:
-                raise ValueError(f"course row {int(bad[0])}: {name} = {arr[bad[0]]!r} is not allowed; allowed: a finite number")
+                raise ValueError(f"course row {int(bad[0])}: {name} = {float(arr[bad[0]])!r} is not allowed; allowed: a finite number")
         step = np.diff(arrays["times"])
         bad = np.flatnonzero(step <= 0)
         if bad.size:
             row = int(bad[0]) + 1
             raise ValueError(
-                f"course row {row}: time {arrays['times'][row]!r} does not follow {arrays['times'][row - 1]!r}; "
+                f"course row {row}: time {float(arrays['times'][row])!r} does not follow {float(arrays['times'][row - 1])!r}; "
                 "allowed: strictly increasing times")
         for name, arr in arrays.items():
             arr.setflags(write=False)
