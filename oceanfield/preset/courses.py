@@ -340,8 +340,7 @@ def _smooth(times, x, y, heading, origins, fps: float):
     if heading is not None:
         unwrapped = np.unwrap(heading)
         turned = CubicHermiteSpline(times, unwrapped, tangents(unwrapped))(dense)
-    # each dense sample is named after the key segment it lies in
+    # each dense sample is named after the keys (or rows) it lies between
     segment = np.clip(np.searchsorted(times, dense, side="right") - 1, 0, times.size - 2)
-    named = tuple(f"{origins[s]} to {origins[s + 1].rsplit('.', 1)[-1]}" if origins[s].rsplit(".", 1)[0]
-                  == origins[s + 1].rsplit(".", 1)[0] else origins[s] for s in segment)
+    named = tuple(f"between {origins[s]} and {origins[s + 1]}" for s in segment)
     return dense, sample[0], sample[1], turned, named

@@ -33,36 +33,11 @@ from typing import Sequence
 from ._yamltree import apply_override, in_reading_order, is_name, read_tree
 from .reading import _build_preset
 from .resolved import _resize_by_extension, _resize_by_override, dump_preset, preset_hash
-from .settings import (
-    ComponentSettings,
-    OutputSettings,
-    Preset,
-    PresetError,
-    SceneSettings,
-    SeaSettings,
-    SurfaceSettings,
-    TileSettings,
-    TimeSettings,
-    to_sea_state,
-)
+from . import settings as _settings
+from .settings import *  # noqa: F401,F403  (the names in settings.__all__: Preset, PresetError, ...)
+from .settings import Preset, PresetError
 
-
-__all__ = [
-    "PresetError",
-    "ComponentSettings",
-    "SeaSettings",
-    "TileSettings",
-    "SurfaceSettings",
-    "TimeSettings",
-    "OutputSettings",
-    "SceneSettings",
-    "Preset",
-    "load_preset",
-    "list_presets",
-    "dump_preset",
-    "preset_hash",
-    "to_sea_state",
-]
+__all__ = [*_settings.__all__, "load_preset", "list_presets", "dump_preset", "preset_hash"]
 
 # -- public functions --------------------------------------------------------------------
 
