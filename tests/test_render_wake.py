@@ -118,3 +118,11 @@ def test_the_sea_under_the_wake_is_the_sea_without_vessels(tmp_path, boat, prese
         for channel in without:
             np.testing.assert_array_equal(with_vessels[channel], without[channel])
     assert not any(name.startswith("wake_") for name in _files(tmp_path / "without" / "bare"))
+
+
+def test_analyze_on_a_folder_with_a_wake_takes_the_sea(tmp_path, boat):
+    """`oceanfield analyze FOLDER` picks the sea's displacement, not wake_displacement."""
+    from oceanfield.io.sequence import folder_sequence
+
+    render(plan_render(load_preset(boat), root=tmp_path), workers=1)
+    assert Path(folder_sequence(str(tmp_path / "boat"))).name == "displacement.####.exr"
