@@ -126,3 +126,17 @@ def test_analyze_on_a_folder_with_a_wake_takes_the_sea(tmp_path, boat):
 
     render(plan_render(load_preset(boat), root=tmp_path), workers=1)
     assert Path(folder_sequence(str(tmp_path / "boat"))).name == "displacement.####.exr"
+
+
+def test_the_estimate_counts_the_wake(boat):
+    """The up-front estimate adds the wake's padded lattice to each worker's memory."""
+    import dataclasses
+
+    from oceanfield.render.estimate import _WAKE_BYTES_PER_TEXEL, estimate_work
+
+    preset = load_preset(boat)
+    with_wake = estimate_work(preset, 4, 1, 1)
+    sea_only = estimate_work(dataclasses.replace(preset, vessels=()), 4, 1, 1)
+    lattice = preset_wake(preset).lattice_size
+    assert with_wake.memory_bytes - sea_only.memory_bytes == lattice**2 * _WAKE_BYTES_PER_TEXEL
+    assert with_wake.total_seconds > 0
