@@ -63,8 +63,9 @@ MERGE_HEADING = math.radians(2.0)
 #: fades in tens of seconds in a moderate sea).
 DEFAULT_FOAM_LIFETIME = 20.0
 #: The patch's spectrum, relative to its peak, below which a piece adds nothing to a wave
-#: (its far tail: the waves it leaves out are 10⁻⁴ of the patch's own).
-PATCH_FLOOR = 1e-4
+#: (its far tail; measured on a turning 512² wake: 0.11 % r.m.s. of the height and 0.002
+#: in the normal's components against a floor of 10⁻⁷, for 0.8 of the time).
+PATCH_FLOOR = 1e-3
 _FOAM_PIECES_PER_LIFETIME = 8
 
 
@@ -457,23 +458,21 @@ class Wake:
         t = _check_time(t)
         fields = 11 if self.velocity else 8
         spec = self._spectra(t, fields)
-        n, m = self.region.resolution, self.lattice_size
+        m = self.lattice_size
         planes = scipy.fft.irfft2(spec, s=(m, m), axes=(-2, -1), norm="forward", workers=self.fft_workers)
-        planes = np.ascontiguousarray(planes[:, :n, :n])
         return self._assemble(t, planes)
 
     def _assemble(self, t: float, planes: NDArray[np.float32]) -> Fields:
-        h, dx, dy, sx, sy, dxx, dyy, dxy = planes[:8]
-        jxx, jyy = 1.0 + dxx, 1.0 + dyy
-        jac = jxx * jyy - dxy * dxy
-        normal = np.stack([dxy * sy - sx * jyy, sx * dxy - jxx * sy, jac], axis=-1)
-        normal /= np.linalg.norm(normal, axis=-1, keepdims=True)
-        velocity = None
-        if self.velocity:
-            velocity = np.ascontiguousarray(np.stack([planes[9], planes[10], planes[8]], axis=-1), dtype=np.float32)
-        return Fields(time=float(t), height=np.ascontiguousarray(h), displacement_x=np.ascontiguousarray(dx),
-                      displacement_y=np.ascontiguousarray(dy), jacobian=jac.astype(np.float32),
-                      normal=normal.astype(np.float32), foam=self.foam(t), velocity=velocity)
+        from . import _wake_kernels as kern
+
+        n = self.region.resolution
+        jac = np.empty((n, n), dtype=np.float32)
+        normal = np.empty((n, n, 3), dtype=np.float32)
+        velocity = np.empty((n, n, 3), dtype=np.float32) if self.velocity else None
+        kern.wake_surface_kernel(planes, jac, normal, velocity if velocity is not None else normal[:0, :0])
+        crop = np.ascontiguousarray(planes[:3, :n, :n])
+        return Fields(time=float(t), height=crop[0], displacement_x=crop[1], displacement_y=crop[2],
+                      jacobian=jac, normal=normal, foam=self.foam(t), velocity=velocity)
 
     # -- foam ----------------------------------------------------------------------------
 
