@@ -244,3 +244,16 @@ def test_combine_adds_heights_and_slopes():
     total = combine(points(1.0, 0.1, 0.5), points(0.2, 0.05, -0.1))
     assert total.displacement[0, 2] == pytest.approx(1.2) and total.rise_rate[0] == pytest.approx(0.4)
     assert -total.normal[0, 0] / total.normal[0, 2] == pytest.approx(0.15)
+
+
+def test_probes_by_non_uniform_fft_match_the_direct_sums(monkeypatch):
+    import oceanfield.surface.wake as wake_module
+
+    wake = _small_wake(velocity=True)
+    rng = np.random.default_rng(1)
+    x, y = rng.uniform(0, 64, 40), rng.uniform(0, 64, 40)
+    direct = wake.surface_at(x, y, 17.0)
+    monkeypatch.setattr(wake_module, "NUFFT_ABOVE", 0)
+    spread = wake.surface_at(x, y, 17.0)
+    for name in ("displacement", "normal", "velocity", "jacobian"):
+        assert getattr(spread, name) == pytest.approx(getattr(direct, name), abs=1e-9), name

@@ -67,6 +67,8 @@ DEFAULT_FOAM_LIFETIME = 20.0
 #: in the normal's components against a floor of 10⁻⁷, for 0.8 of the time).
 PATCH_FLOOR = 1e-3
 _FOAM_PIECES_PER_LIFETIME = 8
+#: Points × live waves above which probes sum by a non-uniform FFT instead of directly.
+NUFFT_ABOVE = 1e7  # (measured crossover at ~25 points on the benchmark's 1876² lattice)
 
 
 @dataclass(frozen=True)
@@ -540,19 +542,10 @@ class Wake:
         cols = np.zeros((flat_t.size, len(kern.POINT_COLUMNS)))
         px = xs.ravel() - self.region.origin_x
         py = ys.ravel() - self.region.origin_y
-        mh = self.lattice_size // 2 + 1
-        weight_row = np.full(mh, 2.0)
-        weight_row[0] = 1.0
         for tv in np.unique(flat_t):
-            spec = self._spectra(float(tv), 11, exclude)
-            live = np.flatnonzero(spec[0].ravel() != 0)
-            iy, ix = np.divmod(live, mh)
             sel = flat_t == tv
-            out = np.empty((int(sel.sum()), len(kern.POINT_COLUMNS)))
-            kern.wake_point_kernel(self._kx[ix], self._ky[iy], weight_row[ix],
-                                   np.ascontiguousarray(spec.reshape(11, -1)[:, live].astype(np.complex128)),
-                                   np.ascontiguousarray(px[sel]), np.ascontiguousarray(py[sel]), out)
-            cols[sel] = out
+            spec = self._spectra(float(tv), 11, exclude)
+            cols[sel] = self._sums_at(spec, np.ascontiguousarray(px[sel]), np.ascontiguousarray(py[sel]))
         c = {name: cols[:, i].reshape(shape) for i, name in enumerate(kern.POINT_COLUMNS)}
         jxx, jyy, jxy = 1.0 + c["dx_x"], 1.0 + c["dy_y"], c["dx_y"]
         sx, sy = c["h_x"], c["h_y"]
@@ -570,6 +563,44 @@ class Wake:
                              position=displacement + np.concatenate([rest, np.zeros(shape + (1,))], axis=-1),
                              displacement=displacement, normal=normal, velocity=velocity, rise_rate=rise,
                              jacobian=jac)
+
+    def _sums_at(self, spec: NDArray[np.complex64], x: NDArray[np.float64], y: NDArray[np.float64]) -> NDArray[np.float64]:
+        """The eleven fields of ``spec`` (half lattice) at points relative to the region's origin.
+
+        Direct sums over the live waves for few points; a type-2 non-uniform FFT of the
+        block of live waves (``_nufft.lattice_at_points``, one thread: the same bits on
+        any worker) once points × waves pass `NUFFT_ABOVE`.
+        """
+        from . import _wake_kernels as kern
+
+        mh = self.lattice_size // 2 + 1
+        live = np.flatnonzero(spec[0].ravel() != 0)
+        out = np.empty((x.size, len(kern.POINT_COLUMNS)))
+        if x.size * live.size <= NUFFT_ABOVE:
+            iy, ix = np.divmod(live, mh)
+            weight = np.where(ix == 0, 1.0, 2.0)
+            kern.wake_point_kernel(self._kx[ix], self._ky[iy], weight,
+                                   np.ascontiguousarray(spec.reshape(11, -1)[:, live].astype(np.complex128)),
+                                   x, y, out)
+            return out
+        from ._nufft import lattice_at_points
+
+        m = self.lattice_size
+        dk = float(self._kx[1])
+        reach = min(m // 2 - 1, int(math.ceil(math.sqrt(self._kcut2) / dk)) + 1)
+        half = reach + 1  # the block's wave indices −half … half − 1 (FFT layout, even size)
+        rows = np.r_[0:half, m - half:m]           # ny = 0 … half−1, −half … −1
+        mirror = np.r_[0, m - np.arange(1, half), np.arange(half, 0, -1)]  # the lattice row of −ny
+        for f in range(0, 11, 4):
+            fields = slice(f, min(f + 4, 11))
+            part = spec[fields].astype(np.complex128)
+            block = np.zeros((part.shape[0], 2 * half, 2 * half), dtype=np.complex128)
+            block[:, :, :half] = part[:, rows, :half]                  # kx ≥ 0
+            # kx < 0 from Hermitian symmetry: c(−k) = conj(c(k)); column −nx ↔ lattice column nx
+            block[:, :, half + 1:] = np.conj(part[:, mirror][:, :, half - 1:0:-1])
+            block[:, :, half] = np.conj(part[:, mirror, half])        # nx = −half
+            out[:, fields] = lattice_at_points(block, dk, x, y).real.T
+        return out
 
     # -- notes -------------------------------------------------------------------------------
 
