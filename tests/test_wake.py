@@ -223,6 +223,10 @@ def test_notes_warn_of_high_froude_numbers_critical_depth_and_a_course_leaving_t
     calm = Wake([(Hull(10.0, 3.0, 0.5), Course(times=[0.0, 10.0], x=[10.0, 40.0], y=[30.0, 30.0]))],
                 WakeRegion(0, 0, 64, 64), lookback=60.0).notes()
     assert calm == []
+    # 3 m/s: transverse waves 5.8 m long; 5 s of look-back holds 7.5 m of them, under three
+    short = Wake([(Hull(10.0, 3.0, 0.5), Course(times=[0.0, 10.0], x=[10.0, 40.0], y=[30.0, 30.0]))],
+                 WakeRegion(0, 0, 64, 64), lookback=5.0).notes()
+    assert len(short) == 1 and "look-back of at least 12 s" in short[0]
 
 
 def test_for_sea_takes_the_water_from_the_sea_state():

@@ -67,6 +67,9 @@ DEFAULT_FOAM_LIFETIME = 20.0
 #: in the normal's components against a floor of 10⁻⁷, for 0.8 of the time).
 PATCH_FLOOR = 1e-3
 _FOAM_PIECES_PER_LIFETIME = 8
+#: Transverse wavelengths of wake behind the hull a look-back should hold (U·T/2 of them
+#: formed: the transverse waves' energy follows at half the speed), below which notes warn.
+LOOKBACK_WAVELENGTHS = 3
 #: Points × live waves above which probes sum by a non-uniform FFT instead of directly.
 NUFFT_ABOVE = 1e7  # (measured crossover at ~25 points on the benchmark's 1876² lattice)
 
@@ -628,10 +631,13 @@ class Wake:
                       & (course.y >= r.origin_y) & (course.y <= r.origin_y + r.size))
             if not inside.all():
                 out.append(f"{label}: the course leaves the wake region at sample {int(np.flatnonzero(~inside)[0])}")
-            if speed > 0 and 0.5 * speed * self.lookback < r.size:
-                out.append(f"{label}: in a {self.lookback:g} s look-back the transverse waves reach "
-                           f"{0.5 * speed * self.lookback:.0f} m behind the hull, less than the region's "
-                           f"{r.size:g} m; a longer look-back lengthens the wake")
+            transverse = 2.0 * math.pi * speed**2 / self.gravity  # deep-water transverse wavelength
+            if speed > 0 and 0.5 * speed * self.lookback < LOOKBACK_WAVELENGTHS * transverse:
+                out.append(f"{label}: a {self.lookback:g} s look-back holds the wake only "
+                           f"{0.5 * speed * self.lookback:.0f} m behind the hull, under "
+                           f"{LOOKBACK_WAVELENGTHS} of its {transverse:.0f} m transverse waves: the Kelvin "
+                           f"pattern cannot form; allowed: a look-back of at least "
+                           f"{2.0 * LOOKBACK_WAVELENGTHS * transverse / speed:.0f} s")
         return out
 
 
