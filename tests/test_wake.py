@@ -217,3 +217,16 @@ def test_probes_by_non_uniform_fft_match_the_direct_sums(monkeypatch):
     spread = wake.surface_at(x, y, 17.0)
     for name in ("displacement", "normal", "velocity", "jacobian"):
         assert getattr(spread, name) == pytest.approx(getattr(direct, name), abs=1e-9), name
+
+
+def test_a_course_from_far_away_pads_only_for_what_can_reach_the_region():
+    """Pieces farther from the region than the waves can travel in the look-back are left
+    out, so a course starting 5 km away costs what one starting just out of reach does."""
+    hull, region = Hull(5.0, 2.0, 0.3), WakeRegion(0, 0, 64, 64)
+    far = Course(times=[0.0, 1060.0], x=[-5000.0, 60.0], y=[32.0, 32.0])   # 4.8 m/s
+    near = Course(times=[960.0, 1060.0], x=[far.position(960.0)[0], 60.0], y=[32.0, 32.0])
+    a = Wake([(hull, far)], region, lookback=20.0)
+    b = Wake([(hull, near)], region, lookback=20.0)
+    assert a.lattice_size == b.lattice_size < 4 * region.resolution
+    fa, fb = a.frame(1050.0), b.frame(1050.0)
+    assert np.abs(fa.height - fb.height).max() < 1e-5 * np.abs(fb.height).max()

@@ -89,13 +89,14 @@ def _ratio_undamped(y, er, ei):  # pragma: no cover - compiled
 
 @numba.njit(parallel=True, cache=True, fastmath=False, nogil=True)
 def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, end_y,
-                        vel_x, vel_y, patch_a, patch_b, patch_c, patch_amp, floor_log,
+                        vel_x, vel_y, patch_a, patch_b, patch_c, patch_amp, joined, floor_log,
                         damping, tail, lateral, out):  # pragma: no cover - compiled
     """Fill ``out`` (F, M, M//2+1) complex64 with the wake's field spectra; see module doc.
 
     ``gain`` = −κ/(ρ ω A) per wave (0 where not evaluated), ``tail`` = e^{−εT}; a piece
     adds nothing to a wave where its patch spectrum is below e^{−floor_log} of its peak.
-    ``kx`` must be the lattice's non-negative wavenumbers 0, dk, 2dk, ….
+    ``kx`` must be the lattice's non-negative wavenumbers 0, dk, 2dk, …; ``joined[j]``
+    says that piece j ends where piece j − 1 began (so its age rotation carries over).
     """
     m = ky.shape[0]
     mh = kx.shape[0]
@@ -153,7 +154,7 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
             ix1 = max(0, int(math.floor((-lin - root) / (2.0 * pa) / dk)) - 1)
             ix2 = min(ix_live, int(math.ceil((-lin + root) / (2.0 * pa) / dk)) + 1)
             dur = duration[j]
-            newest = age_end[j] == 0.0
+            carry = joined[j]
             for ix in range(ix1, ix2 + 1):
                 kxv = kx[ix]
                 g = gain[iy, ix]
@@ -163,9 +164,7 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
                 if quad > floor_log:
                     continue
                 w = omega[iy, ix]
-                if newest:
-                    r = 1.0 + 0j
-                elif last[ix] == j - 1:
+                if carry and last[ix] == j - 1:
                     r = rot[ix]
                 else:
                     a = w * age_end[j]
@@ -227,7 +226,7 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
 
 
 def wake_spectra_reference(kx, ky, omega, gain, kcut2, age_end, duration, end_x, end_y,
-                           vel_x, vel_y, patch_a, patch_b, patch_c, patch_amp, floor_log,
+                           vel_x, vel_y, patch_a, patch_b, patch_c, patch_amp, joined, floor_log,
                            damping, tail, lateral, fields):
     """The same spectra as `wake_spectra_kernel`, by numpy over the lattice, piece by piece."""
     from ..physics.wake import segment_response

@@ -171,10 +171,22 @@ class Wake:
         s = r.spacing
         reach = self.energy_speed_ratio() * max(self._speeds(), default=0.0) * self.lookback
         x0, x1, y0, y1 = r.origin_x, r.origin_x + r.size, r.origin_y, r.origin_y + r.size
-        bx0 = min([x0] + [float(c.x.min()) for _, c in self._vessels])
-        bx1 = max([x1] + [float(c.x.max()) for _, c in self._vessels])
-        by0 = min([y0] + [float(c.y.min()) for _, c in self._vessels])
-        by1 = max([y1] + [float(c.y.max()) for _, c in self._vessels])
+        # Only the course within `reach` of the region can put waves on it; farther pieces are
+        # left out of every frame (`_piece_arrays`), so they set no padding either.
+        self._near = (x0 - reach, x1 + reach, y0 - reach, y1 + reach)
+        xs, ys = [x0, x1], [y0, y1]
+        for path in self._paths:
+            for i in range(path.times.size - 1):
+                cut = _clip_to_box(path.x[i], path.y[i], path.x[i + 1], path.y[i + 1], self._near)
+                if cut is not None:
+                    for f in cut:
+                        xs.append(path.x[i] + f * (path.x[i + 1] - path.x[i]))
+                        ys.append(path.y[i] + f * (path.y[i + 1] - path.y[i]))
+            for px, py in ((path.x[0], path.y[0]), (path.x[-1], path.y[-1])):
+                if _clip_to_box(px, py, px, py, self._near) is not None:
+                    xs.append(px)
+                    ys.append(py)
+        bx0, bx1, by0, by1 = min(xs), max(xs), min(ys), max(ys)
         span = max(x1 - bx0, bx1 - x0, y1 - by0, by1 - y0) + reach
         m = scipy.fft.next_fast_len(int(math.ceil(span / s)), real=True)
         m += m % 2
@@ -199,6 +211,9 @@ class Wake:
     # -- pieces of a frame -------------------------------------------------------------
 
     def _piece_arrays(self, t: float, exclude: int | None = None):
+        """The frame's pieces as kernel columns: ages, durations, end positions (relative to the
+        region's origin), velocities, the patch's quadratic form and amplitude, and whether
+        each piece ends where the one before it (same vessel, newer) began."""
         r = self.region
         cols = [[] for _ in range(11)]
         for v, ((hull, _), path, (ell, b)) in enumerate(zip(self._vessels, self._paths, self._patches)):
@@ -207,15 +222,30 @@ class Wake:
             amp = self.density * self.gravity * hull.draft * ell * b
             if amp == 0.0:
                 continue
+            newer_start = None
             for ta, tb, xb, yb, vx, vy, head in pieces(path, t, self.lookback):
+                cut = _clip_to_box(xb - vx * (tb - ta), yb - vy * (tb - ta), xb, yb, self._near)
+                if cut is None:
+                    newer_start = None
+                    continue
+                start = ta if cut[0] == 0.0 else ta + cut[0] * (tb - ta)
+                end = tb if cut[1] == 1.0 else ta + cut[1] * (tb - ta)
+                if end <= start:
+                    newer_start = None
+                    continue
+                joined = newer_start is not None and newer_start == end
+                newer_start = start
+                xe, ye = xb - vx * (tb - end), yb - vy * (tb - end)
                 c, s = math.cos(head), math.sin(head)
                 e2, b2 = ell * ell / (4 * math.pi), b * b / (4 * math.pi)
                 # (k·ê)²ℓ² + (k·ê⊥)²b² over 4π as a kx² + b ky² + c kx ky
-                row = (t - tb, tb - ta, xb - r.origin_x, yb - r.origin_y, vx, vy,
-                       c * c * e2 + s * s * b2, s * s * e2 + c * c * b2, 2 * c * s * (e2 - b2), amp)
+                row = (t - end, end - start, xe - r.origin_x, ye - r.origin_y, vx, vy,
+                       c * c * e2 + s * s * b2, s * s * e2 + c * c * b2, 2 * c * s * (e2 - b2), amp,
+                       1.0 if joined else 0.0)
                 for col, value in zip(cols, row):
                     col.append(value)
-        return [np.array(col, dtype=np.float64) for col in cols[:10]]
+        arrays = [np.array(col, dtype=np.float64) for col in cols[:10]]
+        return arrays + [np.array(cols[10], dtype=np.bool_)]
 
     def _spectra(self, t: float, fields: int, exclude: int | None = None, kernel: bool = True) -> NDArray[np.complex64]:
         from . import _wake_kernels as kern
@@ -416,6 +446,23 @@ class Wake:
                            f"pattern cannot form; allowed: a look-back of at least "
                            f"{2.0 * LOOKBACK_WAVELENGTHS * transverse / speed:.0f} s")
         return out
+
+
+def _clip_to_box(ax: float, ay: float, bx: float, by: float, box) -> tuple[float, float] | None:
+    """The fractions (f0, f1) of the segment a → b inside ``box`` (x0, x1, y0, y1), or None (slab clipping)."""
+    low, high = 0.0, 1.0
+    for a, d, lo, hi in ((ax, bx - ax, box[0], box[1]), (ay, by - ay, box[2], box[3])):
+        if d == 0.0:
+            if not lo <= a <= hi:
+                return None
+            continue
+        f0, f1 = (lo - a) / d, (hi - a) / d
+        if f0 > f1:
+            f0, f1 = f1, f0
+        low, high = max(low, f0), min(high, f1)
+        if low > high:
+            return None
+    return low, high
 
 
 def _check_time(t) -> float:
