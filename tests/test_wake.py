@@ -133,27 +133,6 @@ def test_padding_keeps_the_wake_from_wrapping_into_the_region():
     assert np.abs(small.height - inner).max() < 2e-3 * np.abs(inner).max()
 
 
-def test_a_per_frame_straight_course_merges_into_one_piece():
-    t = np.arange(0, 20, 1 / 24)
-    course = Course(times=t, x=3.0 * t, y=1.0 + 0.5 * t)
-    wake = Wake([(Hull(8, 3, 0.4), course)], WakeRegion(-10, -10, 100, 64), lookback=10.0)
-    pieces = wake._piece_arrays(15.0)
-    assert pieces[0].size == 1 and pieces[4][0] == pytest.approx(3.0) and pieces[5][0] == pytest.approx(0.5)
-
-
-def test_merged_pieces_stay_within_the_tolerance_of_the_samples():
-    course = _turning_course()
-    wake = Wake([(Hull(6.0, 2.0, 0.3), course)], WakeRegion(0, 0, 64, 64))
-    path = wake._paths[0]
-    assert path.times.size < course.times.size / 10
-    x = np.interp(course.times, path.times, path.x)
-    y = np.interp(course.times, path.times, path.y)
-    from oceanfield.physics.wake import patch_lengths
-    from oceanfield.surface.wake import MERGE_TOLERANCE
-
-    assert np.hypot(x - course.x, y - course.y).max() <= MERGE_TOLERANCE * patch_lengths(6.0, 2.0)[1] + 1e-12
-
-
 def test_foam_trail_follows_the_stern_and_fades_with_age():
     course = Course(times=[0.0, 20.0], x=[4.0, 64.0], y=[32.0, 32.0])  # 3 m/s, Fr_L 0.39
     wake = Wake([(Hull(6.0, 2.0, 0.3), course)], WakeRegion(0, 0, 64, 64), foam_lifetime=5.0)
@@ -167,29 +146,6 @@ def test_foam_trail_follows_the_stern_and_fades_with_age():
     for x in (10, 30):
         w2 = 1.0 + (46 - x) / 3.0 / 5.0
         assert foam[33, x] / foam[32, x] == pytest.approx((1 - 1 / w2) ** 2, rel=0.03)
-
-
-def test_course_interpolates_clamps_and_heads_along_its_velocity():
-    course = Course(times=[0.0, 10.0, 20.0], x=[0.0, 10.0, 10.0], y=[0.0, 0.0, 20.0])
-    x, y = course.position([-5.0, 5.0, 15.0, 30.0])
-    assert x == pytest.approx([0, 5, 10, 10]) and y == pytest.approx([0, 0, 10, 20])
-    vx, vy = course.velocity([-5.0, 5.0, 15.0, 30.0])
-    assert vx == pytest.approx([0, 1, 0, 0]) and vy == pytest.approx([0, 0, 2, 0])
-    assert course.heading_at([5.0, 15.0, 30.0]) == pytest.approx([0.0, 0.5 * math.pi, 0.5 * math.pi])
-    given = Course(times=[0.0, 1.0], x=[0.0, 1.0], y=[0.0, 0.0], heading=[0.1, 0.3])
-    assert given.heading_at(0.5) == pytest.approx(0.2)
-
-
-@pytest.mark.parametrize("times, x, message", [
-    ([0.0, 1.0, 1.0], [0, 1, 2], r"course row 2: time 1\.0 does not follow 1\.0"),
-    ([0.0, 2.0, 1.0], [0, 1, 2], r"course row 2: time 1\.0 does not follow 2\.0"),
-    ([0.0, 1.0, 2.0], [0, float("nan"), 2], r"course row 1: x = nan"),
-    ([0.0], [0], r"course times: 1 sample"),
-    ([0.0, 1.0], [0, 1, 2], r"course x: 3 values"),
-])
-def test_bad_courses_name_the_row(times, x, message):
-    with pytest.raises(ValueError, match=message):
-        Course(times=times, x=x, y=np.zeros(len(x)))
 
 
 def test_bad_hulls_regions_and_options_are_refused():
@@ -223,6 +179,10 @@ def test_notes_warn_of_high_froude_numbers_critical_depth_and_a_course_leaving_t
     calm = Wake([(Hull(10.0, 3.0, 0.5), Course(times=[0.0, 10.0], x=[10.0, 40.0], y=[30.0, 30.0]))],
                 WakeRegion(0, 0, 64, 64), lookback=60.0).notes()
     assert calm == []
+    # 3 m/s: transverse waves 5.8 m long; 5 s of look-back holds 7.5 m of them, under three
+    short = Wake([(Hull(10.0, 3.0, 0.5), Course(times=[0.0, 10.0], x=[10.0, 40.0], y=[30.0, 30.0]))],
+                 WakeRegion(0, 0, 64, 64), lookback=5.0).notes()
+    assert len(short) == 1 and "look-back of at least 12 s" in short[0]
 
 
 def test_for_sea_takes_the_water_from_the_sea_state():
@@ -244,3 +204,29 @@ def test_combine_adds_heights_and_slopes():
     total = combine(points(1.0, 0.1, 0.5), points(0.2, 0.05, -0.1))
     assert total.displacement[0, 2] == pytest.approx(1.2) and total.rise_rate[0] == pytest.approx(0.4)
     assert -total.normal[0, 0] / total.normal[0, 2] == pytest.approx(0.15)
+
+
+def test_probes_by_non_uniform_fft_match_the_direct_sums(monkeypatch):
+    import oceanfield.surface.wake as wake_module
+
+    wake = _small_wake(velocity=True)
+    rng = np.random.default_rng(1)
+    x, y = rng.uniform(0, 64, 40), rng.uniform(0, 64, 40)
+    direct = wake.surface_at(x, y, 17.0)
+    monkeypatch.setattr(wake_module, "NUFFT_ABOVE", 0)
+    spread = wake.surface_at(x, y, 17.0)
+    for name in ("displacement", "normal", "velocity", "jacobian"):
+        assert getattr(spread, name) == pytest.approx(getattr(direct, name), abs=1e-9), name
+
+
+def test_a_course_from_far_away_pads_only_for_what_can_reach_the_region():
+    """Pieces farther from the region than the waves can travel in the look-back are left
+    out, so a course starting 5 km away costs what one starting just out of reach does."""
+    hull, region = Hull(5.0, 2.0, 0.3), WakeRegion(0, 0, 64, 64)
+    far = Course(times=[0.0, 1060.0], x=[-5000.0, 60.0], y=[32.0, 32.0])   # 4.8 m/s
+    near = Course(times=[960.0, 1060.0], x=[far.position(960.0)[0], 60.0], y=[32.0, 32.0])
+    a = Wake([(hull, far)], region, lookback=20.0)
+    b = Wake([(hull, near)], region, lookback=20.0)
+    assert a.lattice_size == b.lattice_size < 4 * region.resolution
+    fa, fb = a.frame(1050.0), b.frame(1050.0)
+    assert np.abs(fa.height - fb.height).max() < 1e-5 * np.abs(fb.height).max()

@@ -15,6 +15,7 @@ nothing of presets, files or render jobs.
 ``modes``      ``WaveModes``: the sinusoids a sea sums, as arrays (``Ocean.modes()``)
 ``probes``     ``surface_at``: the displaced surface above any point, by exact sums
 ``bodies``     ``Body``, ``body_motion``: heave, pitch, roll of a floating waterplane
+``course``     ``Hull``, ``Course``, ``WakeRegion``: a moving body and where its wake is drawn
 ``wake``       ``Wake``: the linear wakes of moving hulls on a non-periodic region
 ``riding``     ``ride``: a body on a course (or standing) riding the sea plus the wakes
 =============  ====================================================================

@@ -7,16 +7,17 @@ hold it against.
 Why they are shaped this way:
 
 * ``wake_spectra_kernel`` makes one pass over the half lattice (kx ≥ 0, the layout of a
-  real inverse FFT), row by row in parallel. For each wave it walks the path pieces from
-  the newest to the oldest in a fixed order (so a frame's bits do not depend on which
-  frames came before) and adds each piece's closed-form time integral (see
-  ``physics.wake.segment_response``). The piece's position phase e^{−ik·x_b} and drift
-  e^{ik·VΔ} are products of one-dimensional factors (e^{−ikx·x}·e^{−iky·y}) computed once
-  per piece and row/column; the only transcendental a wave and piece need is
-  e^{iωΔ}, which also carries the age rotation e^{iω(t − τb)} from piece to piece by
-  multiplication. The pressure patch's Gaussian is recomputed only where a piece's
-  heading or hull differs from the previous one's. The kernel writes the spectra of the
-  eight (eleven with velocity) real fields, ready for ``scipy.fft.irfft2``.
+  real inverse FFT), row by row in parallel. In each row it walks the path pieces from
+  the newest to the oldest in a fixed order (so every wave sums its pieces in the same
+  order whatever frames came before) and, for the waves of the row inside the piece's
+  patch-spectrum ellipse (an interval of kx, solved from the quadratic, so waves outside
+  cost nothing), adds the piece's closed-form time integral (see
+  ``physics.wake.segment_response``). The position phase e^{−ik·x_b} and drift e^{ik·VΔ}
+  are products of one-dimensional factors (e^{−ikx·x}·e^{−iky·y}) computed once per
+  piece; the transcendentals a wave and piece need are e^{iωΔ}, which also carries the age
+  rotation e^{iω(t − τb)} on to the next piece when that one adds to the wave too, and the
+  patch's Gaussian. The kernel writes the spectra of the eight (eleven with velocity) real
+  fields, ready for ``scipy.fft.irfft2``.
 * ``wake_point_kernel`` sums the half-lattice spectrum at scattered points (probes).
 * ``foam_trail_kernel`` paints capsules along the path pieces of the foam look-back into
   the region's texels, visiting only each capsule's bounding box, and keeps the maximum
@@ -47,6 +48,8 @@ __all__ = [
     "wake_point_reference",
     "foam_trail_kernel",
     "foam_trail_reference",
+    "wake_surface_kernel",
+    "wake_surface_reference",
 ]
 
 #: Spectra written per frame: h, Dx, Dy, ∂h/∂x, ∂h/∂y, ∂Dx/∂x, ∂Dy/∂y, ∂Dx/∂y.
@@ -74,19 +77,32 @@ def _ratio(zr, zi, er, ei):  # pragma: no cover - compiled
     return complex((nr * zr + ni * zi) * inv, (ni * zr - nr * zi) * inv)
 
 
+@numba.njit(inline="always", cache=True)
+def _ratio_undamped(y, er, ei):  # pragma: no cover - compiled
+    """(1 − e^{−z})/z for z = −i·y, given e^{−z} = er + i·ei: i(1 − e^{−z})/y (series near 0)."""
+    if abs(y) < _SERIES_BELOW:
+        z = complex(0.0, -y)
+        return 1.0 - z * (0.5 - z * (1.0 / 6.0 - z * (1.0 / 24.0 - z / 120.0)))
+    inv = 1.0 / y
+    return complex(ei * inv, (1.0 - er) * inv)
+
+
 @numba.njit(parallel=True, cache=True, fastmath=False, nogil=True)
 def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, end_y,
-                        vel_x, vel_y, patch_a, patch_b, patch_c, patch_amp, floor_log,
+                        vel_x, vel_y, patch_a, patch_b, patch_c, patch_amp, joined, floor_log,
                         damping, tail, lateral, out):  # pragma: no cover - compiled
     """Fill ``out`` (F, M, M//2+1) complex64 with the wake's field spectra; see module doc.
 
     ``gain`` = −κ/(ρ ω A) per wave (0 where not evaluated), ``tail`` = e^{−εT}; a piece
     adds nothing to a wave where its patch spectrum is below e^{−floor_log} of its peak.
+    ``kx`` must be the lattice's non-negative wavenumbers 0, dk, 2dk, …; ``joined[j]``
+    says that piece j ends where piece j − 1 began (so its age rotation carries over).
     """
     m = ky.shape[0]
     mh = kx.shape[0]
     pieces = age_end.shape[0]
     velocity = out.shape[0] > 8
+    dk = kx[1] - kx[0]
     # one-dimensional factors per piece: e^{−ikx·x_b}, e^{−iky·y_b}, e^{ikx·vxΔ}, e^{iky·vyΔ}
     px = np.empty((pieces, mh), dtype=np.complex128)
     dxp = np.empty((pieces, mh), dtype=np.complex128)
@@ -111,45 +127,49 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
     scale = 1.0 / (1.0 - tail)
     for iy in numba.prange(m):
         kyv = ky[iy]
-        for ix in range(mh):
-            kxv = kx[ix]
-            k2 = kxv * kxv + kyv * kyv
-            g = gain[iy, ix]
-            if k2 > kcut2 or g == 0.0:
-                for f in range(out.shape[0]):
-                    out[f, iy, ix] = 0.0
+        jp = np.zeros(mh, dtype=np.complex128)   # damped, e^{+iω(t−τ)}
+        jm = np.zeros(mh, dtype=np.complex128)   # damped, e^{−iω(t−τ)}
+        zp0 = np.zeros(mh, dtype=np.complex128)  # undamped
+        zm0 = np.zeros(mh, dtype=np.complex128)
+        rot = np.ones(mh, dtype=np.complex128)   # e^{iω(t − τb)} after the last piece added
+        last = np.full(mh, -2, dtype=np.int64)   # that piece
+        # this row's live waves: |k|² ≤ kcut2
+        room = kcut2 - kyv * kyv
+        if room < 0.0:
+            ix_live = -1
+        else:
+            ix_live = min(mh - 1, int(math.sqrt(room) / dk) + 1)
+        for j in range(pieces):
+            # the waves of this row inside piece j's floor ellipse: a kx² + (c ky) kx + b ky² ≤ L,
+            # an interval of kx (widened by one wave and checked exactly below)
+            pa = patch_a[j]
+            pb = patch_b[j]
+            pc = patch_c[j]
+            lin = pc * kyv
+            rest = pb * kyv * kyv - floor_log
+            disc = lin * lin - 4.0 * pa * rest
+            if disc < 0.0:
                 continue
-            w = omega[iy, ix]
-            jp = 0j   # damped, e^{+iω(t−τ)}
-            jm = 0j   # damped, e^{−iω(t−τ)}
-            zp0 = 0j  # undamped
-            zm0 = 0j
-            rot = 1.0 + 0j  # e^{iω(t − τb)} of the current piece
-            carried = False  # whether rot holds it (carried from the piece before)
-            last_a = np.nan
-            last_b = np.nan
-            last_c = np.nan
-            last_amp = np.nan
-            patch = 0.0
-            for j in range(pieces):
-                if age_end[j] == 0.0:  # a vessel's newest piece: its rotation starts at 1
-                    rot = 1.0 + 0j
-                    carried = True
-                quad = patch_a[j] * kxv * kxv + patch_b[j] * kyv * kyv + patch_c[j] * kxv * kyv
-                if quad > floor_log:  # this wave is outside this piece's patch spectrum
-                    carried = False
+            root = math.sqrt(disc)
+            ix1 = max(0, int(math.floor((-lin - root) / (2.0 * pa) / dk)) - 1)
+            ix2 = min(ix_live, int(math.ceil((-lin + root) / (2.0 * pa) / dk)) + 1)
+            dur = duration[j]
+            carry = joined[j]
+            for ix in range(ix1, ix2 + 1):
+                kxv = kx[ix]
+                g = gain[iy, ix]
+                if g == 0.0 or kxv * kxv + kyv * kyv > kcut2:
                     continue
-                if not carried:
+                quad = pa * kxv * kxv + pb * kyv * kyv + pc * kxv * kyv
+                if quad > floor_log:
+                    continue
+                w = omega[iy, ix]
+                if carry and last[ix] == j - 1:
+                    r = rot[ix]
+                else:
                     a = w * age_end[j]
-                    rot = complex(math.cos(a), math.sin(a))
-                if (patch_a[j] != last_a or patch_b[j] != last_b or patch_c[j] != last_c
-                        or patch_amp[j] != last_amp):
-                    last_a = patch_a[j]
-                    last_b = patch_b[j]
-                    last_c = patch_c[j]
-                    last_amp = patch_amp[j]
-                    patch = last_amp * math.exp(-quad)
-                dur = duration[j]
+                    r = complex(math.cos(a), math.sin(a))
+                patch = patch_amp[j] * math.exp(-quad)
                 wd = w * dur
                 c = complex(math.cos(wd), math.sin(wd))
                 base = patch * dur * (px[j, ix] * py[j, iy])
@@ -162,19 +182,27 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
                 # damped: z± = εΔ − i(k·V ± ω)Δ, e^{−z±} = e^{−εΔ} q e^{±iωΔ}
                 ep = _ratio(ed, -(kv + wd), es * qc.real, es * qc.imag)
                 em = _ratio(ed, -(kv - wd), es * qcc.real, es * qcc.imag)
-                e0p = _ratio(0.0, -(kv + wd), qc.real, qc.imag)
-                e0m = _ratio(0.0, -(kv - wd), qcc.real, qcc.imag)
-                br = base * rot
-                brc = base * rot.conjugate()
+                e0p = _ratio_undamped(kv + wd, qc.real, qc.imag)
+                e0m = _ratio_undamped(kv - wd, qcc.real, qcc.imag)
+                br = base * r
+                brc = base * r.conjugate()
                 de = damp_end[j]
-                jp += de * br * ep
-                jm += de * brc * em
-                zp0 += br * e0p
-                zm0 += brc * e0m
-                rot = rot * c
-                carried = True
+                jp[ix] += (de * br) * ep
+                jm[ix] += (de * brc) * em
+                zp0[ix] += br * e0p
+                zm0[ix] += brc * e0m
+                rot[ix] = r * c
+                last[ix] = j
+        for ix in range(mh):
+            kxv = kx[ix]
+            k2 = kxv * kxv + kyv * kyv
+            g = gain[iy, ix]
+            if k2 > kcut2 or g == 0.0:
+                for f in range(out.shape[0]):
+                    out[f, iy, ix] = 0.0
+                continue
             # windowed sine and cosine integrals
-            sin_w = ((jp - jm) - tail * (zp0 - zm0)) * scale / 2j
+            sin_w = ((jp[ix] - jm[ix]) - tail * (zp0[ix] - zm0[ix])) * scale / 2j
             h = g * sin_w
             k = math.sqrt(k2)
             ux = kxv / k
@@ -189,16 +217,16 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
             out[6, iy, ix] = -lateral * kyv * uy * h
             out[7, iy, ix] = -lateral * kxv * uy * h
             if velocity:
-                cos_w = ((jp + jm) - tail * (zp0 + zm0)) * scale / 2.0
-                sin_d = (jp - jm) * scale / 2j
-                ht = g * (w * cos_w - damping * sin_d)
+                cos_w = ((jp[ix] + jm[ix]) - tail * (zp0[ix] + zm0[ix])) * scale / 2.0
+                sin_d = (jp[ix] - jm[ix]) * scale / 2j
+                ht = g * (omega[iy, ix] * cos_w - damping * sin_d)
                 out[8, iy, ix] = ht
                 out[9, iy, ix] = lateral * ux * 1j * ht
                 out[10, iy, ix] = lateral * uy * 1j * ht
 
 
 def wake_spectra_reference(kx, ky, omega, gain, kcut2, age_end, duration, end_x, end_y,
-                           vel_x, vel_y, patch_a, patch_b, patch_c, patch_amp, floor_log,
+                           vel_x, vel_y, patch_a, patch_b, patch_c, patch_amp, joined, floor_log,
                            damping, tail, lateral, fields):
     """The same spectra as `wake_spectra_kernel`, by numpy over the lattice, piece by piece."""
     from ..physics.wake import segment_response
@@ -234,6 +262,46 @@ def wake_spectra_reference(kx, ky, omega, gain, kcut2, age_end, duration, end_x,
         ht = np.where(live, gain * (omega * cos_w - damping * sin_d), 0)
         out += [ht, lateral * ux * 1j * ht, lateral * uy * 1j * ht]
     return np.stack(out).astype(np.complex64)
+
+
+@numba.njit(parallel=True, cache=True, fastmath=False, nogil=True)
+def wake_surface_kernel(planes, jac, normal, velocity):  # pragma: no cover - compiled
+    """Jacobian and unit normal of the displaced surface (and the velocity's three planes
+    gathered) on the region, the top-left n × n of the transformed ``planes``.
+
+    ``planes`` holds h, Dx, Dy, ∂h/∂x, ∂h/∂y, ∂Dx/∂x, ∂Dy/∂y, ∂Dx/∂y (then ∂h/∂t, ∂Dx/∂t,
+    ∂Dy/∂t); n ∝ ∂P/∂x × ∂P/∂y for P = (x + Dx, y + Dy, h), as the sea's surface kernel.
+    """
+    n = jac.shape[0]
+    gather = velocity.shape[0] > 0
+    for iy in numba.prange(n):
+        for ix in range(n):
+            sx = planes[3, iy, ix]
+            sy = planes[4, iy, ix]
+            jxx = 1.0 + planes[5, iy, ix]
+            jyy = 1.0 + planes[6, iy, ix]
+            jxy = planes[7, iy, ix]
+            j = jxx * jyy - jxy * jxy
+            nx = jxy * sy - sx * jyy
+            ny = sx * jxy - jxx * sy
+            norm = math.sqrt(nx * nx + ny * ny + j * j)
+            jac[iy, ix] = j
+            normal[iy, ix, 0] = nx / norm
+            normal[iy, ix, 1] = ny / norm
+            normal[iy, ix, 2] = j / norm
+            if gather:
+                velocity[iy, ix, 0] = planes[9, iy, ix]
+                velocity[iy, ix, 1] = planes[10, iy, ix]
+                velocity[iy, ix, 2] = planes[8, iy, ix]
+
+
+def wake_surface_reference(planes, n):
+    """The same Jacobian and normal by numpy: (jac, normal)."""
+    h, dx, dy, sx, sy, dxx, dyy, dxy = (p[:n, :n].astype(np.float64) for p in planes[:8])
+    jxx, jyy = 1.0 + dxx, 1.0 + dyy
+    jac = jxx * jyy - dxy * dxy
+    normal = np.stack([dxy * sy - sx * jyy, sx * dxy - jxx * sy, jac], axis=-1)
+    return jac, normal / np.linalg.norm(normal, axis=-1, keepdims=True)
 
 
 #: Columns of the point kernel's output.
