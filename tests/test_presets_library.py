@@ -30,18 +30,13 @@ BEAUFORT_HEIGHTS = {
 
 #: Warnings each shipped preset is meant to raise (every shipped sea fits its tile): the boat
 #: chase's launches plane (hull Froude numbers above 0.5), which the wake says it draws only
-#: as a picture, and its look-back is shorter than its region is wide (the region holds the
-#: whole trail over the look-back, by design).
+#: as a picture.
 INTENDED_WARNINGS: dict[str, list[str]] = {
     "headland_launch_chase": [
         "wake: vessel `lead`: hull Froude number U/√(gL) reaches 1.46 (above 0.5): the hull climbs its bow wave "
         "or planes; the linear wake is a picture, its visible angle narrows below 19.5° in reality",
-        "wake: vessel `lead`: in a 30 s look-back the transverse waves reach 206 m behind the hull, less than the "
-        "region's 750 m; a longer look-back lengthens the wake",
         "wake: vessel `chaser`: hull Froude number U/√(gL) reaches 1.30 (above 0.5): the hull climbs its bow wave "
         "or planes; the linear wake is a picture, its visible angle narrows below 19.5° in reality",
-        "wake: vessel `chaser`: in a 30 s look-back the transverse waves reach 203 m behind the hull, less than the "
-        "region's 750 m; a longer look-back lengthens the wake",
     ],
 }
 
