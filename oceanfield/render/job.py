@@ -307,7 +307,9 @@ def run_render_command(args) -> int:
     if not plan.frames:
         print(f"nothing to render: chunk {args.chunk} of {len(parse_frames(args.frames, preset.time.frames))} frames is empty")
         return 0
-    print(f"rendering {_count(len(plan.frames), 'frame')} of {preset.name} ({', '.join(preset.maps)}) into {plan.folder}")
+    wake = f", and the wake of {_count(len(preset.vessels), 'vessel')} (wake_*)" if preset.vessels else ""
+    print(f"rendering {_count(len(plan.frames), 'frame')} of {preset.name} ({', '.join(preset.maps)}{wake}) "
+          f"into {plan.folder}")
     cores = os.cpu_count() or 1
     workers = args.workers if args.workers is not None else default_workers(plan, cores=cores)
     building = None
