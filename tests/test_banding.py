@@ -177,3 +177,38 @@ def test_probe_on_a_laid_out_banded_preset_reports_every_band(tmp_path, capsys):
     parts = [surface_at(o.modes(bound_share=1.0), *rest, 0.0, invert=False).displacement[2] for o in stack.oceans]
     # float64 sums of the same modes in another grouping: roundoff only
     assert record["height_m"] == pytest.approx(sum(parts), abs=1e-9)
+
+
+def test_stats_json_of_the_shipped_banded_preset_carries_its_mean_square_slope(capsys):
+    """Issue 24: ``stats --json`` of open_ocean_horizon reports the top-level
+    ``mean_square_slope`` (not under ``tile`` or ``total``: a missing key reads null in a
+    JSON query tool): a number, the sum of its bands', and within the ±0.004 scatter of
+    Cox & Munk's (1954) clean-surface fit 0.003 + 5.12e-3 U at its 9.5 m/s wind (the fit
+    from memory, see REFERENCES.md)."""
+    import json
+
+    from oceanfield.cli import main
+
+    assert main(["stats", "open_ocean_horizon", "--json"]) == 0
+    report = json.loads(capsys.readouterr().out)
+    slope = report["mean_square_slope"]
+    assert isinstance(slope, float)
+    assert slope == pytest.approx(sum(b["mean_square_slope"] for b in report["bands"]), rel=1e-12)
+    assert slope == pytest.approx(0.003 + 5.12e-3 * 9.5, abs=0.004)
+    assert report["cox_munk_mean_square_slope"] == pytest.approx(0.003 + 5.12e-3 * 9.5, rel=1e-12)
+
+
+@pytest.mark.parametrize("key, value, attribute", [("tile.wave_heights", "random", "wave_heights"),
+                                                   ("surface.whitecap_scale", 2.0, "whitecap_scale")])
+def test_a_banded_preset_builds_its_bands_with_its_own_tile_and_surface_settings(tmp_path, key, value, attribute):
+    """Issue 24 (found re-measuring Hs): every band of a stack is built with the preset's
+    ``tile.wave_heights`` and ``surface.whitecap_scale`` (they were left at their defaults,
+    so ``wave_heights: random`` still held every ring to its target)."""
+    from oceanfield.preset.banding import band_stack
+
+    preset = load_preset(_write(tmp_path, SMALL), overrides=[f"{key}={value}"])
+    stack = band_stack(preset, foam_memory=0.0)
+    assert {getattr(ocean, attribute) for ocean in stack.oceans} == {value}
+    if attribute == "wave_heights":  # freely drawn: some band strays from its target
+        ratios = [ocean.realised_variance / ocean.lattice_variance for ocean in stack.oceans]
+        assert max(abs(r - 1.0) for r in ratios) > 0.02

@@ -193,8 +193,9 @@ def test_displaced_surface_has_second_order_statistics():
 
 def test_mean_level_is_the_set_down_in_finite_depth():
     """In 8 m of water the mean level of the displaced surface is the second-order set-down
-    −Σ aᵢ² kᵢ / (2 sinh 2kᵢh) (Longuet-Higgins & Stewart 1964, Deep-Sea Res. 11), within
-    10 %, the sum taken over the tile's drawn amplitudes."""
+    −Σ aᵢ² kᵢ / (2 sinh 2kᵢh) (Longuet-Higgins & Stewart 1962, J. Fluid Mech. 13, the
+    set-down beneath groups; the form as in Longuet-Higgins & Stewart 1964, Deep-Sea Res.
+    11), within 10 %, the sum taken over the tile's drawn amplitudes."""
     depth = 8.0
     sea = _sea(hs=1.5, tp=9.0, spread_deg=20.0, depth=depth)
     ocean = Ocean(sea, Tile(400.0, 128), seed=2, bound_waves=True)
@@ -381,3 +382,34 @@ def test_bound_modes_sum_to_the_bound_height_for_probes():
     assert len(ocean.modes(bound_share=1.0)) == len(ocean.modes()) - len(most) + len(every)
     with pytest.raises(ValueError, match="bound_share: 0 is not allowed"):
         ocean.modes(bound_share=0)
+
+
+@pytest.mark.parametrize("name", ["fresh_chop", "storm_force_ten"])
+def test_the_height_map_sits_above_still_water_by_what_the_displacement_takes_back(name):
+    """Issue 24's +0.074 σ is the mean of the height *map*, not of the water at fixed points:
+    each texel holds the height at its rest position, and lateral displacement lowers the
+    surface seen at fixed points by ½λ Σ k a² (the trochoid's drop: a = 2|h0| per lattice
+    wave, so 2λ Σ k |h0|²); the bound waves add that back so that the displaced surface is
+    level. On shipped deep-water presets (at 128², 16 frames two peak periods apart): the
+    map's mean is 2λ Σ k|h0|² to 1 %, and the displaced surface resampled at fixed points
+    has |mean| ≤ 0.02 σ (still water in deep water at second order; Longuet-Higgins 1963;
+    the set-down in finite depth is the test above, Longuet-Higgins & Stewart 1964)."""
+    from oceanfield.preset import load_preset
+
+    preset = load_preset(name, overrides=["tile.resolution=128"])
+    ocean = Ocean.from_preset(preset, foam_memory=0.0)
+    assert ocean.bound is not None
+    ky, kx = ocean.tile.wavenumbers()
+    drop = 2.0 * ocean.lateral_factor * float(np.sum(np.hypot(kx, ky) * np.abs(ocean.amplitudes.astype(complex)) ** 2))
+    tp = ocean.sea_state.statistics().tp
+    raw, fixed = [], []
+    for i in range(16):
+        fields = ocean.frame(0.37 + 2.0 * i * tp)
+        height = fields.height.astype(np.float64)
+        raw.append(height.mean())
+        eta, _ = resample_displaced(fields.height, fields.displacement_x, fields.displacement_y, ocean.tile.spacing)
+        fixed.append(eta.mean() / eta.std())
+    sigma = math.sqrt(ocean.realised_variance)
+    assert drop / sigma > 0.05  # the check can fail: a tenth of σ for these seas
+    assert np.mean(raw) == pytest.approx(drop, rel=0.01)
+    assert abs(np.mean(fixed)) <= 0.02

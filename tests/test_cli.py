@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import json
+import math
 import re
 import subprocess
 import sys
@@ -275,3 +276,33 @@ def test_small_seas_keep_their_figures_in_the_tables(capsys):
     pond = next(l for l in lines if l.startswith("pond_ripples"))
     assert pond.split()[1:4] == ["0.01", "0.30", "0.142"]
     assert next(l for l in lines if l.startswith("shallow_coastal")).split()[1] == "0.80"
+
+
+@pytest.mark.parametrize("settings, cause", [
+    (("tile.size_m=200",), "waves too long for the 200 m tile: raise tile.size_m"),
+    (("tile.resolution=16",), "shorter than two texels: raise tile.resolution"),
+])
+def test_stats_says_why_a_tile_cannot_hold_the_hs_asked_and_what_to_change(capsys, settings, cause, tmp_path):
+    """Issue 24: with wave heights as requested a tile's variance is its lattice's
+    Σ Ψ Δk² exactly, so its Hs is 4√(captured share · m0); where that is more than 2 % off
+    the Hs asked, ``stats`` says so in words (the share missing, and whether it is in waves
+    too long for the tile or too short for its texels) and ``--json`` carries the figures.
+    long_swell on a 200 m tile (0.6 peak wavelengths) and fresh_chop at 16² (10 m texels
+    against its 49.5 m peak)."""
+    name = "long_swell" if "size" in settings[0] else "fresh_chop"
+    overrides = [item for setting in settings for item in ("--set", setting)]
+    assert main(["stats", name, "--json", *overrides]) == 0
+    report = json.loads(capsys.readouterr().out)
+    tile = report["tile"]
+    captured = tile["captured_variance_share"]
+    assert tile["realised_over_requested_hs"] == pytest.approx(math.sqrt(captured), rel=1e-6)
+    assert tile["realised_over_requested_hs"] < 0.98
+    assert tile["long_wave_share"] + tile["unresolved_short_wave_share"] == pytest.approx(1.0 - captured, abs=1e-9)
+    assert cause in tile["hs_shortfall"]
+    assert f"{tile['realised_over_requested_hs'] * 100:.0f} % of the" in tile["hs_shortfall"]
+    assert main(["stats", name, *overrides]) == 0
+    assert cause in capsys.readouterr().out
+    # the shipped preset holds its Hs: nothing to explain
+    assert main(["stats", name, "--json", "--set", "tile.resolution=64"]) == 0
+    shipped = json.loads(capsys.readouterr().out)["tile"]
+    assert shipped["hs_shortfall"] is None and shipped["realised_over_requested_hs"] == pytest.approx(1.0, abs=0.02)

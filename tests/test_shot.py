@@ -318,3 +318,69 @@ def test_csv_cells_keep_full_precision():
     text = format_csv(["a_m", "name"], [[1.0 / 3.0, "x"], [float("nan"), "y"]])
     assert text.splitlines() == ["a_m,name", "0.3333333333333333,x", ",y"]
     assert math.isnan(float("nan"))
+
+
+@pytest.mark.parametrize("up_axis", ["z", "y"])
+@pytest.mark.parametrize("file_format", ["exr", "png"])
+def test_every_documented_reading_of_the_maps_agrees_with_the_probe(tmp_path, preset_file, capsys, up_axis,
+                                                                     file_format):
+    """Issue 24: a probe above a texel's displaced position against the rendered maps read
+    each way the README documents — the file's rows (row r holds tile row N − 1 − r), the
+    sequence reader (row 0 = y = 0) and the analyzer's ``--crop X,Y,SIZE`` region with its
+    channel layout for the up axis — agree to half-float precision (EXR; IEEE 754-2008's
+    11-bit significand) or to the 16-bit PNG's step (its sidecar's range over 65535), for
+    Z-up and Y-up scenes, in metres."""
+    from oceanfield.io.png import read_png16
+    from oceanfield.io.sequence import choose_layout, parse_crop, read_channels
+
+    settings = {"maps": ["displacement"], "scene": {"metres_per_unit": 1.0, "up_axis": up_axis},
+                "output": {"precision": "half", "format": file_format}}
+    path = preset_file(settings=settings)
+    maps = tmp_path / "maps"
+    assert main(["render", str(path), "--frames", "1003", "--out", str(maps), "--workers", "1"]) == 0
+    preset = load_preset(path)
+    n = preset.tile.resolution
+    texels, x, y = _texels_that_do_not_fold(preset, preset.time.frame_time(1003), 10)
+    out = tmp_path / "probes.json"
+    at = [item for i in range(len(x)) for item in ("--at", f"t{i}={float(x[i])!r},{float(y[i])!r}")]
+    assert main(["probe", str(path), "--frames", "1003", "--out", str(out), *at]) == 0
+    capsys.readouterr()
+    records = json.loads(out.read_text())["records"]
+    file = maps / "tiny" / f"displacement.1003.{file_format}"
+    if file_format == "exr":
+        raw, _ = read_exr(file)
+        raw = np.stack([raw[c] for c in "RGB"], axis=-1)
+        step = 0.0
+    else:
+        raw, (low, high) = read_png16(file)
+        step = (high - low) / 65535.0
+    relative = HALF_EPSILON if file_format == "exr" else 0.0
+    channels, attributes = read_channels(file)
+    layout = choose_layout(channels, attributes, channel=None, up_axis=up_axis, path=file)  # as the analyzer does
+    x_name, x_sign, y_name, y_sign = layout.lateral
+    crop_x, crop_y, side = parse_crop(f"{n // 4},{n // 2},{n // 2}", n, n, min_size=16)
+    region = (slice(crop_y, crop_y + side), slice(crop_x, crop_x + side))
+    cropped = {name: channels[name][region] for name in (layout.height, x_name, y_name)}
+    axes = scene_axes(up_axis)  # internal (x, y, z) → scene (X, Y, Z)
+    checked = 0
+    for record, (iy, ix) in zip(records, texels):
+        probe = np.array([record[f"displacement_{axis}_m"] for axis in "XYZ"])
+        readings = {
+            "file rows": raw[n - 1 - iy, ix],
+            "sequence reader": np.array([channels[c][iy, ix] for c in "RGB"]),
+        }
+        for name, value in readings.items():
+            for axis in range(3):
+                tolerance = relative * abs(value[axis]) + step + 1e-6
+                assert abs(probe[axis] - value[axis]) <= tolerance, (name, axis, probe, value)
+        # the analyzer's crop and layout: height, and the lateral displacement in internal axes
+        if crop_y <= iy < crop_y + side and crop_x <= ix < crop_x + side:
+            row, col = iy - crop_y, ix - crop_x
+            internal = axes.T @ probe  # scene → internal (the axis map is orthogonal)
+            got = (cropped[layout.height][row, col], x_sign * cropped[x_name][row, col],
+                   y_sign * cropped[y_name][row, col])
+            for want, value in zip((internal[2], internal[0], internal[1]), got):
+                assert abs(want - value) <= relative * abs(value) + step + 1e-6
+            checked += 1
+    assert len(records) == 10
+    assert checked >= 1  # the crop holds some of the probed texels
