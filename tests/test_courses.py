@@ -179,3 +179,24 @@ def test_course_samples_refuse_a_file_changed_after_loading(tmp_path):
     (tmp_path / "run.csv").write_text("frame,x_m,y_m\n1,0,0\n2,2,0\n", encoding="utf-8")
     with pytest.raises(ValueError, match="changed after the preset was loaded"):
         course_samples(preset.vessels[0].course, preset.time)
+
+
+def test_a_usd_layout_without_units_takes_the_scenes(tmp_path):
+    """No metersPerUnit or upAxis in the layout: the preset's scene section says what they are."""
+    pytest.importorskip("pxr")
+    from pxr import Gf, Usd, UsdGeom
+
+    layout = tmp_path / "bare.usda"
+    stage = Usd.Stage.CreateNew(str(layout))
+    stage.SetTimeCodesPerSecond(24)
+    op = UsdGeom.Xform.Define(stage, "/Boat").AddTranslateOp()
+    op.Set(Gf.Vec3d(0.0, 0.0, 0.0), 1001)
+    op.Set(Gf.Vec3d(4.0, 2.0, 0.0), 1013)
+    stage.GetRootLayer().Save()
+    path = _preset(tmp_path, "      usd_file: bare.usda\n      prim: /Boat\n")
+    text = path.read_text(encoding="utf-8") + "scene: {up_axis: z, metres_per_unit: 0.5}\n"
+    path.write_text(text, encoding="utf-8")
+    samples = vessel_samples(load_preset(path))[0]
+    np.testing.assert_allclose(samples.times, [0.0, 0.5])
+    np.testing.assert_allclose(samples.x, [0.0, 2.0])  # Z-up: (x, y) = (X, Y) × 0.5 m
+    np.testing.assert_allclose(samples.y, [0.0, 1.0])

@@ -161,3 +161,16 @@ def test_a_wake_section_without_vessels_is_refused(preset_file):
     with pytest.raises(PresetError) as caught:
         load_preset(preset_file("bare", settings={"tile": {"resolution": 32}, "wake": {"lookback_s": 10}}))
     assert len(caught.value.messages) == 1 and "wake: has no effect: the preset has no vessels" in caught.value.messages[0]
+
+
+def test_the_readme_example_loads(tmp_path):
+    """The YAML under README's "Boats and their wakes" is a preset that loads as written."""
+    import re
+
+    text = (Path(__file__).resolve().parent.parent / "README.md").read_text(encoding="utf-8")
+    section = text[text.index("### Boats and their wakes"):]
+    block = re.search(r"```yaml\n(.*?)```", section, re.S).group(1)
+    path = tmp_path / "example.yaml"
+    path.write_text(block, encoding="utf-8")
+    preset = load_preset(path)
+    assert [v.name for v in preset.vessels] == ["lead"] and preset.wake.lookback_s == 60.0

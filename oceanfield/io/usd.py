@@ -259,15 +259,16 @@ class PrimTrack:
 
     ``codes`` are the time codes sampled (increasing), ``points`` (codes, 3) the prim's
     world-space origin at each in the stage's own units and axes, with the stage's
-    ``metres_per_unit``, ``up_axis`` (``"y"`` or ``"z"``) and ``codes_per_second``.
+    ``metres_per_unit``, ``up_axis`` (``"y"`` or ``"z"``; each None where the layout does
+    not author it) and ``codes_per_second``.
     """
 
     path: Path
     prim: str
     codes: NDArray[np.float64]
     points: NDArray[np.float64]
-    metres_per_unit: float
-    up_axis: str
+    metres_per_unit: float | None
+    up_axis: str | None
     codes_per_second: float
 
 
@@ -320,6 +321,8 @@ def read_prim_track(path: str | os.PathLike[str], prim: str) -> PrimTrack:
         cache.SetTime(Usd.TimeCode(float(code)))
         translation = cache.GetLocalToWorldTransform(found).ExtractTranslation()
         points[i] = (translation[0], translation[1], translation[2])
-    up = str(UsdGeom.GetStageUpAxis(stage)).lower()
-    return PrimTrack(path, prim, ordered, points, float(UsdGeom.GetStageMetersPerUnit(stage)), up,
-                     float(stage.GetTimeCodesPerSecond()))
+    # USD's fallbacks when a layout does not say (centimetres, Y up) are left to the caller
+    authored = stage.HasAuthoredMetadata
+    metres = float(UsdGeom.GetStageMetersPerUnit(stage)) if authored("metersPerUnit") else None
+    up = str(UsdGeom.GetStageUpAxis(stage)).lower() if authored("upAxis") else None
+    return PrimTrack(path, prim, ordered, points, metres, up, float(stage.GetTimeCodesPerSecond()))

@@ -10,7 +10,7 @@ three ways (exactly one)::
         - {frame: 1048, x_m: 40, y_m: 35, heading_deg: 30}
       file: chase_boat.csv           # or: a CSV table of frame (or time_s), x_m, y_m[, heading_deg]
       usd_file: layout.usda          # or: the animated translate of a prim in a USD layout
-      prim: /Layout/ChaseBoat
+      prim: /Layout/ChaseBoat        #   (its metersPerUnit and upAxis; the preset's scene where unset)
       sha256: null                   # optional pin for file or usd_file: the file must have this digest
 
 Positions are tile metres (x along the tile's +x, y along +y); headings degrees
@@ -98,11 +98,12 @@ class CourseError(ValueError):
 # -- reading the section -------------------------------------------------------------------
 
 
-def read_course(sec: Section, time: Any) -> Any:
+def read_course(sec: Section, time: Any, scene: Any = None) -> Any:
     """The ``course`` mapping of a vessel as :class:`CourseSettings`, or ``BAD``.
 
     ``time`` is the preset's :class:`~oceanfield.preset.settings.TimeSettings` (frames
-    become times), or ``BAD`` when it did not read (then frame keys are not checked).
+    become times), or ``BAD`` when it did not read (then frame keys are not checked);
+    ``scene`` its ``SceneSettings`` (a USD layout's units and axes where it has none).
     """
     keys_node, file_node, usd_node = sec.node("keys"), sec.node("file"), sec.node("usd_file")
     prim = sec.text("prim", "") or None
@@ -141,7 +142,7 @@ def read_course(sec: Section, time: Any) -> Any:
                                   usd_file=str(path) if key == "usd_file" else None, prim=prim, sha256=digest)
     if valid(time):
         try:
-            course_samples(settings, time, where=sec.path)
+            course_samples(settings, time, scene=scene if valid(scene) else None, where=sec.path)
         except CourseError as error:  # at the key's own line
             item = keys_node.value[error.key]
             return _fail_at(sec, item, f"{sec.path}.keys.{error.key}", error.name, str(error).split(": ", 1)[1])
@@ -212,11 +213,13 @@ def _file_digest(path: Path) -> str:
 # -- the course in SI units ------------------------------------------------------------------
 
 
-def course_samples(course: CourseSettings, time, *, where: str = "course") -> CourseSamples:
+def course_samples(course: CourseSettings, time, *, scene=None, where: str = "course") -> CourseSamples:
     """The course sampled into times and positions (SI units, radians), ready for a ``Course``.
 
-    ``time`` is the preset's :class:`~oceanfield.preset.settings.TimeSettings`. Smooth
-    courses are sampled at the frame rate between their first and last keys.
+    ``time`` is the preset's :class:`~oceanfield.preset.settings.TimeSettings`; ``scene``
+    its ``SceneSettings``, whose metres per unit and up axis stand for a USD layout's where
+    the layout does not author them (None: metres, Y up). Smooth courses are sampled at
+    the frame rate between their first and last keys.
 
     Raises
     ------
@@ -248,7 +251,7 @@ def course_samples(course: CourseSettings, time, *, where: str = "course") -> Co
         if course.file is not None:
             times, x, y, heading, origins = _table_course(Path(course.file), time)
         else:
-            times, x, y, heading, origins = _usd_course(Path(course.usd_file), course.prim, time)
+            times, x, y, heading, origins = _usd_course(Path(course.usd_file), course.prim, time, scene)
     if course.interpolation == "smooth":
         times, x, y, heading, origins = _smooth(times, x, y, heading, origins, time.fps)
     return CourseSamples(times, x, y, heading, origins)
@@ -302,15 +305,17 @@ def _table_course(path: Path, time):
     return np.asarray(times, dtype=np.float64), columns["x_m"], columns["y_m"], heading, origins
 
 
-def _usd_course(path: Path, prim: str, time):
+def _usd_course(path: Path, prim: str, time, scene):
     from ..io.usd import read_prim_track
 
     track = read_prim_track(path, prim)  # ValueError: one line (usd-core missing, no prim, ...)
-    if track.up_axis == "z":
+    up = track.up_axis or (scene.up_axis if scene is not None else "y")
+    metres = track.metres_per_unit or (scene.metres_per_unit if scene is not None else 1.0)
+    if up == "z":
         x, y = track.points[:, 0], track.points[:, 1]
     else:  # Y-up: scene (X, Y, Z) = (x, z, -y), so x = X and y = -Z (surface.maps.scene_axes)
         x, y = track.points[:, 0], -track.points[:, 2]
-    x, y = x * track.metres_per_unit, y * track.metres_per_unit
+    x, y = x * metres, y * metres
     if not np.all(np.isfinite(track.points)):
         bad = int(np.flatnonzero(~np.all(np.isfinite(track.points), axis=1))[0])
         raise ValueError(f"{path}: `{prim}` at time code {track.codes[bad]:g}: the translate is not finite")

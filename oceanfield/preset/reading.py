@@ -77,12 +77,12 @@ def _build_preset(tree: Node, errors: list[str], path: Path, allow_outside_outpu
                     if valid(tile) and getattr(tile, str(key), None) != getattr(_DEFAULT_TILE, str(key), None)}
     bands = read_bands(top.section("bands"), tile_written=tile_written, maps=maps,
                        multilayer=output.multilayer if valid(output) else None)
-    vessels = read_vessels(top, time)
+    vessels = read_vessels(top, time, scene)
     wake_section = top.section("wake")
     wake = read_wake(wake_section)
     if valid(vessels, wake) and not vessels and wake != NO_WAKE:
         wake = wake_section.fail("", "has no effect: the preset has no vessels (add vessels, or leave wake out)")
-    check_region(wake_section, vessels, wake, time)
+    check_region(wake_section, vessels, wake, time, scene)
     context.report_unknown_keys()
     if valid(bands) and valid(sea) and bands.active and "surface_tension_npm" not in sea_section.items:
         # Bands reaching ripples shorter than ~10 cm: clean water's surface tension by default.

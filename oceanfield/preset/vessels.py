@@ -84,7 +84,7 @@ NO_WAKE = WakeSettings()
 # -- reading -----------------------------------------------------------------------------------
 
 
-def read_vessels(top: Section, time: Any) -> Any:
+def read_vessels(top: Section, time: Any, scene: Any = None) -> Any:
     """The top-level ``vessels`` list as a tuple of :class:`VesselSettings` (``()`` when absent)."""
     node = top.node("vessels")
     if node is None or node.value is None or node.value == []:
@@ -109,7 +109,8 @@ def read_vessels(top: Section, time: Any) -> Any:
         if course_node is None or course_node.value is None:
             course = sec.fail("", "needs a course (keys, a file or a usd_file with its prim)")
         else:
-            course = read_course(Section(top.context, course_node, f"vessels.{index}.course", sec.where), time)
+            course = read_course(Section(top.context, course_node, f"vessels.{index}.course", sec.where), time,
+                                 scene)
         if valid(length, beam) and length is not None and beam is not None and beam > length:
             beam = sec.fail("beam_m", f"`{beam:g}` is wider than the hull is long ({length:g} m)")
         if not valid(name, length, beam, draft, course) or None in (length, beam, draft):
@@ -138,16 +139,16 @@ def read_wake(sec: Section) -> Any:
     return WakeSettings(origin_x, origin_y, size, resolution, lookback)
 
 
-def check_region(sec: Section, vessels: Any, wake: Any, time: Any) -> None:
+def check_region(sec: Section, vessels: Any, wake: Any, time: Any, scene: Any = None) -> None:
     """An explicit region must hold every course over the frames and their look-back (what
     any frame depends on; a course may start far away before that): one line naming the
     key, row or sample where a vessel is outside."""
-    if not valid(vessels, wake, time) or not vessels or wake.size_m is None:
+    if not valid(vessels, wake, time, scene) or not vessels or wake.size_m is None:
         return
     x0, y0, size = wake.origin_x_m, wake.origin_y_m, wake.size_m
     start, end = time.frame_time(time.first_frame) - wake.lookback_s, time.frame_time(time.last_frame)
     for index, vessel in enumerate(vessels):
-        samples = course_samples(vessel.course, time, where=f"vessels.{index}.course")
+        samples = course_samples(vessel.course, time, scene=scene, where=f"vessels.{index}.course")
         t, x, y, origins = _windowed(samples, start, end)
         outside = np.flatnonzero((x < x0) | (x > x0 + size) | (y < y0) | (y > y0 + size))
         if outside.size:
@@ -180,7 +181,7 @@ def vessel_samples(preset) -> tuple[CourseSamples, ...]:
     """Each vessel's course sampled in SI units (built once per preset)."""
     cached = preset.__dict__.get("_vessel_samples")
     if cached is None:
-        cached = tuple(course_samples(v.course, preset.time, where=f"vessels.{i}.course")
+        cached = tuple(course_samples(v.course, preset.time, scene=preset.scene, where=f"vessels.{i}.course")
                        for i, v in enumerate(preset.vessels))
         object.__setattr__(preset, "_vessel_samples", cached)  # frozen: a cache, not a field
     return cached
