@@ -60,7 +60,7 @@ def test_point_and_foam_kernels_match_their_references():
 
 def test_a_hull_at_rest_sinks_the_water_by_its_draft():
     """Statics: the patch's peak pressure ρ g d depresses the surface by d where the patch
-    is large against its waves (Lamb 1932 §238: the steady Cauchy–Poisson limit is −p/ρg);
+    is large against its waves (the steady limit of the Cauchy–Poisson integral is −p/ρg: Lamb 1932, ch. IX, from memory);
     the periodic lattice's zero mean lifts it by the displaced volume over the lattice."""
     hull = Hull(20.0, 8.0, 0.5)
     wake = Wake([(hull, Course(times=[0, 1], x=[32, 32], y=[32, 32]))], WakeRegion(0, 0, 64, 64), lookback=300.0)
