@@ -230,3 +230,13 @@ def test_a_course_from_far_away_pads_only_for_what_can_reach_the_region():
     assert a.lattice_size == b.lattice_size < 4 * region.resolution
     fa, fb = a.frame(1050.0), b.frame(1050.0)
     assert np.abs(fa.height - fb.height).max() < 1e-5 * np.abs(fb.height).max()
+
+
+def test_the_kernels_cosine_and_sine_are_within_an_ulp_of_numpys():
+    rng = np.random.default_rng(0)
+    for scale in (1.0, 1e3, 1e5):
+        x = rng.uniform(-scale, scale, 20000)
+        out = np.empty(x.size, complex)
+        kern.cis_kernel(x, out)
+        assert np.abs(out.real - np.cos(x)).max() <= 2.3e-16
+        assert np.abs(out.imag - np.sin(x)).max() <= 2.3e-16

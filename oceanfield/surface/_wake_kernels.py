@@ -50,6 +50,7 @@ __all__ = [
     "foam_trail_reference",
     "wake_surface_kernel",
     "wake_surface_reference",
+    "cis_kernel",
 ]
 
 #: Spectra written per frame: h, Dx, Dy, ∂h/∂x, ∂h/∂y, ∂Dx/∂x, ∂Dy/∂y, ∂Dx/∂y.
@@ -58,6 +59,49 @@ FIELD_COUNT = 8
 VELOCITY_FIELD_COUNT = 11
 
 _SERIES_BELOW = 1e-2  # |z| below which (1 − e^{−z})/z is its Taylor series (error < 1e-14)
+
+# cos and sin on [−π/4, π/4]: the minimax polynomials of fdlibm's __kernel_sin / __kernel_cos
+# (Sun Microsystems, 1993; freely distributable), with Cody & Waite's reduction by π/2.
+_S1, _S2, _S3 = -1.66666666666666324348e-01, 8.33333333332248946124e-03, -1.98412698298579493134e-04
+_S4, _S5, _S6 = 2.75573137070700676789e-06, -2.50507602534068634195e-08, 1.58969099521155010221e-10
+_C1, _C2, _C3 = 4.16666666666666019037e-02, -1.38888888888741095749e-03, 2.48015872894767294178e-05
+_C4, _C5, _C6 = -2.75573143513906633035e-07, 2.08757232129817482790e-09, -1.13596475577881948265e-11
+_TWO_OVER_PI = 6.36619772367581382433e-01
+_PIO2_1 = 1.57079632673412561417e+00    # the first 33 bits of π/2
+_PIO2_1T = 6.07710050650619224932e-11   # π/2 − _PIO2_1
+
+
+@numba.njit(inline="always", cache=True)
+def _cis(x):  # pragma: no cover - compiled
+    """e^{ix} = (cos x, sin x) as one complex, for |x| up to ~10⁶ rad.
+
+    One reduction serves both. Measured no faster than math.cos and math.sin in the spectra
+    kernel (0.66–0.69 s against 0.68 s CPU on the benchmark's frame), but it is pure
+    arithmetic in a fixed order: the phases' bits do not depend on the C library of the
+    machine that renders the frame. Error ≤ 1 ulp (tested against numpy up to 10⁵ rad).
+    """
+    n = math.floor(x * _TWO_OVER_PI + 0.5)
+    r = (x - n * _PIO2_1) - n * _PIO2_1T
+    z = r * r
+    sr = r + (z * r) * (_S1 + z * (_S2 + z * (_S3 + z * (_S4 + z * (_S5 + z * _S6)))))
+    hz = 0.5 * z
+    w = 1.0 - hz
+    cr = w + (((1.0 - w) - hz) + z * z * (_C1 + z * (_C2 + z * (_C3 + z * (_C4 + z * (_C5 + z * _C6))))))
+    # the quadrant without branches (they mispredict: quadrants fall at random along a row):
+    # q = 0 → (c, s), 1 → (−s, c), 2 → (−c, −s), 3 → (s, −c); selecting by ×0 and ×1 is exact
+    q = int(n) & 3
+    swap = float(q & 1)
+    keep = 1.0 - swap
+    sign_re = 1.0 - 2.0 * float(((q + 1) >> 1) & 1)
+    sign_im = 1.0 - 2.0 * float((q >> 1) & 1)
+    return complex(sign_re * (cr * keep + sr * swap), sign_im * (sr * keep + cr * swap))
+
+
+@numba.njit(cache=True)
+def cis_kernel(x, out):  # pragma: no cover - compiled
+    """`_cis` over an array (for its test against numpy)."""
+    for i in range(x.shape[0]):
+        out[i] = _cis(x[i])
 
 
 @numba.njit(inline="always", cache=True)
@@ -110,15 +154,11 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
     dyp = np.empty((pieces, m), dtype=np.complex128)
     for j in range(pieces):
         for ix in range(mh):
-            a = -kx[ix] * end_x[j]
-            px[j, ix] = complex(math.cos(a), math.sin(a))
-            b = kx[ix] * vel_x[j] * duration[j]
-            dxp[j, ix] = complex(math.cos(b), math.sin(b))
+            px[j, ix] = _cis(-kx[ix] * end_x[j])
+            dxp[j, ix] = _cis(kx[ix] * vel_x[j] * duration[j])
         for iy in range(m):
-            a = -ky[iy] * end_y[j]
-            py[j, iy] = complex(math.cos(a), math.sin(a))
-            b = ky[iy] * vel_y[j] * duration[j]
-            dyp[j, iy] = complex(math.cos(b), math.sin(b))
+            py[j, iy] = _cis(-ky[iy] * end_y[j])
+            dyp[j, iy] = _cis(ky[iy] * vel_y[j] * duration[j])
     damp_end = np.empty(pieces)
     damp_step = np.empty(pieces)
     for j in range(pieces):
@@ -167,11 +207,10 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
                 if carry and last[ix] == j - 1:
                     r = rot[ix]
                 else:
-                    a = w * age_end[j]
-                    r = complex(math.cos(a), math.sin(a))
+                    r = _cis(w * age_end[j])
                 patch = patch_amp[j] * math.exp(-quad)
                 wd = w * dur
-                c = complex(math.cos(wd), math.sin(wd))
+                c = _cis(wd)
                 base = patch * dur * (px[j, ix] * py[j, iy])
                 q = dxp[j, ix] * dyp[j, iy]  # e^{ik·VΔ}
                 kv = (kxv * vel_x[j] + kyv * vel_y[j]) * dur
