@@ -195,8 +195,17 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
             ix2 = min(ix_live, int(math.ceil((-lin + root) / (2.0 * pa) / dk)) + 1)
             dur = duration[j]
             carry = joined[j]
+            # the patch's Gaussian along the interval by recurrence (two products a wave, no
+            # exp): quad grows by pa(2kx·dk + dk²) + pc·ky·dk a step, that step by 2pa·dk²
+            k1 = kx[ix1]
+            gauss = math.exp(-(pa * k1 * k1 + pb * kyv * kyv + pc * k1 * kyv))
+            ratio = math.exp(-(pa * (2.0 * k1 * dk + dk * dk) + pc * kyv * dk))
+            growth = math.exp(-2.0 * pa * dk * dk)
             for ix in range(ix1, ix2 + 1):
                 kxv = kx[ix]
+                patch_shape = gauss
+                gauss *= ratio
+                ratio *= growth
                 g = gain[iy, ix]
                 if g == 0.0 or kxv * kxv + kyv * kyv > kcut2:
                     continue
@@ -208,7 +217,7 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
                     r = rot[ix]
                 else:
                     r = _cis(w * age_end[j])
-                patch = patch_amp[j] * math.exp(-quad)
+                patch = patch_amp[j] * patch_shape
                 wd = w * dur
                 c = _cis(wd)
                 base = patch * dur * (px[j, ix] * py[j, iy])
