@@ -15,8 +15,10 @@ Why they are shaped this way:
   ``physics.wake.segment_response``). The position phase e^{−ik·x_b} and drift e^{ik·VΔ}
   are products of one-dimensional factors (e^{−ikx·x}·e^{−iky·y}) computed once per
   piece; the transcendentals a wave and piece need are e^{iωΔ}, which also carries the age
-  rotation e^{iω(t − τb)} on to the next piece when that one adds to the wave too, and the
-  patch's Gaussian. The kernel writes the spectra of the eight (eleven with velocity) real
+  rotation e^{iω(t − τb)} on to the next piece when that one adds to the wave too (all of
+  an interval's e^{iωΔ} are computed first, in a loop without branches that LLVM
+  vectorises: `_cis` is branch-free for that; 0.59 → 0.44 s CPU on the benchmark), and the
+  patch's Gaussian (a recurrence along the interval). The kernel writes the spectra of the eight (eleven with velocity) real
   fields, ready for ``scipy.fft.irfft2``.
 * ``wake_point_kernel`` sums the half-lattice spectrum at scattered points (probes).
 * ``foam_trail_kernel`` paints capsules along the path pieces of the foam look-back into
@@ -177,6 +179,8 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
         zm0 = np.zeros(mh, dtype=np.complex128)
         rot = np.ones(mh, dtype=np.complex128)   # e^{iω(t − τb)} after the last piece added
         last = np.full(mh, -2, dtype=np.int64)   # that piece
+        step_re = np.empty(mh)                    # e^{iωΔ} of the current piece
+        step_im = np.empty(mh)
         # this row's live waves: |k|² ≤ kcut2
         room = kcut2 - kyv * kyv
         if room < 0.0:
@@ -205,6 +209,11 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
             gauss = math.exp(-(pa * k1 * k1 + pb * kyv * kyv + pc * k1 * kyv))
             ratio = math.exp(-(pa * (2.0 * k1 * dk + dk * dk) + pc * kyv * dk))
             growth = math.exp(-2.0 * pa * dk * dk)
+            # e^{iωΔ} of the interval's waves first, in a loop without branches (vectorised)
+            for ix in range(ix1, ix2 + 1):
+                e = _cis(omega[iy, ix] * dur)
+                step_re[ix] = e.real
+                step_im[ix] = e.imag
             for ix in range(ix1, ix2 + 1):
                 kxv = kx[ix]
                 patch_shape = gauss
@@ -223,7 +232,7 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
                     r = _cis(w * age_end[j])
                 patch = patch_amp[j] * patch_shape
                 wd = w * dur
-                c = _cis(wd)
+                c = complex(step_re[ix], step_im[ix])
                 base = patch * dur * (px[j, ix] * py[j, iy])
                 q = dxp[j, ix] * dyp[j, iy]  # e^{ik·VΔ}
                 kv = (kxv * vel_x[j] + kyv * vel_y[j]) * dur
