@@ -60,7 +60,7 @@ def test_point_and_foam_kernels_match_their_references():
 
 def test_a_hull_at_rest_sinks_the_water_by_its_draft():
     """Statics: the patch's peak pressure ρ g d depresses the surface by d where the patch
-    is large against its waves (Lamb 1932 §238: the steady Cauchy–Poisson limit is −p/ρg);
+    is large against its waves (the steady limit of the Cauchy–Poisson integral is −p/ρg: Lamb 1932, ch. IX, from memory);
     the periodic lattice's zero mean lifts it by the displaced volume over the lattice."""
     hull = Hull(20.0, 8.0, 0.5)
     wake = Wake([(hull, Course(times=[0, 1], x=[32, 32], y=[32, 32]))], WakeRegion(0, 0, 64, 64), lookback=300.0)
@@ -230,3 +230,13 @@ def test_a_course_from_far_away_pads_only_for_what_can_reach_the_region():
     assert a.lattice_size == b.lattice_size < 4 * region.resolution
     fa, fb = a.frame(1050.0), b.frame(1050.0)
     assert np.abs(fa.height - fb.height).max() < 1e-5 * np.abs(fb.height).max()
+
+
+def test_the_kernels_cosine_and_sine_are_within_an_ulp_of_numpys():
+    rng = np.random.default_rng(0)
+    for scale in (1.0, 1e3, 1e5):
+        x = rng.uniform(-scale, scale, 20000)
+        out = np.empty(x.size, complex)
+        kern.cis_kernel(x, out)
+        assert np.abs(out.real - np.cos(x)).max() <= 2.3e-16
+        assert np.abs(out.imag - np.sin(x)).max() <= 2.3e-16

@@ -13,8 +13,8 @@ track, ζ metres to its left. Then
   in each cross-section ξ the cusp sits at the outermost maximum of the envelope on either
   side (the outermost local maximum above half the section's largest). The cusp line's
   angle is the slope of the straight line ζ_c(ξ) = ξ·tan α + C fitted through them: near
-  the cusp the waves follow an Airy function (Lamb 1932, §256; Wehausen & Laitone 1960,
-  §20), so the amplitude's maximum lags a little inside the wedge's edge; the offset C
+  the cusp the waves follow an Airy function (Lamb 1932, §256; Wehausen & Laitone 1960;
+  from memory), so the amplitude's maximum lags a little inside the wedge's edge; the offset C
   takes that lag (it grows only as ξ^{1/3} and, over the stretches measured here, is
   dominated by the hull's own size); the wedge's edge, the outermost ζ where the envelope
   is still a given fraction of the section's largest, is fitted the same way (the measure

@@ -13,8 +13,8 @@ whose causal solution from rest is the Cauchy–Poisson integral
 
     η̂(k, t) = −(κ/(ρω)) ∫_{−∞}^{t} p̂(k, τ) sin(ω(t − τ)) dτ
 
-(Lamb 1932, §§238–242 and §§255–256; Wehausen & Laitone 1960, §13 and §§20–21). For a
-body that has stood still at x_s this gives η̂ = −p̂/(ρ(g + σk²/ρ)): the hydrostatic
+(Lamb 1932, ch. IX and §§255–256; Wehausen & Laitone 1960; section numbers beyond
+§§255–256 from memory). For a body that has stood still at x_s this gives η̂ = −p̂/(ρ(g + σk²/ρ)): the hydrostatic
 depression −p/(ρg) where the patch is large against its waves.
 
 Functions here: the patch's spectrum (`pressure_patch_spectrum`), the closed form of the
@@ -30,7 +30,7 @@ Havelock, T. H. (1908). The propagation of groups of waves in dispersive media, 
 application to waves on water produced by a travelling disturbance. *Proc. R. Soc. Lond.
 A* 81, 398–430.
 Lamb, H. (1932). *Hydrodynamics*, 6th ed., Cambridge: §§255–256 (ship waves, the
-Kelvin pattern), §238 (Cauchy–Poisson).
+Kelvin pattern); ch. IX (the Cauchy–Poisson problem; section from memory).
 Wehausen, J. V. & Laitone, E. V. (1960). Surface waves. *Handbuch der Physik* 9, 446–778.
 """
 

@@ -15,13 +15,19 @@ Why they are shaped this way:
   ``physics.wake.segment_response``). The position phase e^{−ik·x_b} and drift e^{ik·VΔ}
   are products of one-dimensional factors (e^{−ikx·x}·e^{−iky·y}) computed once per
   piece; the transcendentals a wave and piece need are e^{iωΔ}, which also carries the age
-  rotation e^{iω(t − τb)} on to the next piece when that one adds to the wave too, and the
-  patch's Gaussian. The kernel writes the spectra of the eight (eleven with velocity) real
+  rotation e^{iω(t − τb)} on to the next piece when that one adds to the wave too (all of
+  an interval's e^{iωΔ} are computed first, in a loop without branches that LLVM
+  vectorises: `_cis` is branch-free for that; 0.59 → 0.44 s CPU on the benchmark), and the
+  patch's Gaussian (a recurrence along the interval). The kernel writes the spectra of the eight (eleven with velocity) real
   fields, ready for ``scipy.fft.irfft2``.
 * ``wake_point_kernel`` sums the half-lattice spectrum at scattered points (probes).
 * ``foam_trail_kernel`` paints capsules along the path pieces of the foam look-back into
   the region's texels, visiting only each capsule's bounding box, and keeps the maximum
   (order-independent, so deterministic in parallel).
+
+Divisions are unchecked (``error_model="numpy"``): every divisor is bounded away from
+zero, by the series threshold of (1 − e^{−z})/z or, for the normal, by its z component.
+The four ratios of a piece and wave share one division where none needs its series.
 
 Window: the look-back T weights a piece of age u by w(u) = (e^{−εu} − e^{−εT})/(1 − e^{−εT})
 (continuous at u = T, so cutting the look-back starts no wave), which is a difference of
@@ -50,6 +56,7 @@ __all__ = [
     "foam_trail_reference",
     "wake_surface_kernel",
     "wake_surface_reference",
+    "cis_kernel",
 ]
 
 #: Spectra written per frame: h, Dx, Dy, ∂h/∂x, ∂h/∂y, ∂Dx/∂x, ∂Dy/∂y, ∂Dx/∂y.
@@ -59,8 +66,51 @@ VELOCITY_FIELD_COUNT = 11
 
 _SERIES_BELOW = 1e-2  # |z| below which (1 − e^{−z})/z is its Taylor series (error < 1e-14)
 
+# cos and sin on [−π/4, π/4]: the minimax polynomials of fdlibm's __kernel_sin / __kernel_cos
+# (Sun Microsystems, 1993; freely distributable), with Cody & Waite's reduction by π/2.
+_S1, _S2, _S3 = -1.66666666666666324348e-01, 8.33333333332248946124e-03, -1.98412698298579493134e-04
+_S4, _S5, _S6 = 2.75573137070700676789e-06, -2.50507602534068634195e-08, 1.58969099521155010221e-10
+_C1, _C2, _C3 = 4.16666666666666019037e-02, -1.38888888888741095749e-03, 2.48015872894767294178e-05
+_C4, _C5, _C6 = -2.75573143513906633035e-07, 2.08757232129817482790e-09, -1.13596475577881948265e-11
+_TWO_OVER_PI = 6.36619772367581382433e-01
+_PIO2_1 = 1.57079632673412561417e+00    # the first 33 bits of π/2
+_PIO2_1T = 6.07710050650619224932e-11   # π/2 − _PIO2_1
+
 
 @numba.njit(inline="always", cache=True)
+def _cis(x):  # pragma: no cover - compiled
+    """e^{ix} = (cos x, sin x) as one complex, for |x| up to ~10⁶ rad.
+
+    One reduction serves both. Measured no faster than math.cos and math.sin in the spectra
+    kernel (0.66–0.69 s against 0.68 s CPU on the benchmark's frame), but it is pure
+    arithmetic in a fixed order: the phases' bits do not depend on the C library of the
+    machine that renders the frame. Error ≤ 1 ulp (tested against numpy up to 10⁵ rad).
+    """
+    n = math.floor(x * _TWO_OVER_PI + 0.5)
+    r = (x - n * _PIO2_1) - n * _PIO2_1T
+    z = r * r
+    sr = r + (z * r) * (_S1 + z * (_S2 + z * (_S3 + z * (_S4 + z * (_S5 + z * _S6)))))
+    hz = 0.5 * z
+    w = 1.0 - hz
+    cr = w + (((1.0 - w) - hz) + z * z * (_C1 + z * (_C2 + z * (_C3 + z * (_C4 + z * (_C5 + z * _C6))))))
+    # the quadrant without branches (they mispredict: quadrants fall at random along a row):
+    # q = 0 → (c, s), 1 → (−s, c), 2 → (−c, −s), 3 → (s, −c); selecting by ×0 and ×1 is exact
+    q = int(n) & 3
+    swap = float(q & 1)
+    keep = 1.0 - swap
+    sign_re = 1.0 - 2.0 * float(((q + 1) >> 1) & 1)
+    sign_im = 1.0 - 2.0 * float((q >> 1) & 1)
+    return complex(sign_re * (cr * keep + sr * swap), sign_im * (sr * keep + cr * swap))
+
+
+@numba.njit(cache=True)
+def cis_kernel(x, out):  # pragma: no cover - compiled
+    """`_cis` over an array (for its test against numpy)."""
+    for i in range(x.shape[0]):
+        out[i] = _cis(x[i])
+
+
+@numba.njit(inline="always", cache=True, error_model="numpy")
 def _ratio(zr, zi, er, ei):  # pragma: no cover - compiled
     """(1 − e^{−z})/z for z = zr + i·zi, given e^{−z} = er + i·ei (its series near 0).
 
@@ -77,7 +127,7 @@ def _ratio(zr, zi, er, ei):  # pragma: no cover - compiled
     return complex((nr * zr + ni * zi) * inv, (ni * zr - nr * zi) * inv)
 
 
-@numba.njit(inline="always", cache=True)
+@numba.njit(inline="always", cache=True, error_model="numpy")
 def _ratio_undamped(y, er, ei):  # pragma: no cover - compiled
     """(1 − e^{−z})/z for z = −i·y, given e^{−z} = er + i·ei: i(1 − e^{−z})/y (series near 0)."""
     if abs(y) < _SERIES_BELOW:
@@ -87,7 +137,7 @@ def _ratio_undamped(y, er, ei):  # pragma: no cover - compiled
     return complex(ei * inv, (1.0 - er) * inv)
 
 
-@numba.njit(parallel=True, cache=True, fastmath=False, nogil=True)
+@numba.njit(parallel=True, cache=True, fastmath=False, nogil=True, error_model="numpy")
 def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, end_y,
                         vel_x, vel_y, patch_a, patch_b, patch_c, patch_amp, joined, floor_log,
                         damping, tail, lateral, out):  # pragma: no cover - compiled
@@ -110,15 +160,11 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
     dyp = np.empty((pieces, m), dtype=np.complex128)
     for j in range(pieces):
         for ix in range(mh):
-            a = -kx[ix] * end_x[j]
-            px[j, ix] = complex(math.cos(a), math.sin(a))
-            b = kx[ix] * vel_x[j] * duration[j]
-            dxp[j, ix] = complex(math.cos(b), math.sin(b))
+            px[j, ix] = _cis(-kx[ix] * end_x[j])
+            dxp[j, ix] = _cis(kx[ix] * vel_x[j] * duration[j])
         for iy in range(m):
-            a = -ky[iy] * end_y[j]
-            py[j, iy] = complex(math.cos(a), math.sin(a))
-            b = ky[iy] * vel_y[j] * duration[j]
-            dyp[j, iy] = complex(math.cos(b), math.sin(b))
+            py[j, iy] = _cis(-ky[iy] * end_y[j])
+            dyp[j, iy] = _cis(ky[iy] * vel_y[j] * duration[j])
     damp_end = np.empty(pieces)
     damp_step = np.empty(pieces)
     for j in range(pieces):
@@ -133,6 +179,8 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
         zm0 = np.zeros(mh, dtype=np.complex128)
         rot = np.ones(mh, dtype=np.complex128)   # e^{iω(t − τb)} after the last piece added
         last = np.full(mh, -2, dtype=np.int64)   # that piece
+        step_re = np.empty(mh)                    # e^{iωΔ} of the current piece
+        step_im = np.empty(mh)
         # this row's live waves: |k|² ≤ kcut2
         room = kcut2 - kyv * kyv
         if room < 0.0:
@@ -155,8 +203,22 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
             ix2 = min(ix_live, int(math.ceil((-lin + root) / (2.0 * pa) / dk)) + 1)
             dur = duration[j]
             carry = joined[j]
+            # the patch's Gaussian along the interval by recurrence (two products a wave, no
+            # exp): quad grows by pa(2kx·dk + dk²) + pc·ky·dk a step, that step by 2pa·dk²
+            k1 = kx[ix1]
+            gauss = math.exp(-(pa * k1 * k1 + pb * kyv * kyv + pc * k1 * kyv))
+            ratio = math.exp(-(pa * (2.0 * k1 * dk + dk * dk) + pc * kyv * dk))
+            growth = math.exp(-2.0 * pa * dk * dk)
+            # e^{iωΔ} of the interval's waves first, in a loop without branches (vectorised)
+            for ix in range(ix1, ix2 + 1):
+                e = _cis(omega[iy, ix] * dur)
+                step_re[ix] = e.real
+                step_im[ix] = e.imag
             for ix in range(ix1, ix2 + 1):
                 kxv = kx[ix]
+                patch_shape = gauss
+                gauss *= ratio
+                ratio *= growth
                 g = gain[iy, ix]
                 if g == 0.0 or kxv * kxv + kyv * kyv > kcut2:
                     continue
@@ -167,11 +229,10 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
                 if carry and last[ix] == j - 1:
                     r = rot[ix]
                 else:
-                    a = w * age_end[j]
-                    r = complex(math.cos(a), math.sin(a))
-                patch = patch_amp[j] * math.exp(-quad)
+                    r = _cis(w * age_end[j])
+                patch = patch_amp[j] * patch_shape
                 wd = w * dur
-                c = complex(math.cos(wd), math.sin(wd))
+                c = complex(step_re[ix], step_im[ix])
                 base = patch * dur * (px[j, ix] * py[j, iy])
                 q = dxp[j, ix] * dyp[j, iy]  # e^{ik·VΔ}
                 kv = (kxv * vel_x[j] + kyv * vel_y[j]) * dur
@@ -180,10 +241,32 @@ def wake_spectra_kernel(kx, ky, omega, gain, kcut2, age_end, duration, end_x, en
                 ed = damping * dur
                 es = damp_step[j]
                 # damped: z± = εΔ − i(k·V ± ω)Δ, e^{−z±} = e^{−εΔ} q e^{±iωΔ}
-                ep = _ratio(ed, -(kv + wd), es * qc.real, es * qc.imag)
-                em = _ratio(ed, -(kv - wd), es * qcc.real, es * qcc.imag)
-                e0p = _ratio_undamped(kv + wd, qc.real, qc.imag)
-                e0m = _ratio_undamped(kv - wd, qcc.real, qcc.imag)
+                yp = kv + wd
+                ym = kv - wd
+                if abs(yp) >= _SERIES_BELOW and abs(ym) >= _SERIES_BELOW:
+                    # the four divisors share one division: 1/a = (b·c·d)/(a·b·c·d)
+                    r2p = ed * ed + yp * yp
+                    r2m = ed * ed + ym * ym
+                    pm = r2p * r2m
+                    yy = yp * ym
+                    inv = 1.0 / (pm * yy)
+                    inv_r2p = r2m * yy * inv
+                    inv_r2m = r2p * yy * inv
+                    inv_yp = pm * ym * inv
+                    inv_ym = pm * yp * inv
+                    nr = 1.0 - es * qc.real
+                    ni = -es * qc.imag
+                    ep = complex((nr * ed - ni * yp) * inv_r2p, (ni * ed + nr * yp) * inv_r2p)
+                    nr = 1.0 - es * qcc.real
+                    ni = -es * qcc.imag
+                    em = complex((nr * ed - ni * ym) * inv_r2m, (ni * ed + nr * ym) * inv_r2m)
+                    e0p = complex(qc.imag * inv_yp, (1.0 - qc.real) * inv_yp)
+                    e0m = complex(qcc.imag * inv_ym, (1.0 - qcc.real) * inv_ym)
+                else:
+                    ep = _ratio(ed, -yp, es * qc.real, es * qc.imag)
+                    em = _ratio(ed, -ym, es * qcc.real, es * qcc.imag)
+                    e0p = _ratio_undamped(yp, qc.real, qc.imag)
+                    e0m = _ratio_undamped(ym, qcc.real, qcc.imag)
                 br = base * r
                 brc = base * r.conjugate()
                 de = damp_end[j]

@@ -68,6 +68,8 @@ _FOAM_PIECES_PER_LIFETIME = 8
 #: Transverse wavelengths of wake behind the hull a look-back should hold (U·T/2 of them
 #: formed: the transverse waves' energy follows at half the speed), below which notes warn.
 LOOKBACK_WAVELENGTHS = 3
+#: Lattice texels over region texels above which notes say what the padding costs.
+LATTICE_NOTE_RATIO = 16.0
 #: Points × live waves above which probes sum by a non-uniform FFT instead of directly.
 NUFFT_ABOVE = 1e7  # (measured crossover at ~25 points on the benchmark's 1876² lattice)
 
@@ -173,6 +175,7 @@ class Wake:
         x0, x1, y0, y1 = r.origin_x, r.origin_x + r.size, r.origin_y, r.origin_y + r.size
         # Only the course within `reach` of the region can put waves on it; farther pieces are
         # left out of every frame (`_piece_arrays`), so they set no padding either.
+        self._reach = reach
         self._near = (x0 - reach, x1 + reach, y0 - reach, y1 + reach)
         xs, ys = [x0, x1], [y0, y1]
         for path in self._paths:
@@ -445,6 +448,11 @@ class Wake:
                            f"{LOOKBACK_WAVELENGTHS} of its {transverse:.0f} m transverse waves: the Kelvin "
                            f"pattern cannot form; allowed: a look-back of at least "
                            f"{2.0 * LOOKBACK_WAVELENGTHS * transverse / speed:.0f} s")
+        ratio = (self.lattice_size / r.resolution) ** 2
+        if ratio > LATTICE_NOTE_RATIO:
+            out.append(f"the wake's padded lattice is {self.lattice_size}² texels, {ratio:.1f} times the region's "
+                       f"{r.resolution}²: its waves may travel {self._reach:.0f} m in the {self.lookback:g} s look-back; "
+                       "a shorter look-back or a region holding more of the course costs less")
         return out
 
 
