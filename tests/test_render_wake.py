@@ -140,3 +140,17 @@ def test_the_estimate_counts_the_wake(boat):
     lattice = preset_wake(preset).lattice_size
     assert with_wake.memory_bytes - sea_only.memory_bytes == lattice**2 * _WAKE_BYTES_PER_TEXEL
     assert with_wake.total_seconds > 0
+
+
+def test_png_wake_maps_take_a_range_from_the_drafts(tmp_path, preset_file):
+    """A calm sea's PNG range (±2.5 Hs) would clip a boat's wake: the wake's is ±4 drafts."""
+    from oceanfield.io.png import read_png16
+
+    boat = preset_file("calm", settings={**BOAT, "extends": "glassy_calm", "output": {"format": "png"}})
+    preset = load_preset(boat)
+    render(plan_render(preset, root=tmp_path, frames="1003"), workers=1)
+    height, value_range = read_png16(tmp_path / "calm" / "wake_displacement.1003.png")
+    assert value_range == pytest.approx((-4 * 0.4, 4 * 0.4))
+    exact = preset_wake(preset).frame(preset.time.frame_time(1003)).height
+    assert float(np.abs(exact).max()) < 4 * 0.4  # nothing clipped
+    np.testing.assert_allclose(height[..., 1][::-1], exact, atol=2 * 1.6 / 65535 + 1e-6)  # G: the height, 16 bits

@@ -35,6 +35,9 @@ __all__ = [
 ]
 
 _PNG_RANGE_HEIGHTS = 2.5  # PNG value range: ± this many Hs (common practice: crests rarely pass 1.3 Hs)
+#: A wake's PNG value range: ± this many of the deepest draft (common practice: a hull at
+#: rest sinks the water by its draft, and the linear wake's crests stay within a draft or two).
+_PNG_RANGE_DRAFTS = 4.0
 
 
 
@@ -77,13 +80,14 @@ def _attributes(plan: RenderPlan, frame: int, map_name: str, tile_size: float | 
     }
 
 
-def _png_range(plan: RenderPlan, map_name: str, scale: dict[str, float]) -> tuple[float, float]:
-    """A fixed value range for a PNG map over the whole sequence (stored in its sidecar)."""
+def _png_range(plan: RenderPlan, map_name: str, scale: dict[str, float], *, wake: bool = False) -> tuple[float, float]:
+    """A fixed value range for a PNG map over the whole sequence (stored in its sidecar);
+    ``wake``: a wake map's (``wake_<map>``), from the vessels' drafts, not the sea's Hs."""
     if map_name == "normal":
         return (-1.0, 1.0)
     if map_name == "foam":
         return (0.0, 1.0)
-    reach = scale["velocity" if map_name == "velocity" else "length"]
+    reach = scale[("wake_" if wake else "") + ("velocity" if map_name == "velocity" else "length")]
     return (-reach, reach)
 
 
@@ -93,7 +97,12 @@ def _png_scales(preset) -> dict[str, float]:
     stats = to_sea_state(preset).statistics()
     lateral = max(1.0, preset.surface.lateral_factor)
     length = _PNG_RANGE_HEIGHTS * stats.hs * lateral / preset.scene.metres_per_unit
-    return {"length": length, "velocity": length * 2.0 * math.pi / stats.tm02}
+    scales = {"length": length, "velocity": length * 2.0 * math.pi / stats.tm02}
+    if preset.vessels:
+        wake = _PNG_RANGE_DRAFTS * max(v.draft_m for v in preset.vessels) * lateral / preset.scene.metres_per_unit
+        scales.update(wake_length=max(wake, 1e-3 / preset.scene.metres_per_unit),
+                      wake_velocity=max(wake, 1e-3 / preset.scene.metres_per_unit) * 2.0 * math.pi / stats.tm02)
+    return scales
 
 
 @dataclass(frozen=True)
@@ -151,7 +160,8 @@ def encode_frame(plan: RenderPlan, frame: int, fields, png_scales: dict[str, flo
             arrays = list(channels.values())
             array = np.stack(arrays, axis=-1) if len(arrays) > 1 else arrays[0]
             scales = png_scales if png_scales is not None else _png_scales(preset)
-            jobs.append(FileJob("png", path, {"": array}, value_range=_png_range(plan, name, scales)))
+            is_wake = wake is not None and file_name in wake
+            jobs.append(FileJob("png", path, {"": array}, value_range=_png_range(plan, name, scales, wake=is_wake)))
     return jobs
 
 
