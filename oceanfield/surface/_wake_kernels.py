@@ -398,9 +398,9 @@ def wake_point_kernel(mkx, mky, weight, spec, x, y, out):  # pragma: no cover - 
     for p in numba.prange(x.shape[0]):
         acc = np.zeros(fields)
         for j in range(mkx.shape[0]):
-            a = mkx[j] * x[p] + mky[j] * y[p]
-            c = math.cos(a)
-            s = math.sin(a)
+            e = _cis(mkx[j] * x[p] + mky[j] * y[p])
+            c = e.real
+            s = e.imag
             wj = weight[j]
             for f in range(fields):
                 v = spec[f, j]
