@@ -22,10 +22,11 @@ from typing import Callable
 
 import numpy as np
 
-__all__ = ["main", "time_call", "frame_benchmark", "composite_benchmark", "probe_benchmark", "look_benchmark"]
+__all__ = ["main", "time_call", "frame_benchmark", "composite_benchmark", "probe_benchmark", "look_benchmark",
+           "wake_benchmark"]
 
 #: The sections ``--only`` may pick, in the order they run.
-_SECTIONS = ("look", "frames", "composite", "probes", "bands", "bound", "render", "workers", "analyze")
+_SECTIONS = ("look", "wake", "frames", "composite", "probes", "bands", "bound", "render", "workers", "analyze")
 
 
 def time_call(function: Callable[[], object], *, repeat: int, warmup: int = 1) -> float:
@@ -446,6 +447,61 @@ def look_benchmark(preset_name: str, size: str, repeat: int) -> dict[str, float]
     return row
 
 
+def _demo_course(region_size: float, lookback: float, fps: float, speed: float, *, straight: bool = False):
+    """A boat weaving round the region's centre, sampled every frame (an invented chase);
+    or running straight across it."""
+    from .surface.wake import Course
+
+    radius = 0.3 * region_size
+    duration = lookback + 2.0
+    t = np.arange(0.0, duration + 0.5 / fps, 1.0 / fps)
+    if straight:
+        return Course(times=t, x=0.9 * region_size - speed * (duration - t), y=0.5 * region_size + 0.0 * t)
+    # an ellipse whose radius breathes: curvature and speed change all the time
+    phase = speed * t / radius
+    r = radius * (1.0 + 0.15 * np.sin(0.37 * phase))
+    return Course(times=t, x=0.5 * region_size + r * np.cos(phase), y=0.5 * region_size + 0.8 * r * np.sin(phase))
+
+
+def wake_benchmark(resolution: int, lookback: float, fps: float, workers: int, repeat: int, *,
+                   straight: bool = False) -> dict[str, float]:
+    """One wake frame on a ``resolution``² region (0.5 m texels; a 10 m boat at 12 m/s on a
+    curving per-frame course) against the bare real inverse FFTs it needs (eight of its padded
+    lattice), and against four complex64 ones of the region's own size (a sea frame's)."""
+    import scipy.fft
+
+    from .surface.wake import Hull, Wake, WakeRegion
+
+    size = 0.5 * resolution
+    course = _demo_course(size, lookback, fps, 12.0, straight=straight)
+    wake = Wake([(Hull(10.0, 3.5, 0.6), course)], WakeRegion(0.0, 0.0, size, resolution),
+                lookback=lookback, fft_workers=workers)
+    m = wake.lattice_size
+    half = np.zeros((8, m, m // 2 + 1), dtype=np.complex64)
+    half[:, 1, 1] = 1.0
+    region = np.zeros((4, resolution, resolution), dtype=np.complex64)
+    region[:, 1, 1] = 1.0
+    t_end = float(course.times[-1])
+    counter = iter(range(10**9))
+
+    def frame() -> None:
+        wake.frame(t_end - (next(counter) % 24) / fps)
+
+    def padded_ffts() -> None:
+        scipy.fft.irfft2(half, s=(m, m), axes=(-2, -1), norm="forward", workers=workers)
+
+    def region_ffts() -> None:
+        scipy.fft.ifft2(region, axes=(-2, -1), norm="forward", overwrite_x=True, workers=workers)
+
+    frame_s, padded_s, frame_cpu, padded_cpu = _timed_pair(frame, padded_ffts, repeat)
+    _, region_s, _, _ = _timed_pair(frame, region_ffts, max(1, repeat // 2))
+    pieces = len(wake._piece_arrays(t_end)[0])
+    return {"frame_s": frame_s, "padded_fft_s": padded_s, "region_fft_s": region_s, "lattice": m,
+            "pieces": pieces, "samples": int(course.times.size), "ratio": frame_s / padded_s,
+            "cpu_ratio": frame_cpu / padded_cpu,
+            "region_ratio": frame_s / region_s}
+
+
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(prog="python -m oceanfield.bench", description=__doc__.splitlines()[0])
     parser.add_argument("--sizes", default="256,512,1024,2048", help="comma-separated resolutions")
@@ -470,8 +526,15 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--look-only", action="store_true", help="run only the `look` row (as --only look)")
     parser.add_argument("--only", default=",".join(_SECTIONS),
                         help=f"comma-separated sections to run, of: {', '.join(_SECTIONS)}")
+    parser.add_argument("--wake-size", type=int, default=1024,
+                        help="texels per side of the wake benchmark's region (0 = skip)")
+    parser.add_argument("--wake-lookback", type=float, default=60.0, help="look-back of the wake benchmark, s")
+    parser.add_argument("--wake-only", action="store_true", help="run only the wake row (as --only wake)")
     args = parser.parse_args(argv)
-    only = {"look"} if args.look_only else {name.strip() for name in args.only.split(",") if name.strip()}
+    if args.look_only or args.wake_only:
+        only = {"look"} if args.look_only else {"wake"}
+    else:
+        only = {name.strip() for name in args.only.split(",") if name.strip()}
     unknown = only - set(_SECTIONS)
     if unknown:
         parser.error(f"--only: {', '.join(sorted(unknown))} is not allowed; allowed: {', '.join(_SECTIONS)}")
@@ -483,6 +546,8 @@ def main(argv: list[str] | None = None) -> int:
     print(f"oceanfield benchmark: {args.workers} thread(s), median of {args.repeat}")
     if "look" in only:
         _look_section(args)
+    if "wake" in only and args.wake_size > 0:
+        _print_wake(args)
     if "frames" in only:
         _frames_section(sizes, args)
     if "composite" in only:
@@ -599,6 +664,18 @@ def _analyze_section(args) -> None:
     print(f"\nAnalyzer: {args.analyze_frames} frames of {args.analyze_size}² heights (in memory)")
     print(f"  {row['per_frame_s'] * 1e3:.1f} ms per frame streamed, {row['finish_s']:.2f} s to measure, "
           f"{row['total_s']:.1f} s in all (target: well under a minute)")
+
+
+def _print_wake(args) -> None:
+    print(f"\nWake: {args.wake_size}² region (0.5 m texels), {args.wake_lookback:g} s look-back, "
+          "a 10 m boat at 12 m/s on a course sampled at 24 fps")
+    for straight in (False, True):
+        row = wake_benchmark(args.wake_size, args.wake_lookback, 24.0, args.workers, args.repeat, straight=straight)
+        print(f"  {'straight' if straight else 'weaving'}: {row['samples']} samples, {row['pieces']} straight "
+              f"pieces in the look-back, lattice {row['lattice']}²")
+        print(f"    frame {row['frame_s'] * 1e3:.1f} ms, bare FFTs {row['padded_fft_s'] * 1e3:.1f} ms "
+              f"(eight real, padded lattice): ratio {row['ratio']:.2f} (target <= 3); CPU time ratio "
+              f"{row['cpu_ratio']:.2f}; {row['region_ratio']:.2f}x a {args.wake_size}² sea frame's four complex FFTs")
 
 
 if __name__ == "__main__":

@@ -102,10 +102,11 @@ def build_parser() -> argparse.ArgumentParser:
 
     float_ = commands.add_parser("float", help="floating bodies riding the sea: position and rotation per frame")
     _add_preset_arguments(float_)
-    float_.add_argument("--body", action="append", required=True, metavar="KEY=VALUE,...",
+    float_.add_argument("--body", action="append", default=[], metavar="KEY=VALUE,...",
                         help="a waterplane: x_m, y_m, length_m, beam_m, optional heading_deg (bow, counter-clockwise "
                              "from +x), name, and per motion (heave, pitch, roll) a damped response: "
-                             "<motion>_period_s with <motion>_damping; repeatable")
+                             "<motion>_period_s with <motion>_damping; repeatable (optional when the preset has "
+                             "vessels: they float on their courses)")
     _add_shot_arguments(float_, table=True)
 
     scene = commands.add_parser("scene", help="write the animated sea, its material, probes and bodies as a USD stage")
@@ -392,12 +393,20 @@ def _cmd_stats(args: argparse.Namespace) -> int:
     finally:
         if bar is not None:
             bar.close()
+    if preset.vessels:  # the vessels and their wake (preset.vessels)
+        from .preset.vessels import wake_report
+
+        report["wake"] = wake_report(preset)
     if args.json:
         print(json.dumps(report, indent=2))
     else:
         from .preset.stats import format_sea_report
 
         print(format_sea_report(report))
+        if preset.vessels:
+            from .preset.vessels import format_wake_report
+
+            print("\n".join(format_wake_report(report["wake"])))
     return 0
 
 
