@@ -121,9 +121,9 @@ def build_parser() -> argparse.ArgumentParser:
     _add_shot_arguments(scene, table=False)
     _add_look_parser(commands)
     compile_ = commands.add_parser(
-        "compile", help="compile the frame and probe kernels into numba's cache once (for a farm image)",
-        description="Compile every frame kernel and the probes' into numba's on-disk cache, so that no render, "
-                    "probe, float or scene pays for compilation. Run it once when a farm image is built; point the nodes at the same "
+        "compile", help="compile the frame, probe, wake and look kernels into numba's cache once (for a farm image)",
+        description="Compile every frame kernel, the probes', the wakes' and the look's into numba's on-disk cache, so "
+                    "that no render, probe, float, scene or look pays for compilation. Run it once when a farm image is built; point the nodes at the same "
                     "folder with the NUMBA_CACHE_DIR environment variable.")
     compile_.add_argument("--cache-dir", default=None, metavar="DIR",
                           help="cache folder (default: $NUMBA_CACHE_DIR, else numba's own beside the package)")
@@ -463,8 +463,11 @@ def _cmd_compile(args: argparse.Namespace) -> int:
     from .io.exr import half_converter_ready
     from .surface.warmup import compile_kernels
 
+    from .look.writing import compile_look_kernels
+
     seconds = compile_kernels()
     started = time.perf_counter()
+    compile_look_kernels()  # the look's ray march and shading
     half_converter_ready()  # the EXR writer's half-float converter (io._half)
     seconds += time.perf_counter() - started
     where = os.environ.get("NUMBA_CACHE_DIR") or "numba's cache beside the package (__pycache__)"
