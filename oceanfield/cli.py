@@ -102,10 +102,11 @@ def build_parser() -> argparse.ArgumentParser:
 
     float_ = commands.add_parser("float", help="floating bodies riding the sea: position and rotation per frame")
     _add_preset_arguments(float_)
-    float_.add_argument("--body", action="append", required=True, metavar="KEY=VALUE,...",
+    float_.add_argument("--body", action="append", default=[], metavar="KEY=VALUE,...",
                         help="a waterplane: x_m, y_m, length_m, beam_m, optional heading_deg (bow, counter-clockwise "
                              "from +x), name, and per motion (heave, pitch, roll) a damped response: "
-                             "<motion>_period_s with <motion>_damping; repeatable")
+                             "<motion>_period_s with <motion>_damping; repeatable (optional when the preset has "
+                             "vessels: they float on their courses)")
     _add_shot_arguments(float_, table=True)
 
     scene = commands.add_parser("scene", help="write the animated sea, its material, probes and bodies as a USD stage")
@@ -120,9 +121,9 @@ def build_parser() -> argparse.ArgumentParser:
     _add_shot_arguments(scene, table=False)
     _add_look_parser(commands)
     compile_ = commands.add_parser(
-        "compile", help="compile the frame and probe kernels into numba's cache once (for a farm image)",
-        description="Compile every frame kernel and the probes' into numba's on-disk cache, so that no render, "
-                    "probe, float or scene pays for compilation. Run it once when a farm image is built; point the nodes at the same "
+        "compile", help="compile the frame, probe, wake and look kernels into numba's cache once (for a farm image)",
+        description="Compile every frame kernel, the probes', the wakes' and the look's into numba's on-disk cache, so "
+                    "that no render, probe, float, scene or look pays for compilation. Run it once when a farm image is built; point the nodes at the same "
                     "folder with the NUMBA_CACHE_DIR environment variable.")
     compile_.add_argument("--cache-dir", default=None, metavar="DIR",
                           help="cache folder (default: $NUMBA_CACHE_DIR, else numba's own beside the package)")
@@ -392,12 +393,20 @@ def _cmd_stats(args: argparse.Namespace) -> int:
     finally:
         if bar is not None:
             bar.close()
+    if preset.vessels:  # the vessels and their wake (preset.vessels)
+        from .preset.vessels import wake_report
+
+        report["wake"] = wake_report(preset)
     if args.json:
         print(json.dumps(report, indent=2))
     else:
         from .preset.stats import format_sea_report
 
         print(format_sea_report(report))
+        if preset.vessels:
+            from .preset.vessels import format_wake_report
+
+            print("\n".join(format_wake_report(report["wake"])))
     return 0
 
 
@@ -454,8 +463,11 @@ def _cmd_compile(args: argparse.Namespace) -> int:
     from .io.exr import half_converter_ready
     from .surface.warmup import compile_kernels
 
+    from .look.writing import compile_look_kernels
+
     seconds = compile_kernels()
     started = time.perf_counter()
+    compile_look_kernels()  # the look's ray march and shading
     half_converter_ready()  # the EXR writer's half-float converter (io._half)
     seconds += time.perf_counter() - started
     where = os.environ.get("NUMBA_CACHE_DIR") or "numba's cache beside the package (__pycache__)"

@@ -44,15 +44,16 @@ def _write(tmp_path, text, name="banded.yaml"):
 
 def test_single_tile_presets_keep_their_hash():
     """Adding the bands section changed no single-tile render: the hash leaves `bands` out
-    (the canonical form as before bands existed), and a banded preset hashes differently."""
+    (the canonical form as before bands existed), and a banded preset hashes differently.
+    So does a preset without vessels leave out `vessels` and `wake`."""
     import hashlib
     import json
 
-    from oceanfield.preset.schema import _as_tree
+    from oceanfield.preset.resolved import _as_tree
 
     preset = load_preset("moderate_breeze")
     tree = _as_tree(preset)
-    del tree["description"], tree["bands"]
+    del tree["description"], tree["bands"], tree["vessels"], tree["wake"]
     canonical = json.dumps(tree, sort_keys=True, separators=(",", ":"), allow_nan=False)
     assert preset_hash(preset) == hashlib.sha256(canonical.encode("utf-8")).hexdigest()
 

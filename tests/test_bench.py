@@ -17,7 +17,8 @@ def test_benchmark_prints_frame_render_and_analyzer_figures(capsys):
         "--render-frames", "2", "--render-size", "32", "--skip-cold",
         "--analyze-frames", "16", "--analyze-size", "32",
         "--bands-reach", "40", "--bands-size", "64", "--bands-composite", "32",
-        "--workers-sizes", "32", "--only", "frames,bands,bound,render,workers,analyze",
+        "--workers-sizes", "32", "--wake-size", "32", "--wake-lookback", "5",
+        "--only", "wake,frames,bands,bound,render,workers,analyze",
     ])
     assert code == 0
     out = capsys.readouterr().out
@@ -31,6 +32,8 @@ def test_benchmark_prints_frame_render_and_analyzer_figures(capsys):
     assert re.search(r"render [0-9.]+ s: ratio to floors [0-9.]+", out)
     assert re.search(r"warm [0-9.]+ s = that frame's compute and write [0-9.]+ s \+ -?[0-9.]+ s", out)
     assert re.search(r"[0-9.]+ ms per frame streamed", out)
+    wake = re.search(r"frame ([0-9.]+) ms, bare FFTs ([0-9.]+) ms \(eight real, padded lattice\): ratio ([0-9.]+)", out)
+    assert wake and all(float(value) > 0 for value in wake.groups())
     workers = re.search(r"^\s+32\s+16\s+1: ([0-9.]+)\s+1\s+([0-9.]+)$", out, re.M)
     assert workers and float(workers.group(1)) > 0 and float(workers.group(2)) == 1.0  # one core: one count
     band = re.search(r"bare FFTs of all bands ([0-9.]+) ms: ratio ([0-9.]+)", out)

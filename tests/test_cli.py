@@ -193,6 +193,20 @@ def test_compile_covers_the_probes_kernel_too():
     assert "SIGNATURES 1" in result.stdout, result.stdout + result.stderr
 
 
+def test_compile_covers_the_wake_and_look_kernels():
+    """A farm image compiled with `oceanfield compile` holds the wakes' kernels (a render of a
+    preset with vessels) and the look's (its ray march), or each node compiles them again."""
+    code = ("from oceanfield.cli import main\n"
+            "from oceanfield.surface import _wake_kernels\n"
+            "from oceanfield.look import _kernels\n"
+            "assert main(['compile']) == 0\n"
+            "print('WAKE', len(_wake_kernels.wake_spectra_kernel.signatures),"
+            " len(_wake_kernels.wake_point_kernel.signatures))\n"
+            "print('LOOK', len(_kernels.render_kernel.signatures))\n")
+    result = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=300)
+    assert "WAKE 1 1" in result.stdout and "LOOK 1" in result.stdout, result.stdout + result.stderr
+
+
 def test_compile_refuses_a_cache_dir_once_numba_is_loaded(capsys, tmp_path):
     import numba  # noqa: F401 - loaded, as in any process that has rendered
 

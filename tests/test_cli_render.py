@@ -351,7 +351,7 @@ def test_a_disk_that_fills_mid_render_stops_with_one_clear_line(tmp_path, preset
     exit status is non-zero, and no partial file is left under a frame's name."""
     import errno
 
-    import oceanfield.render.job as render_module
+    import oceanfield.render.workers as render_module
     from oceanfield.io.errors import OutputError
 
     original = render_module.write_jobs

@@ -159,3 +159,16 @@ def test_the_public_api_is_importable_from_the_package():
     assert wind_sea.__module__ == "oceanfield.physics.seastate"
     for name in oceanfield.__all__:
         assert getattr(oceanfield, name) is not None
+
+
+def test_every_subpackage_is_installed():
+    """`pip install .` (what CI and users run) installs only the packages pyproject.toml
+    lists: a room missing there imports from a checkout but not from an install."""
+    tomllib = pytest.importorskip("tomllib")  # Python 3.11+
+    root = Path(oceanfield.__file__).parent
+    listed = set(tomllib.loads((root.parent / "pyproject.toml").read_text())["tool"]["setuptools"]["packages"])
+    found = {"oceanfield"} | {
+        "oceanfield." + ".".join(path.parent.relative_to(root).parts)
+        for path in root.rglob("__init__.py") if path.parent != root
+    }
+    assert found - listed == set()

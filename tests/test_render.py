@@ -25,6 +25,7 @@ import pytest
 
 import oceanfield
 from oceanfield.render import job as render_module
+from oceanfield.render import workers as workers_module
 from oceanfield.io.exr import exr_is_complete, read_exr, read_exr_attributes
 from oceanfield.io.png import LEVELS, read_png16, sidecar_path
 from oceanfield.surface.maps import map_channels
@@ -346,7 +347,7 @@ def test_dask_cluster_renders_the_same_files(tmp_path, preset_file):
     _assert_same_files(tmp_path / "local", tmp_path / "address")
 
 
-_ORIGINAL_DASK_FRAMES = render_module._dask_frames
+_ORIGINAL_DASK_FRAMES = workers_module._dask_frames
 
 
 def _dask_frames_failing_on_1001(plan, frames, threads, overwrite, stop_event=None):
@@ -359,7 +360,7 @@ def _dask_frames_failing_on_1001(plan, frames, threads, overwrite, stop_event=No
 
 def test_a_failed_cluster_task_fails_its_own_frames(tmp_path, preset_file, monkeypatch):
     distributed = pytest.importorskip("distributed")
-    monkeypatch.setattr(render_module, "_dask_frames", _dask_frames_failing_on_1001)
+    monkeypatch.setattr(workers_module, "_dask_frames", _dask_frames_failing_on_1001)
     preset = load_preset(preset_file())
     with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=False,
                                   dashboard_address=":0") as cluster, distributed.Client(cluster) as client:

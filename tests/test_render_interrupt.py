@@ -168,12 +168,13 @@ def test_a_signal_swallowed_inside_native_code_still_stops_the_render(tmp_path, 
     llvmlite's callbacks cannot raise there. The render must still stop at the next frame,
     say so once (RenderInterrupted, the frames done recorded) and print no traceback."""
     import oceanfield.render.job as job
+    import oceanfield.render.workers as workers
     from oceanfield.preset import load_preset
     from oceanfield.render import plan_render, render
 
     preset = load_preset(preset_file("swallowed", settings={"tile": {"resolution": 32},
                                                              "time": {"last_frame": 1006}}))
-    encode = job.encode_frame
+    encode = workers.encode_frame
     calls = []
 
     def encode_then_signal(plan, frame, fields, scales):
@@ -182,7 +183,7 @@ def test_a_signal_swallowed_inside_native_code_still_stops_the_render(tmp_path, 
             _signal_inside_native_code(signum)
         return encode(plan, frame, fields, scales)
 
-    monkeypatch.setattr(job, "encode_frame", encode_then_signal)
+    monkeypatch.setattr(workers, "encode_frame", encode_then_signal)
     with pytest.raises(job.RenderInterrupted) as stopped:
         render(plan_render(preset, root=tmp_path), workers=1)
     assert stopped.value.signum == signum
@@ -194,7 +195,7 @@ def test_a_signal_swallowed_inside_native_code_still_stops_the_render(tmp_path, 
 def test_a_worker_told_to_stop_ends_quietly_whatever_native_code_then_raises(monkeypatch):
     """A stop cut short inside native code can leave it failing its own way (numba: "no
     compiled object yet"); once the worker was told to stop, that failure is the stop."""
-    import oceanfield.render.job as job
+    import oceanfield.render.workers as job
 
     def failing(*args, **kwargs):
         job._STOP_REQUESTED.set()
@@ -226,12 +227,13 @@ def test_a_signal_while_the_last_frame_is_written_waits_for_it(tmp_path, preset_
     import threading
 
     import oceanfield.render.job as job
+    import oceanfield.render.workers as workers
     from oceanfield.preset import load_preset
     from oceanfield.render import plan_render, render
 
     preset = load_preset(preset_file("last", settings={"tile": {"resolution": 32},
                                                         "time": {"last_frame": 1003}}))
-    write = job.write_jobs
+    write = workers.write_jobs
     main_thread = threading.main_thread().ident
 
     def write_slowly(jobs):
@@ -240,7 +242,7 @@ def test_a_signal_while_the_last_frame_is_written_waits_for_it(tmp_path, preset_
             time.sleep(0.5)
         return write(jobs)
 
-    monkeypatch.setattr(job, "write_jobs", write_slowly)
+    monkeypatch.setattr(workers, "write_jobs", write_slowly)
     with pytest.raises(job.RenderInterrupted) as stopped:
         render(plan_render(preset, root=tmp_path), workers=1)
     assert stopped.value.summary.written == [1001, 1002, 1003]

@@ -39,8 +39,11 @@ analysis of pitch-and-roll buoy wave data. J. Phys. Oceanogr. 18, 1020–1034 (m
 direction, directional spread σ = √(2(1 − r))).
 WMO (1998). Guide to Wave Analysis and Forecasting, WMO-No. 702 (Hm0 = 4√m0, moments).
 
-Reading frame files is `oceanfield.io.sequence`'s work; the wave-timing fit is
-``timing``'s (its public names stay importable from here); the text verdict and the
+This module holds the streaming accumulator and `analyze_heights`. Reading frame files is
+`oceanfield.io.sequence`'s work; the wave-timing fit is ``timing``'s, the Hann window, seam
+test and frequency spectrum ``spectral``'s, directions ``directions``', folding
+``folding``'s, the band comparison ``bands``' and the record of what was measured
+(`SequenceAnalysis`) ``results``' (their public names stay importable from here); the text verdict and the
 ``oceanfield analyze`` command live in ``verdict``, the report picture in ``plot``. This
 module knows nothing of files or of synthesis.
 """
@@ -49,14 +52,18 @@ from __future__ import annotations
 
 import math
 import os
-from dataclasses import dataclass, field
-from typing import Any, Iterable
+from typing import Iterable
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from ..physics.constants import GRAVITY
 from ..physics.dispersion import angular_frequency, check_depth, group_velocity
+from .bands import _WINDOWED_MIN_INDEX, BandVerdict, _target_omnidirectional, band_comparison
+from .directions import _direction_edges, _directions, directional_moments
+from .folding import lateral_jacobian
+from .results import SequenceAnalysis, whole_degrees
+from .spectral import _peak, frequency_spectrum, hann_window, seam_ratio
 from .timing import (  # DispersionFit, fit_dispersion, measure_dispersion, TIMING_TOLERANCE: re-exported
     MOVING_FLOOR,
     TIMING_TOLERANCE,
@@ -66,6 +73,7 @@ from .timing import (  # DispersionFit, fit_dispersion, measure_dispersion, TIMI
     timing_notes,
 )
 
+# The names of the modules split from this one stay importable from here (re-exported).
 __all__ = [
     "MIN_FRAMES",
     "MIN_RESOLUTION",
@@ -86,12 +94,6 @@ __all__ = [
     "seam_ratio",
     "whole_degrees",
 ]
-
-def whole_degrees(angle: float | None) -> float | None:
-    """An angle in radians as whole degrees in [0, 360), or None where it is not a number."""
-    if angle is None or not math.isfinite(angle):
-        return None
-    return float(round(math.degrees(angle)) % 360)
 
 
 #: Fewest frames analysed: the positive half of a T-point transform has T/2 − 1
@@ -116,417 +118,6 @@ _CUBE_BYTES = 768 * 2**20
 _BLOCK_BYTES = 48 * 2**20
 #: Point time series for the frequency spectrum: at most this many points per side.
 _SERIES_POINTS = 64
-#: Half-octave band centres around the target's peak, in ωp, from 0.5 to 4.
-_BAND_EXPONENTS = (-2, -1, 0, 1, 2, 3, 4)
-#: A band is within expectation within ±25 % or three standard errors of its sampling
-#: error if larger (see `band_comparison`): seven bands are judged at once and a band's
-#: energy is skewed like a χ² of few degrees of freedom, so two would flag a correct sea
-#: too often (common practice).
-_BAND_TOLERANCE = 0.25
-_BAND_ERRORS = 3.0
-#: Bands holding less than this share of the target's variance on both sides are negligible.
-_NEGLIGIBLE_BAND = 1e-3
-#: Hann equivalent noise bandwidth in bins (Harris 1978, Table 1): neighbouring bins of a
-#: windowed transform share information, which widens the sampling error by about this
-#: factor per windowed dimension in variance.
-_HANN_ENBW = 1.5
-#: Lattice steps from k = 0 that a windowed spectrum cannot separate from the mean.
-_WINDOWED_MIN_INDEX = 2.5
-#: Directions in the polar histogram of the report.
-_DIRECTION_BINS = 36
-
-
-# -- results -----------------------------------------------------------------------------
-
-
-@dataclass(frozen=True)
-class BandVerdict:
-    """Energy in one frequency band, measured against a target spectrum.
-
-    The band is [omega_low, omega_high) rad/s, measured as the wavenumbers the target's
-    dispersion maps it to, [k_low, k_high) rad/m, so that the comparison is one of
-    spectral shape alone, independent of the timing (checked separately).
-    """
-
-    centre: float  # band centre in units of the target's ωp
-    omega_low: float
-    omega_high: float
-    k_low: float
-    k_high: float
-    measured: float  # m²
-    target: float  # m²
-    ratio: float  # measured / target (inf when the target holds nothing)
-    tolerance: float  # relative: ok within 1 ± tolerance
-    verdict: str  # ok | too much | too little | negligible | not resolved
-    partial: bool  # the band reaches beyond the wavenumbers the frames resolve
-
-
-@dataclass(frozen=True)
-class SequenceAnalysis:
-    """Everything measured on a height sequence (SI units; angles in radians, the mean
-    direction in (−π, π] counter-clockwise from +x, the direction waves travel towards;
-    `to_dict` gives it in degrees from 0 to 360)."""
-
-    frames: int
-    resolution: int
-    size: float
-    fps: float
-    periodic: bool
-    seam_ratio: float
-    m0: float
-    hs: float
-    tp: float
-    tp_from_wavenumber: float
-    tm01: float
-    tm02: float
-    mean_direction: float
-    directional_spread: float
-    significant_steepness: float
-    folded_fraction: float | None
-    dispersion: DispersionFit
-    bands: tuple[BandVerdict, ...] | None
-    nyquist_frequency: float
-    frequency_resolution: float
-    wavenumber_resolution: float
-    analysed_wavenumber: float
-    # spectra, for reports
-    wavenumbers: NDArray[np.float64] = field(repr=False)
-    wavenumber_spectrum: NDArray[np.float64] = field(repr=False)
-    frequencies: NDArray[np.float64] = field(repr=False)
-    frequency_spectrum: NDArray[np.float64] = field(repr=False)
-    annulus_power: NDArray[np.float64] = field(repr=False)
-    direction_bins: NDArray[np.float64] = field(repr=False)
-    direction_energy: NDArray[np.float64] = field(repr=False)
-    target_spectrum: NDArray[np.float64] | None = field(default=None, repr=False)
-    target_hs: float | None = None
-    target_tp: float | None = None
-    notes: tuple[str, ...] = ()
-
-    def to_dict(self) -> dict[str, Any]:
-        """Every figure as plain JSON-ready values; angles in degrees (keys say so)."""
-        fit = self.dispersion
-        data: dict[str, Any] = {
-            "frames": self.frames,
-            "resolution": self.resolution,
-            "size_m": self.size,
-            "fps": self.fps,
-            "duration_s": self.frames / self.fps,
-            "periodic": self.periodic,
-            "seam_ratio": self.seam_ratio,
-            "m0_m2": self.m0,
-            "hs_m": self.hs,
-            "tp_s": self.tp,
-            "tp_from_wavenumber_s": self.tp_from_wavenumber,
-            "tm01_s": self.tm01,
-            "tm02_s": self.tm02,
-            "towards_deg": math.degrees(self.mean_direction) % 360.0,
-            "directional_spread_deg": math.degrees(self.directional_spread),
-            "significant_steepness": self.significant_steepness,
-            "folded_fraction": self.folded_fraction,
-            "nyquist_frequency_radps": self.nyquist_frequency,
-            "frequency_resolution_radps": self.frequency_resolution,
-            "wavenumber_resolution_radpm": self.wavenumber_resolution,
-            "analysed_wavenumber_radpm": self.analysed_wavenumber,
-            "dispersion": {
-                "g_eff_over_g": fit.g_ratio,
-                "g_eff_over_g_error": fit.g_ratio_error,
-                "scale_factor": fit.scale_factor,
-                "playback_speed": fit.playback_speed,
-                "status": fit.status,
-                "depth_m": fit.depth,
-                "gravity_mps2": fit.gravity,
-                "bins_used": fit.bins_used,
-                "bins_energetic": fit.bins_energetic,
-                "bins_aliased": fit.bins_aliased,
-                "bins_too_slow": fit.bins_too_slow,
-                "aliased_energy_fraction": fit.aliased_energy_fraction,
-                "k_low_radpm": fit.k_low,
-                "k_high_radpm": fit.k_high,
-                "g_eff_over_g_low_half": fit.g_ratio_low,
-                "g_eff_over_g_high_half": fit.g_ratio_high,
-            },
-            "target_hs_m": self.target_hs,
-            "target_tp_s": self.target_tp,
-            "bands": None if self.bands is None else [
-                {
-                    "centre_over_peak": band.centre,
-                    "omega_low_radps": band.omega_low,
-                    "omega_high_radps": band.omega_high,
-                    "k_low_radpm": band.k_low,
-                    "k_high_radpm": band.k_high,
-                    "measured_m2": band.measured,
-                    "target_m2": band.target,
-                    "ratio": band.ratio,
-                    "tolerance": band.tolerance,
-                    "verdict": band.verdict,
-                    "partial": band.partial,
-                }
-                for band in self.bands
-            ],
-            "wavenumber_spectrum": {
-                "k_radpm": self.wavenumbers.tolist(),
-                "density_m3": self.wavenumber_spectrum.tolist(),
-            },
-            "frequency_spectrum": {
-                "omega_radps": self.frequencies.tolist(),
-                "density_m2s": self.frequency_spectrum.tolist(),
-            },
-            "notes": list(self.notes),
-        }
-        return _json_ready(data)
-
-
-def _json_ready(value: Any) -> Any:
-    """NaN and infinities become None (JSON has neither); numpy scalars become Python."""
-    if isinstance(value, dict):
-        return {key: _json_ready(item) for key, item in value.items()}
-    if isinstance(value, (list, tuple)):
-        return [_json_ready(item) for item in value]
-    if isinstance(value, (np.floating, float)):
-        number = float(value)
-        return number if math.isfinite(number) else None
-    if isinstance(value, np.integer):
-        return int(value)
-    if isinstance(value, np.bool_):
-        return bool(value)
-    return value
-
-
-# -- pure measurements -------------------------------------------------------------------
-
-
-def hann_window(n: int) -> NDArray[np.float64]:
-    """The periodic ("DFT-even") Hann window of n points, w_j = ½ − ½cos(2πj/n) (Harris 1978)."""
-    return 0.5 - 0.5 * np.cos(2.0 * np.pi * np.arange(n) / n)
-
-
-def seam_ratio(heights: ArrayLike) -> float:
-    """RMS jump across the edges of frames over the RMS step between neighbouring texels.
-
-    ``heights`` is one frame (n, n) or several (T, n, n), pooled. About 1 for a field that
-    repeats across its edges, above 1.4 for a resolved one that does not (see
-    `_SEAM_RATIO_PERIODIC`); nan for constant frames.
-    """
-    h = np.asarray(heights, dtype=np.float64)
-    inner = np.concatenate([np.diff(h, axis=-1).ravel(), np.diff(h, axis=-2).ravel()])
-    seam = np.concatenate([(h[..., :, 0] - h[..., :, -1]).ravel(), (h[..., 0, :] - h[..., -1, :]).ravel()])
-    inner_rms = math.sqrt(float(np.mean(inner**2)))
-    if inner_rms == 0.0:
-        return math.nan
-    return math.sqrt(float(np.mean(seam**2))) / inner_rms
-
-
-def frequency_spectrum(series: ArrayLike, fps: float) -> tuple[NDArray[np.float64], NDArray[np.float64]]:
-    """One-sided frequency spectrum S(ω) in m²·s/rad of time series, averaged over points.
-
-    Parameters
-    ----------
-    series : array_like, shape (T, P)
-        P time series of height in metres, T ≥ 2 samples at ``fps`` frames per second.
-    fps : float
-        Frames per second.
-
-    Returns
-    -------
-    omega : ndarray
-        ω_m = 2π m fps / T for m = 1 … T//2, rad/s.
-    density : ndarray
-        S(ω_m) with Σ S Δω ≈ the series' variance: Hann-windowed periodograms, divided by
-        mean(w²) for the window's energy loss (Harris 1978).
-    """
-    x = np.asarray(series, dtype=np.float64)
-    t = x.shape[0]
-    w = hann_window(t)
-    x = x - (w @ x) / w.sum()  # the window-weighted mean: no leakage from the mean
-    spectrum = np.fft.rfft(x * w[:, None], axis=0) / t
-    power = np.mean(np.abs(spectrum) ** 2, axis=1) / np.mean(w**2)
-    d_omega = 2.0 * math.pi * fps / t
-    one_sided = 2.0 * power[1:]
-    if t % 2 == 0:
-        one_sided[-1] = power[-1]  # the Nyquist bin has no mirror
-    omega = d_omega * np.arange(1, t // 2 + 1)
-    return omega, one_sided / d_omega
-
-
-def _peak(x: NDArray[np.float64], y: NDArray[np.float64]) -> float:
-    """Abscissa of the maximum of y(x) on a uniform grid, refined by a parabola through
-    the three samples around it (common practice); nan if y holds no energy."""
-    if y.size == 0 or not np.any(y > 0):
-        return math.nan
-    i = int(np.argmax(y))
-    if 0 < i < y.size - 1:
-        below, top, above = y[i - 1], y[i], y[i + 1]
-        curvature = below - 2.0 * top + above
-        offset = 0.5 * (below - above) / curvature if curvature < 0 else 0.0
-        return float(x[i] + offset * (x[i + 1] - x[i]))
-    return float(x[i])
-
-
-def directional_moments(directions: ArrayLike, energy: ArrayLike) -> tuple[float, float]:
-    """Mean direction and directional spread of energy at directions (radians).
-
-    a1 + i b1 = Σ E e^{iθ} / Σ E; mean direction atan2(b1, a1), spread
-    σ = √(2(1 − √(a1² + b1²))) (Kuik et al. 1988).
-    """
-    theta = np.asarray(directions, dtype=np.float64)
-    e = np.asarray(energy, dtype=np.float64)
-    total = float(e.sum())
-    if not total > 0:
-        return math.nan, math.nan
-    a1 = float(np.sum(e * np.cos(theta))) / total
-    b1 = float(np.sum(e * np.sin(theta))) / total
-    resultant = min(math.hypot(a1, b1), 1.0)
-    return math.atan2(b1, a1), math.sqrt(2.0 * (1.0 - resultant))
-
-
-def lateral_jacobian(
-    displacement_x: ArrayLike, displacement_y: ArrayLike, spacing: float, *, periodic: bool
-) -> NDArray[np.float64]:
-    """Jacobian determinant of the lateral map (x, y) → (x + Dx, y + Dy), dimensionless.
-
-    J = (1 + ∂Dx/∂x)(1 + ∂Dy/∂y) − (∂Dx/∂y)(∂Dy/∂x); J < 0 where the surface folds.
-    Derivatives are spectral for periodic frames, second-order central differences
-    otherwise. ``spacing`` is the texel size in metres, displacements in metres.
-    """
-    dx = np.asarray(displacement_x, dtype=np.float64)
-    dy = np.asarray(displacement_y, dtype=np.float64)
-    if periodic:
-        n_rows, n_cols = dx.shape
-        ky = 2.0 * np.pi * np.fft.fftfreq(n_rows, d=spacing)[:, None]
-        kx = 2.0 * np.pi * np.fft.rfftfreq(n_cols, d=spacing)[None, :]
-        if n_rows % 2 == 0:
-            ky[n_rows // 2] = 0.0  # the unpaired Nyquist row has no odd derivative
-        if n_cols % 2 == 0:
-            kx[:, -1] = 0.0
-        fx, fy = np.fft.rfft2(dx), np.fft.rfft2(dy)
-        shape = dx.shape
-        dxdx = np.fft.irfft2(1j * kx * fx, s=shape)
-        dxdy = np.fft.irfft2(1j * ky * fx, s=shape)
-        dydx = np.fft.irfft2(1j * kx * fy, s=shape)
-        dydy = np.fft.irfft2(1j * ky * fy, s=shape)
-    else:
-        dxdy, dxdx = np.gradient(dx, spacing)
-        dydy, dydx = np.gradient(dy, spacing)
-    return (1.0 + dxdx) * (1.0 + dydy) - dxdy * dydx
-
-
-def _target_omnidirectional(target, k: NDArray[np.float64]) -> NDArray[np.float64]:
-    """A target sea's omnidirectional wavenumber spectrum E(k) = S(ω(k))·dω/dk in m³/rad
-    (so that ∫E dk = m0); 0 at k = 0."""
-    kk = np.where(k > 0, k, 1.0)
-    density = target.frequency_spectrum(target.angular_frequency(kk)) * target.group_velocity(kk)
-    return np.where(k > 0, density, 0.0)
-
-
-def _target_isotropic_power(target, k: NDArray[np.float64], dk: float) -> NDArray[np.float64]:
-    """Variance a target sea puts on lattice points at |k| (m²), spread evenly over
-    direction: E(k)·Δk²/(2πk)."""
-    kk = np.where(k > 0, k, 1.0)
-    return np.where(k > 0, _target_omnidirectional(target, k) * dk * dk / (2.0 * math.pi * kk), 0.0)
-
-
-def band_comparison(
-    power: ArrayLike,
-    wavenumber: ArrayLike,
-    weight: ArrayLike,
-    dk: float,
-    target,
-    *,
-    k_max: float | None = None,
-    windowed: bool = False,
-) -> tuple[BandVerdict, ...]:
-    """Energy per half-octave band around the target's peak, measured against the target.
-
-    Parameters
-    ----------
-    power : array_like
-        Measured variance on each lattice point, m² (any shape; flattened).
-    wavenumber : array_like
-        |k| of each point, rad/m.
-    weight : array_like
-        How many lattice points each stands for (2 for a point of a half-plane whose
-        mirror −k is left out, 1 otherwise).
-    dk : float
-        Lattice spacing 2π/L, rad/m.
-    target : SeaState
-        The sea it should be.
-    k_max : float, optional
-        Largest |k| compared, rad/m: the radius of the full annuli, π n / L (the corners
-        of the lattice beyond it hold only part of each annulus, and a synthesiser may
-        leave them empty). Default: every point.
-    windowed : bool
-        Whether the measurement was windowed (widens the sampling error by the Hann
-        equivalent noise bandwidth, 1.5 bins per dimension, and leaves out |k| below
-        2.5 Δk, which the window mixes with the mean).
-
-    Returns
-    -------
-    tuple of BandVerdict
-        Bands centred at 0.5, 0.71, 1, 1.41, 2, 2.83 and 4 ωp, each half an octave wide.
-
-    Notes
-    -----
-    The target on each lattice point is the omnidirectional target spread evenly over
-    direction (E(k)Δk²/2πk), summed over the same points as the measurement, so the
-    tile's radial sampling is the same on both sides, whatever the sea's direction.
-
-    A random sea's band energy varies from one realisation to the next. On a lattice each
-    wave pair (k, −k) carries two independent complex Gaussian amplitudes, so its power P
-    (averaged over time) is a sum of two exponential variables of mean P̄/2: Var P = P̄²/2
-    and E P² = 3P̄²/2. The band sum B = Σ wP therefore has Var B = Σ w²P̄²/2 ≈ Σ w²P²/3,
-    estimated from the measured powers, so that a sea concentrated in few directions (few
-    lattice points) gets the wider tolerance it needs; a windowed measurement shares
-    information between neighbouring bins and widens it by the Hann equivalent noise
-    bandwidth (1.5 bins per dimension, Harris 1978). A band is "ok" within
-    ±max(25 %, 3 standard errors); time averaging of a sea whose amplitudes evolve only
-    narrows the true error, so the tolerance errs on the side of "ok".
-    """
-    p, k, w = (
-        np.ravel(a)
-        for a in np.broadcast_arrays(*(np.asarray(v, dtype=np.float64) for v in (power, wavenumber, weight)))
-    )
-    if k_max is None:
-        k_max = float(k.max())
-    # A window spreads each wavenumber over ±2 lattice steps (the Hann main lobe): the
-    # first two annuli of a windowed measurement hold the mean's and the longest waves'
-    # leakage, not their own energy.
-    k_min = _WINDOWED_MIN_INDEX * dk if windowed else 0.0
-    compared = (k <= k_max * (1.0 + 1e-12)) & (k >= k_min)
-    p, k, w = p[compared], k[compared], w[compared]
-    expected = _target_isotropic_power(target, k, dk)
-    total_target = target.moment(0)
-    peak = target.peak_frequency()
-    verdicts = []
-    for exponent in _BAND_EXPONENTS:
-        centre = 2.0 ** (exponent / 2.0)
-        w_low, w_high = peak * centre * 2.0 ** -0.25, peak * centre * 2.0 ** 0.25
-        k_low, k_high = (float(v) for v in target.wavenumber(np.array([w_low, w_high])))
-        inside = (k >= k_low) & (k < k_high)
-        measured = float(np.sum(w[inside] * p[inside]))
-        expect = float(np.sum(w[inside] * expected[inside]))
-        if not inside.any() or k_low > k_max:
-            verdicts.append(BandVerdict(centre, w_low, w_high, k_low, k_high, measured, expect,
-                                        math.nan, math.nan, "not resolved", True))
-            continue
-        # Sampling error from the measured powers (see Notes): Var ≈ Σ w²P²/3.
-        spread = math.sqrt(float(np.sum((w[inside] * p[inside]) ** 2)) / 3.0)
-        if windowed:
-            spread *= _HANN_ENBW  # variance × ENBW² over two windowed dimensions
-        relative_error = spread / measured if measured > 0 else math.inf
-        tolerance = max(_BAND_TOLERANCE, _BAND_ERRORS * relative_error)
-        ratio = measured / expect if expect > 0 else (math.inf if measured > 0 else math.nan)
-        if expect < _NEGLIGIBLE_BAND * total_target and measured < _NEGLIGIBLE_BAND * total_target:
-            verdict = "negligible"
-        elif ratio > 1.0 + tolerance:
-            verdict = "too much"
-        elif ratio < 1.0 - min(tolerance, 0.9):
-            verdict = "too little"
-        else:
-            verdict = "ok"
-        partial = k_high > k_max or k_low < max(dk, k_min)
-        verdicts.append(BandVerdict(centre, w_low, w_high, k_low, k_high, measured, expect,
-                                    ratio, tolerance, verdict, partial))
-    return tuple(verdicts)
 
 
 # -- the streaming accumulator -----------------------------------------------------------
@@ -863,50 +454,6 @@ class SequenceAccumulator:
             "forward": forward,
             "backward": backward,
         }
-
-
-def _direction_edges() -> NDArray[np.float64]:
-    """Edges of the direction bins of the polar histogram, radians."""
-    return np.linspace(-math.pi, math.pi, _DIRECTION_BINS + 1)
-
-
-def _directions(
-    cube: dict[str, NDArray], fit: DispersionFit, kept_index: int, still: bool, duration: str
-) -> tuple[float, float, NDArray[np.float64], list[str]]:
-    """Mean direction of travel, spread, energy per direction bin, and notes.
-
-    Only annuli below the first aliased one count (above it waves can appear in the
-    wrong half of the spectrum), and only those whose frequency is resolved: a wave
-    within 3 bins of ω = 0 leaks into the opposite half through the window and would
-    read as running both ways.
-    """
-    notes: list[str] = []
-    aliased = np.flatnonzero(fit.aliased)
-    cut = int(aliased.min()) - 1 if aliased.size else kept_index
-    annulus = cube["point_annulus"]
-    total = cube["forward"] + cube["backward"]
-    below_cut = (annulus >= 1) & (annulus <= cut)
-    keep = below_cut & fit.resolved[np.minimum(annulus, fit.resolved.size - 1)]
-    all_energy = float(np.sum(total[below_cut]))
-    kept_energy = float(np.sum(total[keep]))
-    if not still and not kept_energy > MOVING_FLOOR * all_energy:
-        keep = below_cut
-        notes.append(
-            f"the waves are too slow for a {duration} sequence to tell which way they run: the directional "
-            f"spread reads wider than it is"
-        )
-    elif not still and kept_energy < 0.5 * all_energy:
-        notes.append(
-            f"most of the energy is in waves too slow for a {duration} sequence to tell which way they run; "
-            f"the direction comes from the {kept_energy / all_energy:.0%} that are resolved"
-        )
-    theta = np.concatenate([cube["theta"][keep], cube["theta"][keep] + math.pi])
-    energy = np.concatenate([cube["forward"][keep], cube["backward"][keep]])
-    if still:  # round-off has no direction
-        energy = np.zeros_like(energy)
-    mean, spread = directional_moments(theta, energy)
-    histogram = np.histogram(np.angle(np.exp(1j * theta)), bins=_direction_edges(), weights=energy)[0]
-    return mean, spread, histogram, notes
 
 
 def analyze_heights(

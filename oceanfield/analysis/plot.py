@@ -21,7 +21,7 @@ from pathlib import Path
 
 import numpy as np
 
-from .measure import SequenceAnalysis, whole_degrees
+from .results import SequenceAnalysis, whole_degrees
 from .reliability import MIN_CYCLES, assess, band_scales
 from ..physics.dispersion import angular_frequency
 from ..io.atomic import atomic_output

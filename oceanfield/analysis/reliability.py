@@ -1,6 +1,6 @@
 """What a clip can support: which measured figures its length or its tile leave unreliable.
 
-Knows nothing of synthesis: it judges a `oceanfield.analysis.measure.SequenceAnalysis`.
+Knows nothing of synthesis: it judges a `oceanfield.analysis.results.SequenceAnalysis`.
 
 A clip of duration D resolves frequencies in steps of Δω = 2π/D. A period T sits at
 D/T frequency bins; with fewer than three the periodogram's peak is set by the clip's
@@ -32,7 +32,7 @@ from typing import Any
 
 import numpy as np
 
-from .measure import SequenceAnalysis
+from .results import SequenceAnalysis
 from ..physics.constants import GRAVITY
 from ..physics.dispersion import wavenumber
 

@@ -2,7 +2,7 @@
 
 Knows nothing of synthesis or formulas: it reads, measures (``measure``) and words the result.
 
-`format_verdict` turns a `oceanfield.analysis.measure.SequenceAnalysis` into a short text: the
+`format_verdict` turns a `oceanfield.analysis.results.SequenceAnalysis` into a short text: the
 sequence, its heights, periods and direction, the timing (g_eff/g, and for wrong timing
 the scale the motion implies and the playback speed that corrects it: Froude scaling,
 time ∝ √length), the spectrum band by band against a preset, then one line of verdict
@@ -30,10 +30,9 @@ from .measure import (
     MIN_RESOLUTION,
     TIMING_TOLERANCE,
     SequenceAccumulator,
-    SequenceAnalysis,
     check_positive,
-    whole_degrees,
 )
+from .results import SequenceAnalysis, whole_degrees
 from .reliability import Reliability, assess, band_scales
 from ..physics.dispersion import check_depth
 from ..io.exr import set_encoder_threads

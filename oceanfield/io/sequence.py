@@ -65,8 +65,8 @@ def folder_sequence(folder: str) -> str:
     Files named ``<prefix><frame digits>.exr`` (or ``.png``) are grouped by prefix and
     extension. One group is taken as it is; among several, a ``height`` sequence, then a
     ``displacement`` one (oceanfield's own maps) is chosen, of a band stack's render the
-    ``composite_`` one, else ``band0_`` (the widest band); otherwise the groups are listed
-    so the user can pick one.
+    ``composite_`` one, else ``band0_`` (the widest band), and the sea's before a wake's
+    (``wake_``); otherwise the groups are listed so the user can pick one.
 
     Raises
     ------
@@ -91,6 +91,8 @@ def folder_sequence(folder: str) -> str:
     else:
         for name in _PREFERRED_MAPS:
             matches = [key for key in groups if key[0].rstrip("._-").lower().endswith(name)]
+            # a render with vessels: the sea's maps, not the wake's (wake_<map>, its own region)
+            matches = [key for key in matches if not key[0].lower().startswith("wake_")] or matches
             if len(matches) > 1:  # a band stack's render: the bands summed, else its widest band
                 matches = ([key for key in matches if key[0].lower().startswith("composite")]
                            or [key for key in matches if key[0].lower().startswith("band0_")])

@@ -1,7 +1,8 @@
 """An OpenUSD stage of an animated shot, through the ``usd-core`` package (optional extra).
 
 Knows nothing of physics: it takes arrays already in scene axes and units, and frame
-numbers, and writes them as a USD stage.
+numbers, and writes them as a USD stage; it also reads a layout prim's animated origin
+(`read_prim_track`, for a course).
 
 The stage (``/Shot`` is its default prim):
 
@@ -16,6 +17,8 @@ The stage (``/Shot`` is its default prim):
   plus one ``UsdUVTexture`` per other map sequence with its file time-sampled frame by
   frame, documented but not wired (the mesh is already displaced; a normal map in scene
   axes is not the tangent-space normal ``UsdPreviewSurface`` expects);
+* ``/Shot/Wake`` (a preset with vessels): a second mesh, a patch over the wake region, with
+  its own material ``/Shot/Looks/WakeMaterial`` (the same shape, textures clamped);
 * ``/Shot/Probes/<name>``: an ``Xform`` with a time-sampled translate per probe;
 * ``/Shot/Bodies/<name>``: an ``Xform`` with a time-sampled 4×4 transform per body.
 
@@ -37,7 +40,7 @@ from numpy.typing import NDArray
 
 from oceanfield.io.atomic import atomic_output, prepare_output
 
-__all__ = ["USD_SUFFIXES", "Look", "SeaMesh", "require_usd", "write_stage"]
+__all__ = ["USD_SUFFIXES", "Look", "PrimTrack", "SeaMesh", "read_prim_track", "require_usd", "write_stage"]
 
 #: File suffixes a stage can be written as.
 USD_SUFFIXES = (".usda", ".usd", ".usdc")
@@ -82,6 +85,8 @@ class Look:
     foam_map: str | None = "foam"
     water_colour: tuple[float, float, float] = (0.02, 0.08, 0.10)
     notes: Mapping[str, str] = field(default_factory=dict)
+    #: how textures wrap beyond [0, 1]: ``repeat`` for the tiled sea, ``clamp`` for a patch
+    wrap: str = "repeat"
 
 
 def write_stage(
@@ -96,6 +101,8 @@ def write_stage(
     probes: Mapping[str, NDArray[np.float64]] | None = None,
     bodies: Mapping[str, NDArray[np.float64]] | None = None,
     comment: str = "",
+    wake: SeaMesh | None = None,
+    wake_look: Look | None = None,
 ) -> Path:
     """Write the shot as a USD stage (see the module notes); returns the path.
 
@@ -122,6 +129,9 @@ def write_stage(
         the last row).
     comment : str
         The root layer's comment.
+    wake, wake_look : SeaMesh and Look, optional
+        A second mesh, ``/Shot/Wake`` (a patch over a wake region), and its material
+        ``/Shot/Looks/WakeMaterial``.
     """
     require_usd()
     from pxr import Gf, Sdf, Tf, Usd, UsdGeom, UsdShade, Vt
@@ -143,27 +153,15 @@ def write_stage(
     shot = UsdGeom.Xform.Define(stage, "/Shot")
     stage.SetDefaultPrim(shot.GetPrim())
 
-    sea = UsdGeom.Mesh.Define(stage, "/Shot/Sea")
-    sea.CreateSubdivisionSchemeAttr(UsdGeom.Tokens.none)
-    sea.CreateFaceVertexCountsAttr(Vt.IntArray.FromNumpy(np.ascontiguousarray(mesh.face_vertex_counts, np.int32)))
-    sea.CreateFaceVertexIndicesAttr(Vt.IntArray.FromNumpy(np.ascontiguousarray(mesh.face_vertex_indices, np.int32)))
-    points_attr = sea.CreatePointsAttr()
-    normals_attr = sea.CreateNormalsAttr()
-    sea.SetNormalsInterpolation(UsdGeom.Tokens.vertex)
-    extent_attr = sea.CreateExtentAttr()
-    for index, frame in enumerate(frames):
-        time = Usd.TimeCode(frame)
-        points = np.ascontiguousarray(mesh.points[index], dtype=np.float32)
-        points_attr.Set(Vt.Vec3fArray.FromNumpy(points), time)
-        normals_attr.Set(Vt.Vec3fArray.FromNumpy(np.ascontiguousarray(mesh.normals[index], dtype=np.float32)), time)
-        extent_attr.Set(Vt.Vec3fArray.FromNumpy(np.stack([points.min(axis=0), points.max(axis=0)])), time)
-    st = UsdGeom.PrimvarsAPI(sea.GetPrim()).CreatePrimvar(
-        "st", Sdf.ValueTypeNames.TexCoord2fArray, UsdGeom.Tokens.vertex)
-    st.Set(Vt.Vec2fArray.FromNumpy(np.ascontiguousarray(mesh.st, dtype=np.float32)))
-
+    sea = _mesh(stage, "/Shot/Sea", mesh, frames, Sdf, Usd, UsdGeom, Vt)
     if look is not None:
         material = _material(stage, look, frames, Sdf, Usd, UsdShade)
         UsdShade.MaterialBindingAPI.Apply(sea.GetPrim()).Bind(material)
+    if wake is not None:
+        patch = _mesh(stage, "/Shot/Wake", wake, frames, Sdf, Usd, UsdGeom, Vt)
+        if wake_look is not None:
+            material = _material(stage, wake_look, frames, Sdf, Usd, UsdShade, root="/Shot/Looks/WakeMaterial")
+            UsdShade.MaterialBindingAPI.Apply(patch.GetPrim()).Bind(material)
 
     for group, items in (("Probes", probes or {}), ("Bodies", bodies or {})):
         if not items:
@@ -190,9 +188,30 @@ def write_stage(
     return final
 
 
-def _material(stage, look: Look, frames: Sequence[int], Sdf, Usd, UsdShade):
+def _mesh(stage, path: str, mesh: SeaMesh, frames: Sequence[int], Sdf, Usd, UsdGeom, Vt):
+    """A quad mesh with time-sampled points, normals and extent, and its ``st`` coordinates."""
+    prim = UsdGeom.Mesh.Define(stage, path)
+    prim.CreateSubdivisionSchemeAttr(UsdGeom.Tokens.none)
+    prim.CreateFaceVertexCountsAttr(Vt.IntArray.FromNumpy(np.ascontiguousarray(mesh.face_vertex_counts, np.int32)))
+    prim.CreateFaceVertexIndicesAttr(Vt.IntArray.FromNumpy(np.ascontiguousarray(mesh.face_vertex_indices, np.int32)))
+    points_attr = prim.CreatePointsAttr()
+    normals_attr = prim.CreateNormalsAttr()
+    prim.SetNormalsInterpolation(UsdGeom.Tokens.vertex)
+    extent_attr = prim.CreateExtentAttr()
+    for index, frame in enumerate(frames):
+        time = Usd.TimeCode(frame)
+        points = np.ascontiguousarray(mesh.points[index], dtype=np.float32)
+        points_attr.Set(Vt.Vec3fArray.FromNumpy(points), time)
+        normals_attr.Set(Vt.Vec3fArray.FromNumpy(np.ascontiguousarray(mesh.normals[index], dtype=np.float32)), time)
+        extent_attr.Set(Vt.Vec3fArray.FromNumpy(np.stack([points.min(axis=0), points.max(axis=0)])), time)
+    st = UsdGeom.PrimvarsAPI(prim.GetPrim()).CreatePrimvar(
+        "st", Sdf.ValueTypeNames.TexCoord2fArray, UsdGeom.Tokens.vertex)
+    st.Set(Vt.Vec2fArray.FromNumpy(np.ascontiguousarray(mesh.st, dtype=np.float32)))
+    return prim
+
+
+def _material(stage, look: Look, frames: Sequence[int], Sdf, Usd, UsdShade, root: str = "/Shot/Looks/SeaMaterial"):
     """The preview material: foam → diffuse colour, every map sequence as a texture."""
-    root = "/Shot/Looks/SeaMaterial"
     material = UsdShade.Material.Define(stage, root)
     surface = UsdShade.Shader.Define(stage, f"{root}/PreviewSurface")
     surface.CreateIdAttr("UsdPreviewSurface")
@@ -218,8 +237,8 @@ def _material(stage, look: Look, frames: Sequence[int], Sdf, Usd, UsdShade):
         for frame, file in zip(frames, files):
             file_input.Set(Sdf.AssetPath(file), Usd.TimeCode(frame))
         texture.CreateInput("st", Sdf.ValueTypeNames.Float2).ConnectToSource(reader_output)
-        texture.CreateInput("wrapS", Sdf.ValueTypeNames.Token).Set("repeat")
-        texture.CreateInput("wrapT", Sdf.ValueTypeNames.Token).Set("repeat")
+        texture.CreateInput("wrapS", Sdf.ValueTypeNames.Token).Set(look.wrap)
+        texture.CreateInput("wrapT", Sdf.ValueTypeNames.Token).Set(look.wrap)
         texture.CreateInput("sourceColorSpace", Sdf.ValueTypeNames.Token).Set("raw")
         rgb = texture.CreateOutput("rgb", Sdf.ValueTypeNames.Float3)
         texture.CreateOutput("r", Sdf.ValueTypeNames.Float)
@@ -232,3 +251,78 @@ def _material(stage, look: Look, frames: Sequence[int], Sdf, Usd, UsdShade):
         if note:
             texture.GetPrim().SetDocumentation(note)
     return material
+
+
+@dataclass(frozen=True, eq=False)
+class PrimTrack:
+    """Where a prim's origin is over time in a USD layout, as the file stores it.
+
+    ``codes`` are the time codes sampled (increasing), ``points`` (codes, 3) the prim's
+    world-space origin at each in the stage's own units and axes, with the stage's
+    ``metres_per_unit``, ``up_axis`` (``"y"`` or ``"z"``; each None where the layout does
+    not author it) and ``codes_per_second``.
+    """
+
+    path: Path
+    prim: str
+    codes: NDArray[np.float64]
+    points: NDArray[np.float64]
+    metres_per_unit: float | None
+    up_axis: str | None
+    codes_per_second: float
+
+
+def read_prim_track(path: str | os.PathLike[str], prim: str) -> PrimTrack:
+    """The world-space origin of ``prim`` at every time code where it or a parent moves.
+
+    The time codes are the union of the time samples of the prim's and its ancestors'
+    transform operations; the origin is the translation of the prim's local-to-world
+    matrix there (``UsdGeom.Xformable.ComputeLocalToWorldTransform``).
+
+    Raises
+    ------
+    ValueError
+        One line: usd-core missing (naming the extra), the file not a stage, no such prim,
+        a prim that is not transformable, or fewer than two time samples.
+    """
+    require_usd()
+    from pxr import Sdf, Usd, UsdGeom
+
+    path = Path(path)
+    try:
+        stage = Usd.Stage.Open(str(path))
+    except Exception as error:  # noqa: BLE001 - pxr raises its own error types
+        first = str(error).strip().splitlines()[0] if str(error).strip() else type(error).__name__
+        raise ValueError(f"{path}: not a USD stage ({first})") from None
+    if stage is None:
+        raise ValueError(f"{path}: not a USD stage")
+    if not Sdf.Path.IsValidPathString(prim) or not prim.startswith("/"):
+        raise ValueError(f"{path}: `{prim}` is not an absolute prim path (e.g. /Layout/Boat)")
+    found = stage.GetPrimAtPath(prim)
+    if not found or not found.IsValid():
+        raise ValueError(f"{path}: no prim at `{prim}`")
+    xformable = UsdGeom.Xformable(found)
+    if not xformable:
+        raise ValueError(f"{path}: `{prim}` is a {found.GetTypeName() or 'typeless prim'}, not a transformable prim")
+    codes: set[float] = set()
+    walk = found
+    while walk and walk.IsValid() and not walk.IsPseudoRoot():
+        parent_xform = UsdGeom.Xformable(walk)
+        if parent_xform:
+            codes.update(float(code) for code in parent_xform.GetTimeSamples())
+        walk = walk.GetParent()
+    ordered = np.array(sorted(codes), dtype=np.float64)
+    if ordered.size < 2:
+        raise ValueError(f"{path}: `{prim}` is not animated (its transform has {ordered.size} time sample(s); "
+                         f"a course needs at least two)")
+    cache = UsdGeom.XformCache()
+    points = np.empty((ordered.size, 3), dtype=np.float64)
+    for i, code in enumerate(ordered):
+        cache.SetTime(Usd.TimeCode(float(code)))
+        translation = cache.GetLocalToWorldTransform(found).ExtractTranslation()
+        points[i] = (translation[0], translation[1], translation[2])
+    # USD's fallbacks when a layout does not say (centimetres, Y up) are left to the caller
+    authored = stage.HasAuthoredMetadata
+    metres = float(UsdGeom.GetStageMetersPerUnit(stage)) if authored("metersPerUnit") else None
+    up = str(UsdGeom.GetStageUpAxis(stage)).lower() if authored("upAxis") else None
+    return PrimTrack(path, prim, ordered, points, metres, up, float(stage.GetTimeCodesPerSecond()))

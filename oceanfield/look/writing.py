@@ -20,7 +20,7 @@ from .optics import EARTH_RADIUS
 from .picture import Look
 from .sky import Sky
 
-__all__ = ["DEFAULTS", "write_still", "write_look_flipbook", "look_from_arguments"]
+__all__ = ["DEFAULTS", "write_still", "write_look_flipbook", "look_from_arguments", "compile_look_kernels"]
 
 #: The command's defaults (metres, degrees, pixels).
 DEFAULTS = dict(camera_height=10.0, pitch=-8.0, fov=60.0, sun_elevation=25.0, sun_from_view=20.0,
@@ -74,6 +74,16 @@ def look_from_arguments(preset, args) -> Look:
     sky = Sky(math.radians(elevation), math.radians(azimuth), turbidity)
     return Look(preset, camera, sky, exposure=exposure, earth_radius=math.inf if args.flat_sea else EARTH_RADIUS,
                 haze=not getattr(args, "clear_air", False))
+
+
+def compile_look_kernels() -> None:
+    """Run the look's kernels once on a tiny picture of a tiny tile (`oceanfield compile`)."""
+    from ..preset.schema import load_preset
+
+    preset = load_preset("glassy_calm", overrides=["tile.resolution=32"])
+    look = Look(preset, Camera(10.0, 0.0, math.radians(-8.0), math.radians(60.0), 32, 18),
+                Sky(math.radians(25.0), math.radians(20.0), 3.0))
+    look.picture(look.render())
 
 
 def _out(preset, out, suffixes: tuple[str, ...], default_suffix: str) -> Path:

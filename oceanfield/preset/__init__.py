@@ -6,8 +6,13 @@ which makes its ``SeaState`` and ``Ocean``; this package also reports a preset i
 
 ==============  ==================================================================
 ``_yamltree``   located YAML: safe parse with file:line, ``extends``, ``--set`` overrides
-``schema``      the settings, defaults, validation, dump and hash; ``load_preset``
+``schema``      ``load_preset`` by name or path; re-exports the three below
+``settings``    the resolved settings (``Preset`` and its sections); ``to_sea_state``
+``reading``     every key's default and check, from the located tree
+``resolved``    the resolved preset as editable YAML (``dump_preset``) and its hash
 ``record``      a component sized by a measured wave record (file, directions, tail)
+``courses``     a vessel's course: keyframes, a CSV table or a USD prim, in SI units
+``vessels``     the ``vessels`` and ``wake`` sections: region, the preset's ``Wake``, report
 ``warnings``    physically doubtful choices in a valid preset, one sentence each
 ``stats``       the numbers behind ``oceanfield stats``; the folded share
 ``preview``     the preview picture (matplotlib)
@@ -24,3 +29,9 @@ from .stats import *  # noqa: F401,F403  (the names in stats.__all__)
 from .preview import *  # noqa: F401,F403  (the names in preview.__all__)
 
 __all__ = [*_schema.__all__, *_record.__all__, *_warnings.__all__, *_stats.__all__, *_preview.__all__]
+
+from . import courses as _courses, vessels as _vessels  # moving bodies and their wake
+from .courses import *  # noqa: F401,F403,E402  (the names in courses.__all__)
+from .vessels import *  # noqa: F401,F403,E402  (the names in vessels.__all__)
+
+__all__ += [*_courses.__all__, *_vessels.__all__]

@@ -199,14 +199,15 @@ def preview_figure(preset, *, frame: int | None = None):
     unit, factor = _unit_for(size)
     extent = (0.0, size * factor, 0.0, size * factor)
 
-    figure = plt.figure(figsize=(16, 10), dpi=100)
+    columns = 4 if preset.vessels else 3  # a fourth column for the wake (preset.vessels)
+    figure = plt.figure(figsize=(16 + 5 * (columns - 3), 10), dpi=100)
     figure.suptitle(
         f"{preset.name}: {preset.description}\nframe {frame} (t = {t:.2f} s), Hs {length_text(stats.hs)}, "
         f"Tp {stats.tp:.3g} s, peak wavelength {length_text(stats.peak_wavelength)}, {what}",
         fontsize=10,
     )
 
-    top_axes = figure.add_subplot(2, 3, 1)
+    top_axes = figure.add_subplot(2, columns, 1)
     picture = shade_top(fields.normal[:texels, :texels], fields.foam[:texels, :texels],
                         sun_azimuth=stats.mean_direction + math.pi)
     top_axes.imshow(picture, origin="lower", extent=(0.0, across * factor, 0.0, across * factor),
@@ -215,7 +216,7 @@ def preview_figure(preset, *, frame: int | None = None):
     top_axes.set_xlabel(f"x ({unit})")
     top_axes.set_ylabel(f"y ({unit})")
 
-    height_axes = figure.add_subplot(2, 3, 2)
+    height_axes = figure.add_subplot(2, columns, 2)
     limit = float(np.max(np.abs(fields.height))) or 1.0
     h_unit, h_factor = _unit_for(limit)
     image = height_axes.imshow(fields.height * h_factor, origin="lower", extent=extent, cmap="RdBu_r",
@@ -224,19 +225,74 @@ def preview_figure(preset, *, frame: int | None = None):
     height_axes.set_title("height, top view", fontsize=10)
     height_axes.set_xlabel(f"x ({unit})")
 
-    foam_axes = figure.add_subplot(2, 3, 3)
+    foam_axes = figure.add_subplot(2, columns, 3)
     image = foam_axes.imshow(fields.foam, origin="lower", extent=extent, cmap="Greys_r", vmin=0.0, vmax=1.0)
     figure.colorbar(image, ax=foam_axes, label="foam (0–1)")
     covered = float(np.mean(fields.foam > 0.5))
     foam_axes.set_title(f"foam, top view: {covered:.1%} of the surface above 0.5", fontsize=10)
     foam_axes.set_xlabel(f"x ({unit})")
 
-    _spectrum_panel(figure.add_subplot(2, 3, 4), preset, sea, carried)
-    _direction_panel(figure.add_subplot(2, 3, 5, projection="polar"), sea, stats)
-    _figures_panel(figure.add_subplot(2, 3, 6), preset, stats)
+    _spectrum_panel(figure.add_subplot(2, columns, columns + 1), preset, sea, carried)
+    _direction_panel(figure.add_subplot(2, columns, columns + 2, projection="polar"), sea, stats)
+    _figures_panel(figure.add_subplot(2, columns, columns + 3), preset, stats)
+    if preset.vessels:
+        _wake_panels(figure, figure.add_subplot(2, columns, 4), figure.add_subplot(2, columns, 2 * columns),
+                     preset, t, None if preset.bands.active else fields)
 
     figure.tight_layout()
     return figure
+
+
+def _wake_panels(figure, height_axes, foam_axes, preset, t: float, sea_fields) -> None:
+    """The wake region: the sea's height (the tile repeated, nearest texel) plus the wake's,
+    and the wake alone with its foam outlined, each with the courses drawn and the vessels
+    where they are at t."""
+    from .vessels import preset_wake
+
+    wake = preset_wake(preset)
+    fields = wake.frame(t)
+    region = wake.region
+    n = region.resolution
+    height = fields.height.astype(np.float64)
+    what = "wake"
+    if sea_fields is not None:  # the tiled sea under it: texel (iy, ix) of the region at x0 + ix·s
+        size, count = preset.tile.size_m, preset.tile.resolution
+        spacing = size / count
+        cells = np.arange(n) * region.spacing
+        ix = np.rint((region.origin_x + cells) / spacing).astype(np.int64) % count
+        iy = np.rint((region.origin_y + cells) / spacing).astype(np.int64) % count
+        height = height + sea_fields.height[iy[:, None], ix[None, :]]
+        what = "sea + wake"
+    unit, factor = _unit_for(region.size)
+    extent = tuple(v * factor for v in (region.origin_x, region.origin_x + region.size,
+                                        region.origin_y, region.origin_y + region.size))
+    limit = float(np.max(np.abs(height))) or 1.0
+    h_unit, h_factor = _unit_for(limit)
+    image = height_axes.imshow(height * h_factor, origin="lower", extent=extent, cmap="RdBu_r",
+                               vmin=-limit * h_factor, vmax=limit * h_factor)
+    figure.colorbar(image, ax=height_axes, label=f"height ({h_unit})")
+    height_axes.set_title(f"{what} height over the wake region", fontsize=10)
+    # the near field peaks at the hulls: scale to the wake's body (99.5th percentile) so the
+    # Kelvin pattern behind them reads
+    alone = float(np.percentile(np.abs(fields.height), 99.5)) or float(np.max(np.abs(fields.height))) or 1.0
+    w_unit, w_factor = _unit_for(alone)
+    image = foam_axes.imshow(fields.height * w_factor, origin="lower", extent=extent, cmap="RdBu_r",
+                             vmin=-alone * w_factor, vmax=alone * w_factor)
+    figure.colorbar(image, ax=foam_axes, label=f"wake height ({w_unit})")
+    if float(fields.foam.max()) > 0.25:
+        foam_axes.contour(fields.foam, levels=[0.25], extent=extent, colors="0.3", linewidths=0.6)
+    foam_axes.set_title("the wake alone, foam (grey outline), courses and vessels", fontsize=10)
+    for axes in (height_axes, foam_axes):
+        for vessel, (hull, course) in zip(preset.vessels, wake.vessels):
+            axes.plot(course.x * factor, course.y * factor, lw=0.8, color="gold")
+            x, y = course.position(np.array([t]))
+            axes.plot(x * factor, y * factor, "o", ms=4, color="orange")
+            axes.annotate(vessel.name, (float(x[0]) * factor, float(y[0]) * factor), fontsize=7, color="orange",
+                          xytext=(4, 4), textcoords="offset points")
+        axes.set_xlim(extent[0], extent[1])
+        axes.set_ylim(extent[2], extent[3])
+        axes.set_xlabel(f"x ({unit})")
+        axes.set_ylabel(f"y ({unit})")
 
 
 def _spectrum_panel(axes, preset, sea, carried) -> None:

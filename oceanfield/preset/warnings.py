@@ -13,7 +13,7 @@ from dataclasses import replace
 
 from ..physics.constants import SURFACE_TENSION
 from ..physics.seastate import SeaState
-from .schema import Preset, _component
+from .settings import Preset, _component
 
 __all__ = ["preset_warnings"]
 
@@ -39,6 +39,8 @@ def preset_warnings(preset: Preset, *, sea_state: SeaState | None = None) -> lis
     by more than 5 % while it is off, that the small-wave cut-off spares the peak, that a
     loop is a whole number of frames and moves no component's peak frequency by more than
     5 %, and that data maps are not written lossy. All thresholds are common practice.
+    A preset with vessels adds the wake's own notes (``Wake.notes``: hull and depth Froude
+    numbers where linear theory fails, a course leaving the region, a short look-back).
 
     Parameters
     ----------
@@ -118,6 +120,10 @@ def preset_warnings(preset: Preset, *, sea_state: SeaState | None = None) -> lis
             )
 
     warnings.extend(_loop_warnings(preset, sea_state))
+    if preset.vessels:
+        from .vessels import wake_notes
+
+        warnings.extend(wake_notes(preset))
 
     lossy = [name for name in preset.maps if name in DATA_MAPS]
     if preset.output.format == "exr" and preset.output.compression == "dwaa" and lossy:

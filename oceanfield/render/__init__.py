@@ -9,7 +9,9 @@ knows nothing of formulas.
 ============  ====================================================================
 ``plan``      which frames and files a job has, and which are already complete
 ``writing``   one frame's files: encode, then write while the next frame computes
-``job``       executors, manifest, resume, progress and the ``render`` command
+``job``       workers chosen, summary, interrupts, progress and the ``render`` command
+``workers``   the frame loop, local worker processes and Dask tasks (executors)
+``manifest``  the folder's manifest; frames of other settings refused or removed
 ``shot``      the ``probe``, ``float`` and ``scene`` commands (CSV, JSON, USD)
 ============  ====================================================================
 """

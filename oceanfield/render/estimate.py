@@ -6,8 +6,8 @@ frames in flight). The time is a model calibrated on this machine a moment befor
 the inverse FFTs of a small frame are timed and scaled by N² log N to the job's size
 (a frame costs about ``_FRAME_OVER_FFT`` times its bare FFTs and writing overlaps it);
 building the amplitudes costs about ``_BUILD_OVER_SPECTRUM`` times the sea's spectrum on
-every lattice point, timed on a sample. The render prints the first frame's real time
-too, so a wrong guess is corrected within a frame.
+every lattice point, timed on a sample. A preset with vessels adds one wake frame, timed (after a first that loads its kernels). The render prints the first frame's real time too, so a wrong
+guess is corrected within a frame.
 """
 
 from __future__ import annotations
@@ -34,6 +34,9 @@ _COMPUTE_OVER_FFT = 2.0
 #: Drawing h0 on the lattice costs about this many times the spectrum's evaluation there
 #: (keyed noise, square roots, the |k|² table; measured at 1024²).
 _BUILD_OVER_SPECTRUM = 1.5
+#: Bytes a worker holds per texel of the wake's padded lattice: eleven real planes and
+#: their half spectra (complex64), and the region's Fields.
+_WAKE_BYTES_PER_TEXEL = 11 * 4 + 11 * 4 + 8 * 4
 _CALIBRATION_N = 256
 _SAMPLE_POINTS = 1 << 15
 
@@ -84,6 +87,18 @@ def estimate_work(preset, frames: int, workers: int, cores: int, *, written: boo
     started = time.perf_counter()
     sea.directional_spectrum(k * 0.6, k * 0.8)
     build = _BUILD_OVER_SPECTRUM * (time.perf_counter() - started) / _SAMPLE_POINTS * n * n
+    if preset.vessels:  # the wake's frame on its own padded lattice, beside the sea's
+        from ..preset.vessels import preset_wake
+
+        # Its cost follows the courses' pieces and the hulls' spectra more than the lattice
+        # (measured 3.7 to 35 times its FFTs), so one frame is timed rather than modelled.
+        wake = preset_wake(preset, velocity=False, fft_workers=threads)
+        memory += workers * wake.lattice_size**2 * _WAKE_BYTES_PER_TEXEL
+        first = preset.time.frame_time(preset.time.first_frame)
+        wake.frame(first)  # (loads its kernels)
+        started = time.perf_counter()
+        wake.frame(first + 1.0 / preset.time.fps)
+        frame_seconds += time.perf_counter() - started
     total = build + frame_seconds * frames / max(1, workers)
     return RenderEstimate(int(memory), build, total)
 

@@ -1,9 +1,10 @@
 """The render job: a preset's map sequence on disk, locally or on a farm, resumable.
 
-Orchestration only: who computes which frames (this process, local worker processes or
-Dask tasks), the manifest, resume, progress and the ``render`` command. Which frames and
-files make up a job is ``plan``'s; encoding and writing one frame is ``writing``'s. It
-knows nothing of formulas.
+Orchestration only: how many workers, the summary, interrupts, progress and the
+``render`` command. Which frames and files make up a job is ``plan``'s; who computes which
+frames (this process, local worker processes or Dask tasks) is ``workers``'; the manifest
+is ``manifest``'s; encoding and writing one frame is ``writing``'s. It knows nothing of
+formulas.
 Frames are pure functions of time (see ``synth``), so any chunk of frames can be rendered
 on any machine in any order and give the same files.
 
@@ -19,11 +20,10 @@ Nothing lost, nothing half-written:
   into the same folder is refused unless ``overwrite``.
 """
 
+
 from __future__ import annotations
 
-import json
 import os
-import queue
 import re
 import signal
 import sys
@@ -32,18 +32,19 @@ import time
 from contextlib import contextmanager
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, Callable, Iterable, Sequence
+from typing import Any, Callable
 
-from .plan import (
-    ATTRIBUTE_PREFIX,
-    MANIFEST_NAME,
-    RenderPlan,
-    frame_is_complete,
-    frames_on_disk,
-    parse_frames,
-    plan_render,
+from .manifest import _prepare_folder, _update_manifest
+from .plan import RenderPlan, parse_frames, plan_render
+from .workers import (
+    _OCEANS,
+    _connect,
+    _render_frames,
+    _render_on_dask,
+    _render_on_processes,
+    collect_rarely,
 )
-from .writing import FrameResult, _png_scales, _ThreadSink, encode_frame, write_jobs
+from .writing import FrameResult
 
 __all__ = ["RenderInterrupted", "RenderSummary", "collect_rarely", "default_workers", "render", "run_render_command"]
 
@@ -80,192 +81,6 @@ def _count(number: int, noun: str) -> str:
     """``"1 frame"``, ``"2 frames"``."""
     return f"{number} {noun}{'' if number == 1 else 's'}"
 
-
-def _set_threads(threads: int) -> None:
-    """Limit numba's threads in this process (the FFT's are passed per call)."""
-    import numba
-
-    numba.set_num_threads(max(1, min(threads, numba.config.NUMBA_NUM_THREADS)))
-
-
-def _render_frames(plan: RenderPlan, frames: Iterable[int], *, threads: int, overwrite: bool,
-                   report: Callable[[FrameResult], None],
-                   should_stop: Callable[[], bool] | None = None,
-                   build_progress: Callable[[int], None] | None = None) -> None:
-    """Render ``frames`` in this process, overlapping each frame's compute with the last's writes.
-
-    The compute side synthesises a frame and encodes its files (scene axes and units,
-    half floats); a writer thread only hands the encoded channels to the file libraries,
-    which release Python's lock and compress on ``threads`` threads, so a frame costs
-    about max(compute, write), not their sum. ``should_stop`` is asked before each frame
-    (a cluster's stop flag); an exception here (an interrupt) waits only for the file
-    being written, never for queued frames.
-    """
-    todo = []
-    for frame in frames:
-        if not overwrite and frame_is_complete(plan, frame):
-            report(FrameResult(frame, "skipped"))
-        else:
-            todo.append(frame)
-    if not todo:
-        return
-    scales = _png_scales(plan.preset) if plan.preset.output.format == "png" else None
-    stop: list[FrameResult] = []  # the first fatal failure, if any
-
-    def watch(result: FrameResult) -> None:
-        if result.fatal and not stop:
-            stop.append(result)
-        report(result)
-
-    if plan.preset.output.format == "exr":
-        from ..io.exr import set_encoder_threads
-
-        set_encoder_threads(threads)
-    if should_stop is not None and should_stop():
-        return
-    _set_threads(threads)
-    sink = _ThreadSink(watch, write_jobs)  # looked up here: replacing job.write_jobs reaches it
-    done: set[int] = set()
-    try:
-        ocean = _cached_ocean(plan, threads, build_progress)
-        buffer = ocean.new_buffer()
-        for frame in todo:
-            if stop:  # the disk is full or read-only: no later frame can be written
-                break
-            if should_stop is not None and should_stop():
-                break  # (the writer still finishes and reports the frame in hand)
-            done.add(frame)
-            started = time.perf_counter()
-            fields = ocean.frame(plan.preset.time.frame_time(frame), buffer=buffer)
-            try:
-                jobs = encode_frame(plan, frame, fields, scales)
-            except ValueError as error:  # e.g. a value beyond the half-float range
-                report(FrameResult(frame, "failed", time.perf_counter() - started, str(error)))
-                continue
-            sink.submit(frame, jobs, started)
-        sink.close()  # inside: an interrupt while the last frames are written still waits for the one in hand
-    except BaseException:
-        sink.close(abort=True)
-        raise
-    if stop:
-        for frame in todo:
-            if frame not in done:
-                report(FrameResult(frame, "failed", 0.0, stop[0].error, fatal=True))
-
-
-_OCEANS: dict[tuple[str, int], Any] = {}
-
-
-def _cached_ocean(plan: RenderPlan, threads: int, build_progress: Callable[[int], None] | None = None):
-    """The plan's Ocean (or band stack), kept for the next group of frames this process
-    renders (Dask tasks); ``build_progress`` sees a single tile's amplitude build."""
-    from ..preset.banding import synthesizer
-    from ..surface.synth import Ocean
-
-    key = (plan.hash, threads)
-    if key not in _OCEANS:
-        _OCEANS.clear()  # one at a time: an Ocean holds 12 bytes a texel
-        if plan.preset.bands.active:
-            _OCEANS[key] = synthesizer(plan.preset, fft_workers=threads)
-        else:
-            _OCEANS[key] = Ocean.from_preset(plan.preset, fft_workers=threads, build_progress=build_progress)
-    return _OCEANS[key]
-
-
-class _WorkerStopped(Exception):
-    """A local worker process was told to stop (SIGTERM from the render that started it)."""
-
-
-#: Set in a local worker once its render told it to stop (see :func:`_stop_worker`).
-_STOP_REQUESTED = threading.Event()
-
-
-def _stop_worker(signum, frame) -> None:  # noqa: ARG001 - a signal handler's signature
-    """SIGTERM in a local worker: stop now, or at the next frame where now is not possible.
-
-    The exception stops the worker wherever Python runs; but a signal that lands while
-    native code calls back into Python (numba compiling or loading a kernel through
-    llvmlite) raises inside that callback, where the exception is swallowed. The flag then
-    stops the worker before its next frame, and :func:`_quiet_swallowed_stop` keeps the
-    swallowed exception from printing a traceback.
-    """
-    signal.signal(signal.SIGTERM, signal.SIG_IGN)  # once is enough: finish cleaning up
-    _STOP_REQUESTED.set()
-    raise _WorkerStopped
-
-
-def _quiet_swallowed_stop(unraisable) -> None:
-    """``sys.unraisablehook`` of a local worker: a swallowed stop is expected, not an error."""
-    if isinstance(unraisable.exc_value, _WorkerStopped):
-        return
-    sys.__unraisablehook__(unraisable)
-
-
-#: Collections of the middle generation between two full ones in a render process
-#: (Python's default is 10; see ``cli.main``).
-_FULL_COLLECTION_THRESHOLD = 100
-
-
-def collect_rarely() -> None:
-    """Full garbage collections ten times less often in this process: numba's set-up
-    makes millions of long-lived objects, and scanning them again and again cost a short
-    render a tenth of a second (the young generations are still collected as usual)."""
-    import gc
-
-    young, middle, full = gc.get_threshold()
-    gc.set_threshold(young, middle, max(full, _FULL_COLLECTION_THRESHOLD))
-
-
-def _process_worker(plan: RenderPlan, frames: list[int], threads: int, overwrite: bool, events) -> None:
-    """A local worker process: render its frames, sending each result as it happens.
-
-    Ctrl-C at a terminal reaches every process of the group: a worker ignores SIGINT and
-    stops when the render that started it sends SIGTERM, after the file it is writing
-    (quietly: the render prints the one line). It also stops by itself if that render
-    goes away (a killed render must not leave workers writing on behind its back).
-    """
-    signal.signal(signal.SIGINT, signal.SIG_IGN)
-    sys.unraisablehook = _quiet_swallowed_stop
-    signal.signal(signal.SIGTERM, _stop_worker)
-    parent = os.getppid()
-    collect_rarely()
-    try:
-        _render_frames(plan, frames, threads=threads, overwrite=overwrite, report=events.put,
-                       should_stop=lambda: _STOP_REQUESTED.is_set() or os.getppid() != parent)
-    except _WorkerStopped:
-        pass
-    except Exception:
-        # A stop that landed inside native code can leave it failing in its own way (numba
-        # whose kernel compilation was cut short); once told to stop, that is the stop.
-        if not _STOP_REQUESTED.is_set():
-            raise
-    finally:
-        # The interpreter's last collections over numba's objects took 0.2-0.4 s of every
-        # worker's exit, which the render waits for; its files are all written by now.
-        import gc
-
-        gc.freeze()
-
-
-def _dask_frames(plan: RenderPlan, frames: list[int], threads: int, overwrite: bool,
-                 stop_event: str | None = None) -> list[FrameResult]:
-    """A cluster task: render a group of frames; stop between frames once ``stop_event`` is set."""
-    should_stop = None
-    if stop_event is not None:
-        from distributed import Event
-
-        event = Event(stop_event)
-        should_stop = event.is_set
-    results: list[FrameResult] = []
-    _render_frames(plan, frames, threads=threads, overwrite=overwrite, report=results.append,
-                   should_stop=should_stop)
-    return results
-
-
-def _groups(frames: Sequence[int], count: int) -> list[list[int]]:
-    """Split frames into ``count`` contiguous groups of near-equal size (none empty)."""
-    count = max(1, min(count, len(frames)))
-    return [list(frames[i * len(frames) // count:(i + 1) * len(frames) // count]) for i in range(count)]
 
 
 class RenderInterrupted(KeyboardInterrupt):
@@ -314,20 +129,6 @@ def _signals_interrupt():
             signal.signal(number, old)
         sys.unraisablehook = hook
 
-
-@contextmanager
-def _children_ignore_sigint():
-    """Processes started inside ignore SIGINT from their first instruction (the
-    disposition is inherited): Ctrl-C reaches the whole process group, and a worker still
-    importing would print a traceback; the render stops its workers itself."""
-    if threading.current_thread() is not threading.main_thread():
-        yield
-        return
-    previous = signal.signal(signal.SIGINT, signal.SIG_IGN)
-    try:
-        yield
-    finally:
-        signal.signal(signal.SIGINT, previous)
 
 
 def render(plan: RenderPlan, *, workers: int | None = None, scheduler: str | Any | None = None,
@@ -477,310 +278,6 @@ def _run(plan: RenderPlan, summary: RenderSummary, client, count: int, cores: in
         _render_on_processes(plan, count, threads, overwrite, record, build_progress, stop=stop)
 
 
-def _render_on_processes(plan: RenderPlan, count: int, threads: int, overwrite: bool,
-                         record: Callable[[FrameResult], None],
-                         build_progress: Callable[[int], None] | None = None, *,
-                         stop: Callable[[], bool] | None = None) -> None:
-    """``count`` workers, each with a contiguous share of the frames: this process renders
-    the first share itself (it has already paid for its imports and compiled kernels) and
-    spawns a long-lived process for each other share; their results arrive through a
-    queue that a thread of this process reads while it renders. Interrupted, it sends
-    each worker SIGTERM and waits for it (a worker finishes the file it is writing).
-    """
-    import multiprocessing
-
-    context = multiprocessing.get_context("spawn")
-    events = context.Queue()
-    own, *shares = _groups(plan.frames, count)
-    workers = [
-        context.Process(target=_process_worker, args=(plan, share, threads, overwrite, events),
-                        name=f"oceanfield-worker-{i + 1}")
-        for i, share in enumerate(shares)
-    ]
-    pending = {frame for share in shares for frame in share}
-
-    def collect() -> None:
-        while pending:
-            try:
-                result = events.get(timeout=0.2)
-            except queue.Empty:
-                if any(worker.is_alive() for worker in workers if worker.pid is not None):
-                    continue
-                try:  # every worker is gone: take what is left in the queue, then stop
-                    result = events.get(timeout=0.5)
-                except queue.Empty:
-                    return
-            pending.discard(result.frame)
-            record(result)
-
-    collector = threading.Thread(target=collect, name="oceanfield-results", daemon=True)
-    try:
-        with _children_ignore_sigint():
-            for worker in workers:
-                worker.start()
-        collector.start()
-        _render_frames(plan, own, threads=threads, overwrite=overwrite, report=record,
-                       build_progress=build_progress, should_stop=stop)
-        if stop is not None and stop():  # interrupted where the signal could not raise: stop the workers
-            raise KeyboardInterrupt
-        collector.join()
-    except BaseException:  # interrupted or failed here: stop the others too
-        for worker in workers:
-            if worker.pid is not None and worker.is_alive():
-                worker.terminate()
-        raise
-    finally:
-        for worker in workers:
-            if worker.pid is None:
-                continue
-            worker.join(timeout=60)
-            if worker.is_alive():
-                worker.kill()
-                worker.join()
-        if collector.is_alive():
-            collector.join(timeout=5)
-        events.close()
-        events.join_thread()
-    for frame in sorted(pending):
-        record(FrameResult(frame, "failed", 0.0, "its worker process ended without rendering it"))
-
-
-def _connect(scheduler: Any) -> tuple[Any, bool]:
-    """(client, whether we own it) for a scheduler address or an existing client."""
-    if not isinstance(scheduler, str):
-        return scheduler, False
-    try:
-        from distributed import Client
-    except ImportError:
-        raise ValueError(
-            "--scheduler: rendering on a cluster needs the 'distributed' package; "
-            "install it with: pip install 'oceanfield[farm]'"
-        ) from None
-    try:
-        return Client(scheduler, timeout="10s"), True
-    except (OSError, TimeoutError, ValueError) as error:
-        raise ValueError(f"--scheduler: could not reach a Dask scheduler at {scheduler!r} ({error})") from None
-
-
-def _render_on_dask(plan: RenderPlan, client: Any, overwrite: bool,
-                    record: Callable[[FrameResult], None]) -> None:
-    """Groups of frames as cluster tasks. Interrupted, it raises a cluster-wide stop flag
-    that each task reads between frames, collects what the running tasks finished, and
-    cancels the rest before the interrupt goes on."""
-    import uuid
-
-    from distributed import Event, as_completed
-
-    n_workers = max(1, len(client.scheduler_info().get("workers", {})))
-    groups = _groups(plan.frames, n_workers * 4)
-    stop_name = f"oceanfield-stop-{uuid.uuid4().hex}"
-    stop = Event(stop_name, client=client)
-    # as_completed yields in completion order: look each future's frames up, never zip.
-    futures = {client.submit(_dask_frames, plan, group, 1, overwrite, stop_name, pure=False): group
-               for group in groups}
-    seen: set[Any] = set()
-
-    def take(future) -> None:
-        seen.add(future)
-        group = futures[future]
-        try:
-            results = future.result()
-        except Exception as error:  # noqa: BLE001 - a remote failure is reported per frame
-            results = [FrameResult(f, "failed", 0.0, f"cluster task failed: {error}") for f in group]
-        for result in results:
-            record(result)
-
-    try:
-        for future in as_completed(futures):
-            take(future)
-    except BaseException:
-        stop.set()  # tasks not yet started return at once; running ones after their frame
-        deadline = time.monotonic() + _DASK_STOP_S
-        while time.monotonic() < deadline and any(f.status == "pending" for f in futures):
-            time.sleep(0.05)
-        for future in futures:
-            if future not in seen and future.status == "finished":
-                take(future)
-        client.cancel(list(futures))
-        raise
-    finally:
-        try:
-            stop.clear()
-        except Exception:  # noqa: BLE001 - the client may be closing
-            pass
-
-
-#: How long an interrupted render waits for running cluster tasks to finish their frame.
-_DASK_STOP_S = 30.0
-
-
-# -- the manifest ------------------------------------------------------------------------------
-
-
-def _manifest_path(plan: RenderPlan) -> Path:
-    return plan.folder / MANIFEST_NAME
-
-
-def _read_manifest(path: Path) -> dict[str, Any] | None:
-    try:
-        return json.loads(path.read_text(encoding="utf-8"))
-    except FileNotFoundError:
-        return None
-    except (OSError, ValueError):
-        return {}
-
-
-def _recorded_hashes(manifest: dict[str, Any] | None) -> dict[int, str]:
-    """Frame → settings hash, as the manifest records them (older manifests: one hash for all)."""
-    if not manifest:
-        return {}
-    recorded = manifest.get("frame_hashes")
-    if isinstance(recorded, dict):
-        return {int(frame): str(value) for frame, value in recorded.items()}
-    old = manifest.get("render_hash")
-    return {int(frame): str(old) for frame in manifest.get("frames_done", [])} if old else {}
-
-
-def _frame_hash_on_disk(plan: RenderPlan, frame: int) -> str | None:
-    """The settings hash in the header of a frame's first file, None if none is readable."""
-    from ..io.exr import read_exr_attributes
-
-    for path in plan.files(frame).values():
-        if path.suffix.lower() != ".exr" or not path.is_file():
-            continue
-        try:
-            value = read_exr_attributes(path).get(f"{ATTRIBUTE_PREFIX}preset_hash")
-        except (OSError, ValueError):
-            continue
-        return None if value is None else str(value)
-    return None
-
-
-def _foreign_frames(plan: RenderPlan, manifest: dict[str, Any] | None) -> list[int]:
-    """Frames in the folder rendered with other settings than ``plan``'s: those the
-    manifest records with another hash, and frame files it does not record (a killed run)
-    whose header names another hash; only frames with a file still on disk count."""
-    recorded = _recorded_hashes(manifest)
-    foreign = {frame for frame, value in recorded.items() if value != plan.hash}
-    for frame in frames_on_disk(plan):
-        if frame not in recorded:
-            value = _frame_hash_on_disk(plan, frame)
-            if value is not None and value != plan.hash:
-                foreign.add(frame)
-    return sorted(frame for frame in foreign if any(p.is_file() for p in plan.files(frame).values()))
-
-
-def _frames_text(frames: Sequence[int]) -> str:
-    return f"frame {frames[0]}" if len(frames) == 1 else f"{len(frames)} frames ({frames[0]}–{frames[-1]})"
-
-
-def _remove_frames(plan: RenderPlan, frames: Iterable[int]) -> list[int]:
-    """Delete the files of ``frames`` that still hold other settings (a sibling farm chunk
-    may have re-rendered one meanwhile); returns the frames removed."""
-    from ..io.png import sidecar_path
-
-    removed = []
-    for frame in frames:
-        if _frame_hash_on_disk(plan, frame) == plan.hash:
-            continue
-        for path in plan.files(frame).values():
-            for file in (path, sidecar_path(path)) if path.suffix.lower() == ".png" else (path,):
-                try:
-                    file.unlink()
-                except FileNotFoundError:
-                    pass
-        removed.append(frame)
-    return removed
-
-
-def _prepare_folder(plan: RenderPlan, overwrite: bool) -> str | None:
-    """Create the output folder, prove it writable, and never let it mix settings.
-
-    Frames rendered with other settings than the plan's are refused, or with
-    ``overwrite`` removed (every one of them, also outside the frames asked for: a
-    sequence whose frames come from two settings jumps where they change). Returns the
-    one line to tell the user when frames were removed, else None.
-    """
-    from ..io.atomic import OutputError, atomic_output, remove_stale_temporaries
-
-    folder = plan.folder
-    try:
-        folder.mkdir(parents=True, exist_ok=True)
-        with atomic_output(folder / ".oceanfield-write-test") as probe:
-            probe.write_bytes(b"ok")
-        (folder / ".oceanfield-write-test").unlink()
-    except OutputError as error:
-        raise ValueError(f"output folder {folder} is not writable: {error}") from None
-    except OSError as error:
-        raise ValueError(f"output folder {folder} is not writable: {error.strerror or error}") from None
-    remove_stale_temporaries(folder)
-    with _manifest_lock(plan):
-        manifest = _read_manifest(_manifest_path(plan))
-        foreign = _foreign_frames(plan, manifest)
-        if not foreign:
-            return None
-        other = (manifest or {}).get("preset_name") or "another preset"
-        if not overwrite:
-            raise ValueError(
-                f"output folder {folder} holds frames rendered from {other} with different settings "
-                f"({_frames_text(foreign)}); allowed: another --out folder, or --overwrite to remove "
-                "them and render these settings"
-            )
-        removed = _remove_frames(plan, foreign)
-        _write_manifest(plan, manifest, removed=removed, done=[])
-    if not removed:
-        return None
-    return f"--overwrite: removed {_frames_text(removed)} rendered from {other} with different settings from {folder}"
-
-
-@contextmanager
-def _manifest_lock(plan: RenderPlan):
-    """An advisory lock beside the manifest, held while it is read and rewritten."""
-    path = _manifest_path(plan)
-    lock_path = path.with_name("." + path.name + ".lock")
-    with open(lock_path, "a+") as lock_file:
-        try:
-            import fcntl
-
-            fcntl.flock(lock_file, fcntl.LOCK_EX)
-        except (ImportError, OSError):  # no advisory locks here: last writer wins
-            pass
-        yield
-
-
-def _update_manifest(plan: RenderPlan, frames_done: list[int]) -> None:
-    """Record the frames done, merged with other chunks' records under a lock."""
-    with _manifest_lock(plan):
-        _write_manifest(plan, _read_manifest(_manifest_path(plan)), removed=[], done=frames_done)
-
-
-def _write_manifest(plan: RenderPlan, manifest: dict[str, Any] | None, *, removed: Iterable[int],
-                    done: Iterable[int]) -> None:
-    """Rewrite the manifest (its lock held): each frame's settings hash, the frames with
-    this plan's settings, and the resolved preset of the latest render."""
-    from .. import __version__
-    from ..io.atomic import atomic_output
-    from ..preset.schema import dump_preset
-
-    hashes = _recorded_hashes(manifest)
-    for frame in removed:
-        hashes.pop(frame, None)
-    for frame in done:
-        hashes[frame] = plan.hash
-    record = {
-        "software": f"oceanfield {__version__}",
-        "preset_name": plan.preset.name,
-        "render_hash": plan.hash,
-        "maps": list(plan.preset.maps),
-        "frames_done": sorted(frame for frame, value in hashes.items() if value == plan.hash),
-        "frame_hashes": {str(frame): hashes[frame] for frame in sorted(hashes)},
-        "files": {name: str(p.relative_to(plan.root)) for name, p in plan.files(plan.preset.time.first_frame).items()},
-        "preset": dump_preset(plan.preset),
-    }
-    path = _manifest_path(plan)
-    with atomic_output(path) as temporary:
-        temporary.write_text(json.dumps(record, indent=2) + "\n", encoding="utf-8")
-
 
 # -- the command -------------------------------------------------------------------------------
 
@@ -810,7 +307,9 @@ def run_render_command(args) -> int:
     if not plan.frames:
         print(f"nothing to render: chunk {args.chunk} of {len(parse_frames(args.frames, preset.time.frames))} frames is empty")
         return 0
-    print(f"rendering {_count(len(plan.frames), 'frame')} of {preset.name} ({', '.join(preset.maps)}) into {plan.folder}")
+    wake = f", and the wake of {_count(len(preset.vessels), 'vessel')} (wake_*)" if preset.vessels else ""
+    print(f"rendering {_count(len(plan.frames), 'frame')} of {preset.name} ({', '.join(preset.maps)}{wake}) "
+          f"into {plan.folder}")
     cores = os.cpu_count() or 1
     workers = args.workers if args.workers is not None else default_workers(plan, cores=cores)
     building = None

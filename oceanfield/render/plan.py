@@ -122,7 +122,8 @@ class RenderPlan:
         """Map name (or ``layers``) → file of one frame.
 
         A banded preset writes each band's maps as ``band<b>_<map>`` and, with a composite,
-        ``composite_<map>`` (see ``preset.banding``), each its own sequence.
+        ``composite_<map>`` (see ``preset.banding``), each its own sequence; a preset with
+        vessels adds the wake's ``wake_<map>`` (see ``preset.vessels``).
         """
         output = self.preset.output
         names = list(self.preset.maps)
@@ -130,8 +131,13 @@ class RenderPlan:
             from ..preset.banding import band_map_names
 
             names = [name for name, _, _ in band_map_names(self.preset)]
-        if output.multilayer and output.format == "exr":
+        layered = output.multilayer and output.format == "exr"
+        if layered:
             names.append(LAYERS_MAP)
+        if self.preset.vessels:  # the wake's own sequences, wake_<map> (see preset.vessels)
+            from ..preset.vessels import wake_map_names
+
+            names.extend(name for name, _ in wake_map_names(self.preset, LAYERS_MAP if layered else None))
         return {name: self.root / output.relative_path(self.preset.name, name, frame) for name in names}
 
 

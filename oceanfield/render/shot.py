@@ -203,8 +203,9 @@ def _finest_spacing(ocean) -> float:
     return ocean.finest_spacing if _banded(ocean) else ocean.tile.spacing
 
 
-def probe_table(preset, ocean, probes: Sequence[ProbePoint], frames: Sequence[int], times: np.ndarray):
-    """(columns, rows, positions (P, F, 3) in scene units, worst residual) of the probes."""
+def probe_table(preset, ocean, probes: Sequence[ProbePoint], frames: Sequence[int], times: np.ndarray, wake=None):
+    """(columns, rows, positions (P, F, 3) in scene units, worst residual) of the probes;
+    with ``wake`` (a preset's vessels), the sea plus the wakes."""
     from ..surface.maps import scene_axes
     from ..surface.probes import surface_at
 
@@ -217,6 +218,12 @@ def probe_table(preset, ocean, probes: Sequence[ProbePoint], frames: Sequence[in
     # probes are few: every bound wave, so a probe reads what the maps hold
     points = surface_at(ocean.modes(bound_share=1.0), xs, ys, times[None, :], tolerance=_tolerance(ocean))
     shape = (len(probes), len(times))
+    if wake is not None:  # the wakes at the sea's rest points, added to first order (surface.wake.combine)
+        from ..surface.riding import wake_points
+        from ..surface.wake import combine
+
+        points = combine(points, wake_points(wake, points.rest[..., 0], points.rest[..., 1],
+                                             np.broadcast_to(times[None, :], shape)))
     where = np.stack([np.broadcast_to(xs, shape), np.broadcast_to(ys, shape), points.position[..., 2]], axis=-1)
     position = where @ axes.T / mpu
     displacement = points.displacement @ axes.T / mpu
@@ -245,8 +252,11 @@ def _tolerance(ocean) -> float:
     return 1e-8 * _largest_tile(ocean).size
 
 
-def body_table(preset, ocean, bodies, frames: Sequence[int], times: np.ndarray):
-    """(columns, rows, transforms {name: (F, 4, 4) USD row-vector matrices}, worst residual)."""
+def body_table(preset, ocean, bodies, frames: Sequence[int], times: np.ndarray, wake=None):
+    """(columns, rows, transforms {name: (F, 4, 4) USD row-vector matrices}, worst residual).
+
+    With ``wake`` (a preset's vessels) the bodies ride the sea plus every wake, and each
+    vessel follows its course riding the sea plus the others' wakes (``wakeshot``)."""
     from ..surface.bodies import body_motion, quaternion
     from ..surface.maps import scene_axes
 
@@ -266,20 +276,27 @@ def body_table(preset, ocean, bodies, frames: Sequence[int], times: np.ndarray):
             print(f"oceanfield: warning: body {body.name!r} is {size}, more than the {tile.size:.3g} m "
                   f"{'widest band' if _banded(ocean) else 'tile'}: the sea repeats under it, so parts of "
                   f"it ride the same water; use a larger tile.size_m (or bands)", file=sys.stderr)
-        motion = body_motion(modes, body, times, spacing=_finest_spacing(ocean))
+    if wake is None:
+        ridden = [(body, body_motion(modes, body, times, spacing=_finest_spacing(ocean)),
+                   np.full(len(times), math.degrees(body.heading))) for body in bodies]
+    else:
+        from .wakeshot import wake_motions
+
+        ridden = wake_motions(preset, modes, bodies, times, spacing=_finest_spacing(ocean), wake=wake)
+    for body, motion, heading in ridden:
         position = motion.position @ axes.T / mpu
         rotation = axes @ motion.rotation @ axes.T
         matrix = np.zeros((len(times), 4, 4))
         matrix[:, :3, :3] = np.swapaxes(rotation, -1, -2)  # USD: row vectors, p' = p · M
         matrix[:, 3, :3] = position
         matrix[:, 3, 3] = 1.0
-        motions.append((body, motion, position, quaternion(rotation), matrix))
+        motions.append((body, motion, position, quaternion(rotation), matrix, heading))
     rows = []
     for f, (frame, t) in enumerate(zip(frames, times)):
-        for body, motion, position, quat, _ in motions:
+        for body, motion, position, quat, _, heading in motions:
             rows.append([frame, float(t), body.name, *position[f].tolist(), float(motion.heave[f] / mpu),
                          math.degrees(motion.pitch[f]), math.degrees(motion.roll[f]),
-                         math.degrees(body.heading), *quat[f].tolist(), motion.samples, motion.worst_residual])
+                         float(heading[f]), *quat[f].tolist(), motion.samples, motion.worst_residual])
     worst = max((m[1].worst_residual for m in motions), default=0.0)
     return columns, rows, {m[0].name: m[4] for m in motions}, worst
 
@@ -304,7 +321,8 @@ def _unique_names(kind: str, names: Sequence[str]) -> None:
     seen = set()
     for name in names:
         if name in seen:
-            raise ValueError(f"{kind}: the name {name!r} is used twice; give each a name of its own")
+            raise ValueError(f"{kind}: the name {name!r} is used twice (a preset's vessels float under their "
+                             f"own names); give each a name of its own")
         seen.add(name)
 
 
@@ -353,11 +371,16 @@ def _run_table_command(args, option: str, texts: Sequence[str], parse, table) ->
     preset = _load(args)
     scene = preset.scene if args.scene_units else None
     items = [parse(text, i + 1, scene) for i, text in enumerate(texts)]
-    _unique_names(option, [item.name for item in items])
+    vessels = [v.name for v in preset.vessels] if table is body_table else []  # they float too
+    if not items and not vessels:
+        raise ValueError(f"{option}: needed at least once (the preset has no vessels to float)")
+    _unique_names(option, [item.name for item in items] + vessels)
     frames, times = _frames_and_times(preset, args.frames)
     if args.out:
         prepare_option_output("--out", args.out)  # said before any work
-    columns, rows, _, worst = table(preset, _ocean(preset), items, frames, times)
+    from .wakeshot import preset_vessel_wake
+
+    columns, rows, _, worst = table(preset, _ocean(preset), items, frames, times, wake=preset_vessel_wake(preset))
     _emit(args, columns, rows, {**_metadata(preset, frames), "worst_residual_m": worst})
     return 0
 
@@ -430,19 +453,21 @@ def sea_mesh(preset, ocean, frames: Sequence[int], times: np.ndarray, stride: in
     return SeaMesh(np.full((m - 1) ** 2, 4, dtype=np.int32), indices, st, points, normals)
 
 
-def _texture_files(preset, maps_root: Path, stage_path: Path, frames: Sequence[int]) -> tuple[dict, int]:
+def _texture_files(preset, maps_root: Path, stage_path: Path, frames: Sequence[int],
+                   names: Sequence[tuple[str, str]] | None = None) -> tuple[dict, int]:
     """Each map's file per frame, relative to the stage's folder; and how many are missing.
 
     A banded preset's material takes its ``composite_*`` maps (the mesh's extent); without
-    a composite it has no textures (each band's maps span a tile of their own)."""
+    a composite it has no textures (each band's maps span a tile of their own). ``names``
+    gives other (file map name, map) pairs (the wake's ``wake_*``)."""
     files: dict[str, list[str]] = {}
     missing = 0
     base = stage_path.resolve().parent
-    if preset.bands.active:
+    if names is None and preset.bands.active:
         from ..preset.banding import band_map_names
 
         names = [(file_name, name) for file_name, band, name in band_map_names(preset) if band is None]
-    else:
+    elif names is None:
         names = [(name, name) for name in preset.maps]
     for file_name, name in names:
         paths = []
@@ -497,14 +522,28 @@ def run_scene_command(args) -> int:
         if not summary.ok:
             raise ValueError(f"--render-maps: {len(summary.failed)} frames failed to render; the stage was not written")
     mesh = sea_mesh(preset, ocean, frames, times, stride)
+    from .wakeshot import preset_vessel_wake, wake_patch
+
+    wake = preset_vessel_wake(preset)
+    _unique_names("--body", [b.name for b in bodies] + [v.name for v in preset.vessels])
     probe_positions = {}
     if probes:
-        _, _, positions, _ = probe_table(preset, ocean, probes, frames, times)
+        _, _, positions, _ = probe_table(preset, ocean, probes, frames, times, wake=wake)
         probe_positions = {p.name: positions[i] for i, p in enumerate(probes)}
-    body_transforms = body_table(preset, ocean, bodies, frames, times)[2] if bodies else {}
+    body_transforms = body_table(preset, ocean, bodies, frames, times, wake=wake)[2] if bodies or wake else {}
     textures, missing = _texture_files(preset, maps_root, out, frames)
     look = Look(textures=textures, foam_map="foam" if "foam" in preset.maps else None,
                 notes={k: v for k, v in _TEXTURE_NOTES.items() if k in textures})
+    patch = wake_look = None
+    if wake is not None:  # a second mesh over the wake region: sea + wake, wired to the wake_* maps
+        from ..preset.vessels import wake_map_names
+
+        patch = wake_patch(preset, ocean, wake, times)
+        wake_files, wake_missing = _texture_files(preset, maps_root, out, frames, names=wake_map_names(preset))
+        missing += wake_missing
+        wake_look = Look(textures=wake_files, foam_map="foam" if "foam" in preset.maps else None, wrap="clamp",
+                         notes={k: f"The wake alone over its region (add it to the tiled sea's): {v}"
+                                for k, v in _TEXTURE_NOTES.items() if k in wake_files})
     from .. import __version__
 
     n = texels // stride
@@ -514,12 +553,14 @@ def run_scene_command(args) -> int:
     path = write_stage(
         out, metres_per_unit=preset.scene.metres_per_unit, up_axis=preset.scene.up_axis, fps=preset.time.fps,
         frames=frames, mesh=mesh, look=look, probes=probe_positions, bodies=body_transforms,
+        wake=patch, wake_look=wake_look,
         comment=f"oceanfield {__version__}: preset {preset.name}, frames {frames[0]}-{frames[-1]}, "
                 f"sea mesh {quads}x{quads} quads, {over}",
     )
+    vessels = f", {len(preset.vessels)} vessel{'s' * (len(preset.vessels) != 1)} and a wake patch" if wake else ""
     print(f"scene written to {path}: {len(frames)} frame{'s' * (len(frames) != 1)}, a {quads}x{quads} sea mesh, "
-          f"{len(probes)} probe{'s' * (len(probes) != 1)}, {len(bodies)} {'body' if len(bodies) == 1 else 'bodies'}",
-          file=sys.stderr)
+          f"{len(probes)} probe{'s' * (len(probes) != 1)}, {len(bodies)} {'body' if len(bodies) == 1 else 'bodies'}"
+          f"{vessels}", file=sys.stderr)
     if preset.bands.active and not textures:
         print("oceanfield: note: the material has no textures: a banded preset wires its composite maps, "
               "and this one has none (set bands.composite_extent_m)", file=sys.stderr)

@@ -35,6 +35,9 @@ __all__ = [
 ]
 
 _PNG_RANGE_HEIGHTS = 2.5  # PNG value range: ± this many Hs (common practice: crests rarely pass 1.3 Hs)
+#: A wake's PNG value range: ± this many of the deepest draft (common practice: a hull at
+#: rest sinks the water by its draft, and the linear wake's crests stay within a draft or two).
+_PNG_RANGE_DRAFTS = 4.0
 
 
 
@@ -77,13 +80,14 @@ def _attributes(plan: RenderPlan, frame: int, map_name: str, tile_size: float | 
     }
 
 
-def _png_range(plan: RenderPlan, map_name: str, scale: dict[str, float]) -> tuple[float, float]:
-    """A fixed value range for a PNG map over the whole sequence (stored in its sidecar)."""
+def _png_range(plan: RenderPlan, map_name: str, scale: dict[str, float], *, wake: bool = False) -> tuple[float, float]:
+    """A fixed value range for a PNG map over the whole sequence (stored in its sidecar);
+    ``wake``: a wake map's (``wake_<map>``), from the vessels' drafts, not the sea's Hs."""
     if map_name == "normal":
         return (-1.0, 1.0)
     if map_name == "foam":
         return (0.0, 1.0)
-    reach = scale["velocity" if map_name == "velocity" else "length"]
+    reach = scale[("wake_" if wake else "") + ("velocity" if map_name == "velocity" else "length")]
     return (-reach, reach)
 
 
@@ -93,7 +97,12 @@ def _png_scales(preset) -> dict[str, float]:
     stats = to_sea_state(preset).statistics()
     lateral = max(1.0, preset.surface.lateral_factor)
     length = _PNG_RANGE_HEIGHTS * stats.hs * lateral / preset.scene.metres_per_unit
-    return {"length": length, "velocity": length * 2.0 * math.pi / stats.tm02}
+    scales = {"length": length, "velocity": length * 2.0 * math.pi / stats.tm02}
+    if preset.vessels:
+        wake = _PNG_RANGE_DRAFTS * max(v.draft_m for v in preset.vessels) * lateral / preset.scene.metres_per_unit
+        scales.update(wake_length=max(wake, 1e-3 / preset.scene.metres_per_unit),
+                      wake_velocity=max(wake, 1e-3 / preset.scene.metres_per_unit) * 2.0 * math.pi / stats.tm02)
+    return scales
 
 
 @dataclass(frozen=True)
@@ -120,10 +129,15 @@ def encode_frame(plan: RenderPlan, frame: int, fields, png_scales: dict[str, flo
     preset = plan.preset
     output, scene = preset.output, preset.scene
     jobs = []
+    wake = _wake_fields(plan, fields)
+    if wake is not None:
+        fields = fields.sea
     banded = _banded_fields(plan, fields)
     for file_name, path in plan.files(frame).items():
         name, tile_size = file_name, None
-        if banded is not None:  # band<b>_<map> or composite_<map>: that band's fields and size
+        if wake is not None and file_name in wake:  # wake_<map>: the wake's fields on its region
+            fields, name, tile_size = wake[file_name]
+        elif banded is not None:  # band<b>_<map> or composite_<map>: that band's fields and size
             fields, name, tile_size = banded[file_name]
         if output.format == "exr":
             # Views into the frame, converted to pixels in one pass each (no float32 copies).
@@ -136,7 +150,9 @@ def encode_frame(plan: RenderPlan, frame: int, fields, png_scales: dict[str, flo
                     pixels[channel] = to_pixels(channel, source.array, output.precision_for(layer),
                                                 negate=source.negate, divisor=source.divisor)
             attributes = _attributes(plan, frame, name, tile_size)
-            if banded is not None:
+            if wake is not None and file_name in wake:
+                attributes.update(_wake_attributes(plan))
+            elif banded is not None:
                 attributes[f"{ATTRIBUTE_PREFIX}band"] = file_name.split("_")[0]  # band<b> or composite
             jobs.append(FileJob("exr", path, pixels, output.compression, attributes))
         else:
@@ -144,7 +160,8 @@ def encode_frame(plan: RenderPlan, frame: int, fields, png_scales: dict[str, flo
             arrays = list(channels.values())
             array = np.stack(arrays, axis=-1) if len(arrays) > 1 else arrays[0]
             scales = png_scales if png_scales is not None else _png_scales(preset)
-            jobs.append(FileJob("png", path, {"": array}, value_range=_png_range(plan, name, scales)))
+            is_wake = wake is not None and file_name in wake
+            jobs.append(FileJob("png", path, {"": array}, value_range=_png_range(plan, name, scales, wake=is_wake)))
     return jobs
 
 
@@ -161,6 +178,37 @@ def _banded_fields(plan: RenderPlan, frame_fields) -> dict[str, tuple[Any, str, 
         else:
             out[file_name] = (frame_fields.bands[band], name, frame_fields.sizes[band])
     return out
+
+
+def _wake_fields(plan: RenderPlan, frame_fields) -> dict[str, tuple[Any, str, float]] | None:
+    """For a preset with vessels: wake file map name → (the wake's fields, map, region size in metres)."""
+    if not plan.preset.vessels:
+        return None
+    from ..preset.vessels import wake_map_names, wake_region
+
+    size = wake_region(plan.preset)[2]
+    return {file_name: (frame_fields.wake, name, size) for file_name, name in wake_map_names(plan.preset, LAYERS_MAP)}
+
+
+def _wake_attributes(plan: RenderPlan) -> dict[str, Any]:
+    """Where a wake file lies over the tiled sea: its corner in tile axes and scene units
+    (``wake_origin_x``, ``wake_origin_y``: the point of texel (0, 0), the file's bottom-left,
+    where the tile's own texel (0, 0) is at 0, 0), its side (``tile_size``, ``wake_size``)
+    and texels per side (``wake_resolution``); ``map`` is the map (``displacement``, ...), ``band`` is ``wake``."""
+    from ..preset.vessels import wake_region
+
+    x0, y0, size, resolution = wake_region(plan.preset)
+    unit = plan.preset.scene.metres_per_unit
+    p = ATTRIBUTE_PREFIX
+    return {
+        f"{p}wake_origin_x": float(x0 / unit),
+        f"{p}wake_origin_y": float(y0 / unit),
+        f"{p}wake_size": float(size / unit),
+        f"{p}wake_resolution": int(resolution),
+        f"{p}wake_lookback_s": float(plan.preset.wake.lookback_s),
+        f"{p}wake_vessels": ",".join(v.name for v in plan.preset.vessels),
+        f"{p}band": "wake",  # which part of the sea the file holds, as band<b> and composite do
+    }
 
 
 def write_jobs(jobs: Iterable[FileJob]) -> list[Path]:

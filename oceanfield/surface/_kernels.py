@@ -44,7 +44,7 @@ import os
 
 # Between a frame's kernels the FFT runs on its own threads. OpenMP's default lets numba's
 # idle threads spin after each parallel region, taking the cores the FFT needs: the frame
-# took 29.6 ms at 1024² with spinning threads and 24.7 ms with sleeping ones (bench.py,
+# took 29.6 ms at 1024² with spinning threads and 24.7 ms with sleeping ones (oceanfield.bench,
 # 2 cores). Set before numba loads its OpenMP layer; a value the user set is kept.
 os.environ.setdefault("OMP_WAIT_POLICY", "PASSIVE")
 

@@ -225,6 +225,7 @@ def body_motion(
     *,
     spacing: float,
     step: float | None = None,
+    plane=None,
 ) -> BodyMotion:
     """Heave, pitch and roll of ``body`` at ``times`` (seconds).
 
@@ -241,6 +242,11 @@ def body_motion(
     step : float, optional
         Time between forcing samples for the damped responses; default a fortieth of the
         shortest natural period given. The forcing is sampled at whole multiples of it.
+    plane : callable, optional
+        ``plane(times) -> (heave, pitch, roll, samples, worst residual)`` of the wave plane
+        in place of the sea's over the body's fixed waterplane (``surface.riding``: a body
+        on a course, riding the sea and other bodies' wakes). The returned position and
+        rotation are then the caller's to replace.
 
     Returns
     -------
@@ -254,8 +260,11 @@ def body_motion(
     if times.ndim != 1 or not np.all(np.isfinite(times)):
         raise ValueError("times: allowed: a one-dimensional array of finite times in seconds")
     responses = body.responses
+    if plane is None:
+        def plane(instants):
+            return _wave_plane(modes, body, instants, spacing)
     if not responses:
-        heave, pitch, roll, samples, residual = _wave_plane(modes, body, times, spacing)
+        heave, pitch, roll, samples, residual = plane(times)
     else:
         if step is None:
             step = min(r.natural_period for r in responses) / _STEPS_PER_PERIOD
@@ -272,9 +281,9 @@ def body_motion(
                 f"step: {step:g} s over a response memory of {memory:.0f} s needs {grid.size} forcing samples; "
                 "allowed: fewer frames, a shorter memory (more damping) or a longer step"
             )
-        forcing = _wave_plane(modes, body, grid * step, spacing)
+        forcing = plane(grid * step)
         samples, residual = forcing[3], forcing[4]
-        direct = _wave_plane(modes, body, times, spacing) if len(responses) < 3 else None
+        direct = plane(times) if len(responses) < 3 else None
         motions = []
         for index, response in enumerate((body.heave, body.pitch, body.roll)):
             series = forcing[index]

@@ -9,7 +9,9 @@ seconds of compilation on its first render, and so does every farm node whose pa
 folder is read-only or whose cache is lost. :func:`compile_kernels` synthesises a small
 frame through every path a render can take (plain, velocity, lingering foam), and sums
 the waves at a point as the shot commands (probe, float, scene) do, so that running it
-once while a farm image is built leaves every kernel compiled in that cache.
+once while a farm image is built leaves every kernel compiled in that cache; it also runs a
+vessel's wake once (frame and point sums). The look's kernels are run by the command line
+(``look.writing.compile_look_kernels``), since the look sits above this room.
 Machine code is cached per CPU model: build the image on the nodes' kind of CPU.
 """
 
@@ -40,4 +42,21 @@ def compile_kernels() -> float:
     surface_at(ocean.modes(), [3.0], [4.0], [0.5], method="exact")
     # and their sampled form (many points: the frame's grids, surface._nufft), the same kernel
     surface_at(ocean.modes(), [3.0], [4.0], [0.5], method="sampled")
+    _wake_kernels_once()
     return time.perf_counter() - started
+
+
+def _wake_kernels_once() -> None:
+    """A vessel's wake (`vessels` in a preset): a frame with and without velocity, and its
+    sums at a few points (direct) and at many (the non-uniform FFT's path)."""
+    import numpy as np
+
+    from .wake import Course, Hull, Wake, WakeRegion
+
+    course = Course(times=np.array([0.0, 4.0]), x=np.array([4.0, 28.0]), y=np.array([16.0, 16.0]))
+    for velocity in (False, True):
+        wake = Wake([(Hull(6.0, 2.0, 0.4), course)], WakeRegion(0.0, 0.0, 32.0, _RESOLUTION),
+                    lookback=4.0, velocity=velocity)
+        wake.frame(3.0)
+    for count in (1, 64):
+        wake.surface_at(np.full(count, 10.0), np.linspace(8.0, 24.0, count), np.full(count, 3.0))
