@@ -69,8 +69,10 @@ def test_benchmark_prints_the_composite_and_probe_rows_alone(capsys, tmp_path):
     before = re.search(r"before \(exact sums, chirp z\) [0-9]+ ms: ([0-9.]+)x", out)
     after = re.search(r"after \(non-uniform FFTs\) +[0-9]+ ms: ([0-9.]+)x", out)
     assert before and after and float(before.group(1)) > 0 and float(after.group(1)) > 0
-    assert re.search(r"one probe: before \(exact\) [0-9]+ ms, after \(auto\) [0-9]+ ms", out)
-    assert re.search(r"40 probes: before \(exact, timed on 10 and scaled\) [0-9.]+ s, after", out)
+    assert re.search(r"one probe: before \(exact, per-mode sines\) [0-9]+ ms \(CPU [0-9]+ ms\), "
+                     r"after \(auto: blocked exact sums\) [0-9]+ ms", out)
+    assert re.search(r"40 probes: before \(exact, per-mode sines, timed on 10 and scaled\) [0-9.]+ s, "
+                     r"blocked exact sums [0-9.]+ s, after", out)
 
 
 def test_benchmark_refuses_an_unknown_section():

@@ -178,13 +178,15 @@ def composite_benchmark(preset_name: str, workers: int, repeat: int) -> dict[str
 
 def probe_benchmark(preset_name: str, points: int, repeat: int, *, exact_points: int = 10) -> dict[str, float]:
     """Probes on a preset's sea (``oceanfield probe``'s modes: every bound wave), one frame:
-    one probe and ``points`` probes, with the exact sums (before) and the automatic choice
-    (after: exact for few points, the frame's sampled grids for many). The exact sums of
-    ``points`` probes are timed on ``exact_points`` of them and scaled (they cost the same
-    per point; the full run takes minutes)."""
+    one probe and ``points`` probes, before (the sums per mode by the C library's sine and
+    cosine, the exact path until the blocked sums) and after (``method="auto"``: the
+    blocked exact sums for few points, the frame's sampled grids for many), each pair timed
+    interleaved, wall and process CPU. The exact sums of ``points`` probes are timed on
+    ``exact_points`` of them and scaled (they cost the same per point; the full run takes
+    minutes)."""
     from ..preset.banding import band_stack
     from ..preset.schema import load_preset
-    from ..surface.probes import surface_at
+    from ..surface.probes import DEFAULT_MAX_ITERATIONS, _point_columns, surface_at
     from ..surface.synth import Ocean
 
     preset = load_preset(preset_name)
@@ -196,15 +198,23 @@ def probe_benchmark(preset_name: str, points: int, repeat: int, *, exact_points:
     x, y = rng.uniform(0.0, extent, points), rng.uniform(0.0, extent, points)
     counter = iter(range(10**9))
     exact_points = min(exact_points, points)
+    options = (True, 1e-7, DEFAULT_MAX_ITERATIONS)  # surface_at's defaults
 
     def run(count: int, method: str) -> Callable[[], object]:
+        if method == "reference":
+            return lambda: _point_columns(modes, (x[:count], y[:count], np.full(count, 0.04 * next(counter))),
+                                          options, "reference")
         return lambda: surface_at(modes, x[:count], y[:count], 0.04 * next(counter), method=method)
 
-    one_exact, one_auto, *_ = _timed_pair(run(1, "exact"), run(1, "auto"), repeat)
-    many_exact, many_auto, *_ = _timed_pair(run(exact_points, "exact"), run(points, "auto"), max(1, repeat // 2))
+    one_before, one_auto, one_before_cpu, one_auto_cpu = _timed_pair(run(1, "reference"), run(1, "auto"), repeat)
+    many_before, many_exact, *_ = _timed_pair(run(exact_points, "reference"), run(exact_points, "exact"),
+                                              max(1, repeat // 3))
+    many_auto = time_call(run(points, "auto"), repeat=max(1, repeat // 2))
+    scale = points / exact_points
     return {"modes": len(modes), "points": points, "exact_points": exact_points,
-            "one_exact_s": one_exact, "one_auto_s": one_auto,
-            "many_exact_s": many_exact * points / exact_points, "many_auto_s": many_auto}
+            "one_before_s": one_before, "one_auto_s": one_auto,
+            "one_before_cpu_s": one_before_cpu, "one_auto_cpu_s": one_auto_cpu,
+            "many_before_s": many_before * scale, "many_exact_s": many_exact * scale, "many_auto_s": many_auto}
 
 
 def _demo_course(region_size: float, lookback: float, fps: float, speed: float, *, straight: bool = False):

@@ -16,8 +16,12 @@ got there. The inversion needs only the lateral displacement and its derivatives
 sums only the modes that move sideways (``lkx`` …: the others, bound waves, add exact
 zeros there; with them a probe on a sea with bound waves summed ~150 times the modes at
 each of its steps); the final evaluation sums them all. Points are independent, so the
-loop over them runs in parallel; each sum is one pass over the modes with one sine and
-cosine each. `surface_point_reference` is the same by numpy.
+loop over them runs in parallel. Each sum is one pass over the modes: by default (the
+``BLOCKED`` engine, ``_point_kernels``) a block of modes at a time with a vectorised sine
+and cosine, the still modes summed apart, 3–4× faster than the ``EXACT`` engine (one
+C-library sine and cosine a mode, `_sums`: the reference, within ~1e-10 of each field's
+σ); ``SAMPLED`` reads the frame's sampled grids. `surface_point_reference` is the sums by
+numpy.
 """
 
 from __future__ import annotations
@@ -27,6 +31,8 @@ import math
 import numba
 import numpy as np
 from numpy.typing import NDArray
+
+from ._point_kernels import blocked_sums
 
 __all__ = ["OUTPUT_COLUMNS", "surface_point_kernel", "surface_point_reference"]
 
@@ -169,92 +175,115 @@ def scatter_kernel(pick, kx, ky, omega, a, bx, by, rotations, dk, moving, correc
             fine[f, (-ny) % size, (-nx) % size] += c * (p.conjugate() + 1j * q.conjugate())
 
 
+#: Engines of `surface_point_kernel`: the sums per mode by the C library's sine and cosine
+#: (the reference), the frame's sampled grids, and the blocked sums (_point_kernels).
+EXACT, SAMPLED, BLOCKED = 0, 1, 2
+
+
 @numba.njit(cache=True, fastmath=False)
-def _evaluate(sampled, kx, ky, omega, a, bx, by, grids, offsets, sizes, counts, dks, width, beta,
-              x, y, t, rates):  # pragma: no cover - compiled
-    """The sums at (x, y, t): exact over the modes, or from the frame's sampled grids."""
-    if sampled:
+def _evaluate(engine, kx, ky, omega, a, bx, by, skx, sky, somega, sa, grids, offsets, sizes, counts, dks,
+              width, beta, x, y, t, rates):  # pragma: no cover - compiled
+    """The sums at (x, y, t) over the modes kx … by and, for the blocked engines with
+    ``rates``, the still modes skx … sa; or from the frame's sampled grids."""
+    if engine == SAMPLED:
         return _sampled(grids, offsets, sizes, counts, dks, width, beta, x, y, not rates)
+    if engine == BLOCKED:
+        return blocked_sums(kx, ky, omega, a, bx, by, skx, sky, somega, sa, x, y, t, rates)
     return _sums(kx, ky, omega, a, bx, by, x, y, t, rates)
 
 
 @numba.njit(parallel=True, cache=True, fastmath=False)
 def surface_point_kernel(kx, ky, omega, a, bx, by, lkx, lky, lomega, la, lbx, lby,  # pragma: no cover
                          x, y, t, invert, tolerance, max_iterations, out,
-                         sampled, grids, offsets, sizes, counts, dks, width, beta):
-    sampler = (grids, offsets, sizes, counts, dks, width, beta)
+                         engine, grids, offsets, sizes, counts, dks, width, beta, skx, sky, somega, sa):
+    """Every point (x[m], y[m], t[m]) into out[m] (`OUTPUT_COLUMNS`), the points in
+    parallel: kx … by every mode, lkx … lby those that move sideways, skx … sa the others
+    (the blocked engines' final sums: moving + still instead of every)."""
     for m in numba.prange(x.shape[0]):
-        X = x[m]
-        Y = y[m]
-        T = t[m]
-        x0 = X
-        y0 = Y
-        iterations = 0
-        residual = 0.0
-        if invert:
-            v = _evaluate(sampled, lkx, lky, lomega, la, lbx, lby, *sampler, x0, y0, T, False)
-            # first guess: one fixed-point step from the target itself
-            x0 = X - v[0]
-            y0 = Y - v[1]
-            v = _evaluate(sampled, lkx, lky, lomega, la, lbx, lby, *sampler, x0, y0, T, False)
-            fx = x0 + v[0] - X
-            fy = y0 + v[1] - Y
-            residual = math.sqrt(fx * fx + fy * fy)
-            folded = False
-            stuck = 0.0
-            folds = 0
-            relax = _RELAXATION
-            while residual > tolerance and iterations < max_iterations:
-                iterations += 1
-                if folded and folds < 2 and residual < 0.5 * stuck:
-                    folded = False  # past the fold: free Newton again (twice at most, no cycling)
-                m11 = 1.0 + v[3]
-                m12 = v[4]
-                m21 = v[5]
-                m22 = 1.0 + v[6]
-                det = m11 * m22 - m12 * m21
-                accepted = False
-                # After a fold, Newton only where the lateral map clearly does not fold
-                # (else it falls back into the fold's middle layer).
-                if det > (_UNFOLDED if folded else _SINGULAR) or (not folded and det < -_SINGULAR):
-                    sx = -(m22 * fx - m12 * fy) / det
-                    sy = -(-m21 * fx + m11 * fy) / det
-                    step = 1.0
-                    for _ in range(_HALVINGS):
-                        nx0 = x0 + step * sx
-                        ny0 = y0 + step * sy
-                        w = _evaluate(sampled, lkx, lky, lomega, la, lbx, lby, *sampler, nx0, ny0, T, False)
-                        gx = nx0 + w[0] - X
-                        gy = ny0 + w[1] - Y
-                        r = math.sqrt(gx * gx + gy * gy)
-                        if r < residual:
-                            x0, y0, v, fx, fy, residual = nx0, ny0, w, gx, gy, r
-                            accepted = True
-                            relax = _RELAXATION
-                            break
-                        step *= 0.5
-                if not accepted:
-                    if not folded:
-                        stuck = residual
-                        folds += 1
-                    folded = True
-                    # Stuck at a fold (Newton cannot lower the residual): walk on with the
-                    # relaxed fixed-point step x0 ← x0 − μ·F, which passes over the fold to
-                    # a layer of the surface that lands on the target, then Newton again.
-                    x0 = x0 - relax * fx
-                    y0 = y0 - relax * fy
-                    relax = min(2.0 * relax, _MAX_RELAXATION)  # near a fold |F| is small: lengthen the stride
-                    v = _evaluate(sampled, lkx, lky, lomega, la, lbx, lby, *sampler, x0, y0, T, False)
-                    fx = x0 + v[0] - X
-                    fy = y0 + v[1] - Y
-                    residual = math.sqrt(fx * fx + fy * fy)
-        v = _evaluate(sampled, kx, ky, omega, a, bx, by, *sampler, x0, y0, T, True)
-        out[m, 0] = x0
-        out[m, 1] = y0
-        out[m, 2] = residual
-        out[m, 3] = iterations
-        for i in range(12):
-            out[m, 4 + i] = v[i]
+        _point(m, kx, ky, omega, a, bx, by, lkx, lky, lomega, la, lbx, lby, x, y, t, invert, tolerance,
+               max_iterations, out, engine, grids, offsets, sizes, counts, dks, width, beta, skx, sky, somega, sa)
+
+
+@numba.njit(cache=True, fastmath=False)
+def _point(m, kx, ky, omega, a, bx, by, lkx, lky, lomega, la, lbx, lby,  # pragma: no cover - compiled
+           x, y, t, invert, tolerance, max_iterations, out,
+           engine, grids, offsets, sizes, counts, dks, width, beta, skx, sky, somega, sa):
+    """Point m: the inversion (if asked), then every sum at its rest position."""
+    sampler = (skx, sky, somega, sa, grids, offsets, sizes, counts, dks, width, beta)
+    X = x[m]
+    Y = y[m]
+    T = t[m]
+    x0 = X
+    y0 = Y
+    iterations = 0
+    residual = 0.0
+    if invert:
+        v = _evaluate(engine, lkx, lky, lomega, la, lbx, lby, *sampler, x0, y0, T, False)
+        # first guess: one fixed-point step from the target itself
+        x0 = X - v[0]
+        y0 = Y - v[1]
+        v = _evaluate(engine, lkx, lky, lomega, la, lbx, lby, *sampler, x0, y0, T, False)
+        fx = x0 + v[0] - X
+        fy = y0 + v[1] - Y
+        residual = math.sqrt(fx * fx + fy * fy)
+        folded = False
+        stuck = 0.0
+        folds = 0
+        relax = _RELAXATION
+        while residual > tolerance and iterations < max_iterations:
+            iterations += 1
+            if folded and folds < 2 and residual < 0.5 * stuck:
+                folded = False  # past the fold: free Newton again (twice at most, no cycling)
+            m11 = 1.0 + v[3]
+            m12 = v[4]
+            m21 = v[5]
+            m22 = 1.0 + v[6]
+            det = m11 * m22 - m12 * m21
+            accepted = False
+            # After a fold, Newton only where the lateral map clearly does not fold
+            # (else it falls back into the fold's middle layer).
+            if det > (_UNFOLDED if folded else _SINGULAR) or (not folded and det < -_SINGULAR):
+                sx = -(m22 * fx - m12 * fy) / det
+                sy = -(-m21 * fx + m11 * fy) / det
+                step = 1.0
+                for _ in range(_HALVINGS):
+                    nx0 = x0 + step * sx
+                    ny0 = y0 + step * sy
+                    w = _evaluate(engine, lkx, lky, lomega, la, lbx, lby, *sampler, nx0, ny0, T, False)
+                    gx = nx0 + w[0] - X
+                    gy = ny0 + w[1] - Y
+                    r = math.sqrt(gx * gx + gy * gy)
+                    if r < residual:
+                        x0, y0, v, fx, fy, residual = nx0, ny0, w, gx, gy, r
+                        accepted = True
+                        relax = _RELAXATION
+                        break
+                    step *= 0.5
+            if not accepted:
+                if not folded:
+                    stuck = residual
+                    folds += 1
+                folded = True
+                # Stuck at a fold (Newton cannot lower the residual): walk on with the
+                # relaxed fixed-point step x0 ← x0 − μ·F, which passes over the fold to
+                # a layer of the surface that lands on the target, then Newton again.
+                x0 = x0 - relax * fx
+                y0 = y0 - relax * fy
+                relax = min(2.0 * relax, _MAX_RELAXATION)  # near a fold |F| is small: lengthen the stride
+                v = _evaluate(engine, lkx, lky, lomega, la, lbx, lby, *sampler, x0, y0, T, False)
+                fx = x0 + v[0] - X
+                fy = y0 + v[1] - Y
+                residual = math.sqrt(fx * fx + fy * fy)
+    if engine == BLOCKED:
+        v = _evaluate(engine, lkx, lky, lomega, la, lbx, lby, *sampler, x0, y0, T, True)
+    else:
+        v = _evaluate(engine, kx, ky, omega, a, bx, by, *sampler, x0, y0, T, True)
+    out[m, 0] = x0
+    out[m, 1] = y0
+    out[m, 2] = residual
+    out[m, 3] = iterations
+    for i in range(12):
+        out[m, 4 + i] = v[i]
 
 
 def surface_point_reference(kx: NDArray, ky: NDArray, omega: NDArray, a: NDArray, bx: NDArray, by: NDArray,

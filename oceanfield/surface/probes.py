@@ -38,8 +38,9 @@ _NO_SAMPLER = (np.zeros(1, dtype=np.complex128), np.zeros(1, dtype=np.int64), np
 #: Exact mode-steps (one mode at one point and inversion step; about 5 steps a point) that
 #: cost as much as one fine-grid texel of a frame's sampled grids (its share of the scatter
 #: and the FFTs): measured on open_ocean_horizon, 2.5 M modes, two shared cores (2026),
-#: about 14 ns a mode-step and 20 ns a texel; sampled pays beyond about 3 probes a frame.
-_SAMPLED_TEXEL_COST = 1.5
+#: about 3.5 ns a mode-step with the blocked sums (14 ns with a C-library sine and cosine a
+#: mode) and 20 ns a texel; sampled pays beyond about 10 probes a frame.
+_SAMPLED_TEXEL_COST = 5.0
 _STEPS_PER_POINT = 5
 #: The most memory "auto" lets a frame's sampled grids take (complex128 texels); beyond it
 #: the exact sums run instead (open_ocean_horizon's take ~350 MB).
@@ -131,9 +132,7 @@ def surface_at(
     -------
     SurfacePoints
     """
-    import numba
-
-    from . import _nufft, _sums
+    from . import _sums
 
     if method not in _METHODS:
         raise ValueError(f"method: {method!r} is not allowed; allowed: {', '.join(map(repr, _METHODS))}")
@@ -145,26 +144,12 @@ def surface_at(
     shape = xs.shape
     if not (np.all(np.isfinite(xs)) and np.all(np.isfinite(ys)) and np.all(np.isfinite(ts))):
         raise ValueError("x, y, t: not all finite; allowed: finite positions in metres and times in seconds")
-    out = np.empty((xs.size, len(_sums.OUTPUT_COLUMNS)), dtype=np.float64)
-    every = (modes.kx, modes.ky, modes.omega, modes.height, modes.lateral_x, modes.lateral_y)
-    sideways = (modes.lateral_x != 0) | (modes.lateral_y != 0)  # in order: the same sums, bit for bit
-    lateral = every if sideways.all() else tuple(np.ascontiguousarray(v[sideways]) for v in every)
     points = tuple(np.array(v.ravel(), dtype=np.float64) for v in (xs, ys, ts))  # own copies, not broadcast views
-    options = (bool(invert), float(tolerance), int(max_iterations))
     if method == "auto":
         method = "sampled" if _sampling_pays(modes, points[2]) else "exact"
     if method == "sampled" and not np.all(np.isfinite(modes.lattice)):
         raise ValueError("method: 'sampled' is not allowed for modes on no lattice; allowed: 'exact' or 'auto'")
-    if method == "exact":
-        _sums.surface_point_kernel(*every, *lateral, *points, *options, out, False, *_NO_SAMPLER)
-    else:
-        for t in np.unique(points[2]):  # one frame's sampled grids at a time
-            at = np.flatnonzero(points[2] == t)
-            part = np.empty((at.size, out.shape[1]))
-            sampler = _nufft.sample_grids(modes, float(t), fft_workers=numba.get_num_threads())
-            _sums.surface_point_kernel(*every, *lateral, *(np.ascontiguousarray(p[at]) for p in points),
-                                       *options, part, True, *sampler, _nufft.SAMPLE_WIDTH, _nufft.SAMPLE_BETA)
-            out[at] = part
+    out = _point_columns(modes, points, (bool(invert), float(tolerance), int(max_iterations)), method)
     col = {name: out[:, i].reshape(shape) for i, name in enumerate(_sums.OUTPUT_COLUMNS)}
     rest = np.stack([col["rest_x"], col["rest_y"]], axis=-1)
     displacement = np.stack([col["dx"], col["dy"], col["h"]], axis=-1)
@@ -192,6 +177,50 @@ def surface_at(
         rise_rate=rise,
         jacobian=jac,
     )
+
+
+def _point_columns(modes: WaveModes, points: tuple[NDArray[np.float64], ...], options: tuple,
+                   method: str) -> NDArray[np.float64]:
+    """The kernel's `_sums.OUTPUT_COLUMNS` at the points (x, y, t): "exact" by the blocked
+    sums (``_point_kernels``), "sampled" from each frame's grids, "reference" by the C
+    library's sine and cosine per mode (the exact path before the blocked sums; tests and
+    the benchmark compare against it)."""
+    import numba
+
+    from . import _nufft, _sums
+
+    out = np.empty((points[0].size, len(_sums.OUTPUT_COLUMNS)), dtype=np.float64)
+    every, lateral, still = _split(modes)
+    if method == "reference":
+        _sums.surface_point_kernel(*every, *lateral, *points, *options, out, _sums.EXACT, *_NO_SAMPLER, *still)
+    elif method == "exact":
+        _sums.surface_point_kernel(*every, *lateral, *points, *options, out, _sums.BLOCKED, *_NO_SAMPLER, *still)
+    else:
+        for t in np.unique(points[2]):  # one frame's sampled grids at a time
+            at = np.flatnonzero(points[2] == t)
+            part = np.empty((at.size, out.shape[1]))
+            sampler = _nufft.sample_grids(modes, float(t), fft_workers=numba.get_num_threads())
+            _sums.surface_point_kernel(*every, *lateral, *(np.ascontiguousarray(p[at]) for p in points),
+                                       *options, part, _sums.SAMPLED, *sampler, _nufft.SAMPLE_WIDTH,
+                                       _nufft.SAMPLE_BETA, *still)
+            out[at] = part
+    return out
+
+
+#: Each mode set's modes that move sideways and the others (``_split``), kept while the
+#: set lives: a probe a frame on open_ocean_horizon spent 20–45 ms a call making them.
+_SPLITS: "weakref.WeakKeyDictionary[WaveModes, tuple]" = weakref.WeakKeyDictionary()
+
+
+def _split(modes: WaveModes) -> tuple[tuple[NDArray, ...], tuple[NDArray, ...], tuple[NDArray, ...]]:
+    """(every mode's arrays kx … lateral_y, those of the modes that move sideways, kx … height
+    of the others), in the modes' order (the inversion's sums are the same, bit for bit)."""
+    if modes not in _SPLITS:
+        every = (modes.kx, modes.ky, modes.omega, modes.height, modes.lateral_x, modes.lateral_y)
+        sideways = (modes.lateral_x != 0) | (modes.lateral_y != 0)
+        lateral = every if sideways.all() else tuple(np.ascontiguousarray(v[sideways]) for v in every)
+        _SPLITS[modes] = (every, lateral, tuple(np.ascontiguousarray(v[~sideways]) for v in every[:4]))
+    return _SPLITS[modes]
 
 
 def _sampling_pays(modes: WaveModes, times: NDArray[np.float64]) -> bool:
