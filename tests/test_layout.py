@@ -165,8 +165,9 @@ def test_every_subpackage_is_installed():
     """`pip install .` (what CI and users run) installs only the packages pyproject.toml
     lists: a room missing there imports from a checkout but not from an install."""
     tomllib = pytest.importorskip("tomllib")  # Python 3.11+
-    root = Path(oceanfield.__file__).parent
-    listed = set(tomllib.loads((root.parent / "pyproject.toml").read_text())["tool"]["setuptools"]["packages"])
+    repository = Path(__file__).resolve().parents[1]  # the checkout's sources, not the installed copy
+    root = repository / "oceanfield"
+    listed = set(tomllib.loads((repository / "pyproject.toml").read_text())["tool"]["setuptools"]["packages"])
     found = {"oceanfield"} | {
         "oceanfield." + ".".join(path.parent.relative_to(root).parts)
         for path in root.rglob("__init__.py") if path.parent != root
