@@ -184,6 +184,10 @@ def _cmd_look(args: argparse.Namespace) -> int:
     preset = _load(args, allow_outside_output=True)
     _warn(preset)
     look = look_from_arguments(preset, args)
+    if preset.vessels:  # the look draws the tiled (or banded) sea alone
+        names = ", ".join(vessel.name for vessel in preset.vessels)
+        print(f"{_PROG}: warning: look: the wakes of the vessels ({names}) are not drawn, only the sea; "
+              "`oceanfield preview` shows them and `oceanfield render` writes them (wake_* maps)", file=sys.stderr)
     if args.frames is not None:
         from .render.plan import parse_frames
 
