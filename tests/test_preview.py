@@ -99,3 +99,20 @@ def test_preview_makes_its_folder_and_refuses_one_under_a_file(tmp_path, capsys)
     assert main([*base, "--out", str(tmp_path / "afile" / "p.png")]) == 2
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and "--out" in err[0] and "is a file" in err[0]
+
+
+def test_the_sea_under_the_wake_keeps_only_the_waves_the_wake_region_can_hold():
+    """The wake region's texels are coarser than the tile's: the sea drawn under the wake is
+    the tile's height with the waves shorter than two region texels removed, not the tile
+    picked at every fourth texel (which turns a 4 m wave sampled every 4 m into a flat 1 m
+    offset: aliasing that painted a false pattern across the region)."""
+    from oceanfield.preset.preview import sea_height_over_region
+
+    x = np.arange(64) * 1.0                                   # a 64 m tile of 1 m texels
+    long_wave = np.cos(2 * np.pi * x / 32.0)                  # 32 m: the region holds it
+    short_wave = np.cos(2 * np.pi * x / 4.0)                  # 4 m: shorter than two 4 m texels
+    height = np.broadcast_to(long_wave + short_wave, (64, 64))
+    sea = sea_height_over_region(height, 64.0, origin_x=-128.0, origin_y=0.0, spacing=4.0, count=80)
+    cells = -128.0 + np.arange(80) * 4.0
+    np.testing.assert_allclose(sea[7], np.cos(2 * np.pi * cells / 32.0), atol=1e-9)  # the long wave, repeated
+    np.testing.assert_allclose(sea, np.broadcast_to(sea[:1], sea.shape), atol=1e-9)  # nothing along y

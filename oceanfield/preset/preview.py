@@ -255,13 +255,9 @@ def _wake_panels(figure, height_axes, foam_axes, preset, t: float, sea_fields) -
     n = region.resolution
     height = fields.height.astype(np.float64)
     what = "wake"
-    if sea_fields is not None:  # the tiled sea under it: texel (iy, ix) of the region at x0 + ix·s
-        size, count = preset.tile.size_m, preset.tile.resolution
-        spacing = size / count
-        cells = np.arange(n) * region.spacing
-        ix = np.rint((region.origin_x + cells) / spacing).astype(np.int64) % count
-        iy = np.rint((region.origin_y + cells) / spacing).astype(np.int64) % count
-        height = height + sea_fields.height[iy[:, None], ix[None, :]]
+    if sea_fields is not None:  # the tiled sea under it, at the region's texels
+        height = height + sea_height_over_region(sea_fields.height, preset.tile.size_m, origin_x=region.origin_x,
+                                                 origin_y=region.origin_y, spacing=region.spacing, count=n)
         what = "sea + wake"
     unit, factor = _unit_for(region.size)
     extent = tuple(v * factor for v in (region.origin_x, region.origin_x + region.size,
@@ -293,6 +289,23 @@ def _wake_panels(figure, height_axes, foam_axes, preset, t: float, sea_fields) -
         axes.set_ylim(extent[2], extent[3])
         axes.set_xlabel(f"x ({unit})")
         axes.set_ylabel(f"y ({unit})")
+
+
+def sea_height_over_region(height: NDArray, tile_size: float, *, origin_x: float, origin_y: float,
+                           spacing: float, count: int) -> NDArray[np.float64]:
+    """The tile's height (rows along y) repeated over a ``count``² region of ``spacing`` m
+    texels from (``origin_x``, ``origin_y``): the waves shorter than two region texels are
+    removed first (a box cut at the region's Nyquist wavenumber π/spacing), so a region
+    coarser than the tile shows the tile's longer waves instead of aliases of its short ones;
+    each region texel then takes the nearest tile texel."""
+    texels = height.shape[0]
+    k = 2.0 * np.pi * np.fft.fftfreq(texels, d=tile_size / texels)
+    keep = np.abs(k) < np.pi / spacing
+    smooth = np.fft.ifft2(np.fft.fft2(height) * (keep[:, None] & keep[None, :])).real
+    cells = np.arange(count) * spacing
+    ix = np.rint((origin_x + cells) / (tile_size / texels)).astype(np.int64) % texels
+    iy = np.rint((origin_y + cells) / (tile_size / texels)).astype(np.int64) % texels
+    return smooth[iy[:, None], ix[None, :]]
 
 
 def _spectrum_panel(axes, preset, sea, carried) -> None:
