@@ -132,7 +132,7 @@ def test_the_preview_draws_the_wake_region(preset_file, tmp_path):
 
     figure = preview_figure(load_preset(preset_file("straight", settings=STRAIGHT)))
     titles = [axes.get_title() for axes in figure.axes]
-    assert "sea + wake height over the wake region" in titles
+    assert "sea + wake height\nover the wake region" in titles
     assert any(title.startswith("the wake alone") for title in titles)
     import matplotlib.pyplot as plt
 

@@ -229,7 +229,7 @@ def preview_figure(preset, *, frame: int | None = None):
     image = foam_axes.imshow(fields.foam, origin="lower", extent=extent, cmap="Greys_r", vmin=0.0, vmax=1.0)
     figure.colorbar(image, ax=foam_axes, label="foam (0–1)")
     covered = float(np.mean(fields.foam > 0.5))
-    foam_axes.set_title(f"foam, top view: {covered:.1%} of the surface above 0.5", fontsize=10)
+    foam_axes.set_title(f"foam, top view:\n{covered:.1%} of the surface above 0.5", fontsize=10)
     foam_axes.set_xlabel(f"x ({unit})")
 
     _spectrum_panel(figure.add_subplot(2, columns, columns + 1), preset, sea, carried)
@@ -267,7 +267,7 @@ def _wake_panels(figure, height_axes, foam_axes, preset, t: float, sea_fields) -
     image = height_axes.imshow(height * h_factor, origin="lower", extent=extent, cmap="RdBu_r",
                                vmin=-limit * h_factor, vmax=limit * h_factor)
     figure.colorbar(image, ax=height_axes, label=f"height ({h_unit})")
-    height_axes.set_title(f"{what} height over the wake region", fontsize=10)
+    height_axes.set_title(f"{what} height\nover the wake region", fontsize=10)
     # the near field peaks at the hulls: scale to the wake's body (99.5th percentile) so the
     # Kelvin pattern behind them reads
     alone = float(np.percentile(np.abs(fields.height), 99.5)) or float(np.max(np.abs(fields.height))) or 1.0
@@ -277,7 +277,7 @@ def _wake_panels(figure, height_axes, foam_axes, preset, t: float, sea_fields) -
     figure.colorbar(image, ax=foam_axes, label=f"wake height ({w_unit})")
     if float(fields.foam.max()) > 0.25:
         foam_axes.contour(fields.foam, levels=[0.25], extent=extent, colors="0.3", linewidths=0.6)
-    foam_axes.set_title("the wake alone, foam (grey outline), courses and vessels", fontsize=10)
+    foam_axes.set_title("the wake alone, foam (grey outline),\ncourses and vessels", fontsize=10)
     for axes in (height_axes, foam_axes):
         for vessel, (hull, course) in zip(preset.vessels, wake.vessels):
             axes.plot(course.x * factor, course.y * factor, lw=0.8, color="gold")
@@ -384,7 +384,7 @@ def _figures_panel(axes, preset, stats) -> None:
         ("Beaufort (equivalent)", f"{stats.beaufort}"),
         ("tile", f"{length_text(size)} at {n}² ({length_text(size / n)} texels)"),
         ("peak wavelengths across", f"{size / stats.peak_wavelength:.2g}"),
-        ("image rows", "row 0 is y = 0 (drawn at the bottom here)"),
+        ("image rows", "row 0 is y = 0 (at the bottom)"),
     ]
     if preset.bands.active:  # the tile section stands for nothing here: say what the bands are
         from .banding import preset_bands
