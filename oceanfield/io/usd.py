@@ -45,7 +45,8 @@ __all__ = ["USD_SUFFIXES", "Look", "PrimTrack", "SeaMesh", "read_prim_track", "r
 #: File suffixes a stage can be written as.
 USD_SUFFIXES = (".usda", ".usd", ".usdc")
 
-_INSTALL = "USD output needs the usd-core package; install it with: pip install 'oceanfield[usd]'"
+_INSTALL = ("USD files (a scene to write, a layout to read) need the usd-core package; "
+            "install it with: pip install 'oceanfield[usd]'")
 
 
 def require_usd() -> None:
