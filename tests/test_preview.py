@@ -142,3 +142,19 @@ def test_no_title_or_text_runs_into_another_panel_with_the_wake_column(preset_fi
                         if other != index and extent.overlaps(box)]
     plt.close(figure)
     assert clashes == [], clashes
+
+
+def test_a_flipbook_of_a_preset_with_vessels_says_it_leaves_their_wakes_out(preset_file, tmp_path, capsys):
+    """The flipbook is the tile's top view: on a boat chase one warning says the wakes are
+    not in it and where they are."""
+    boat = {"tile": {"resolution": 32}, "time": {"first_frame": 1001, "last_frame": 1002},
+            "vessels": [{"name": "launch", "length_m": 10.0, "beam_m": 3.0, "draft_m": 0.5,
+                         "course": {"keys": [{"time_s": -18.0, "x_m": 0.0, "y_m": 0.0},
+                                             {"time_s": 2.0, "x_m": 160.0, "y_m": 0.0}]}}],
+            "wake": {"lookback_s": 20.0}}
+    status = main(["preview", str(preset_file("boat", settings=boat)), "--frames", "1001-1002",
+                   "--out", str(tmp_path / "boat.gif")])
+    err = capsys.readouterr().err
+    assert status == 0
+    assert ("warning: preview --frames: the wakes of the vessels (launch) are not drawn, only the sea; "
+            "the still preview shows them") in err
