@@ -247,6 +247,10 @@ def _main(argv: Sequence[str] | None, *, program: bool) -> int:
         return _fail(str(error))
     except ValueError as error:  # validation at a public boundary: the user's input
         return _fail(str(error))
+    except MemoryError as error:  # a size the schema allows, more than this machine holds
+        first = str(error).strip().splitlines()[0] if str(error).strip() else "the machine's memory is full"
+        return _fail(f"out of memory ({first}); allowed: smaller sizes (tile.resolution, wake.resolution, "
+                     "bands.composite_resolution, --workers) or a machine with more memory")
     except BrokenPipeError:  # the reader went away (`oceanfield presets | head -1`)
         return _closed_pipe()
     except OSError as error:  # a file the command could not read or write: one line naming it
