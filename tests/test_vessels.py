@@ -195,3 +195,12 @@ def test_a_region_too_coarse_for_a_vessels_waves_is_warned_about(preset_file):
     derived = {**coarse, "wake": {"lookback_s": 20.0}}
     assert not [w for w in preset_warnings(load_preset(preset_file("derived", settings=derived)))
                 if "shorter than two of the region's" in w]
+
+
+def test_a_name_given_to_two_vessels_is_one_line_saying_what_is_allowed(preset_file):
+    twice = {**STRAIGHT, "vessels": [STRAIGHT["vessels"][0], {**STRAIGHT["vessels"][0], "draft_m": 0.4}]}
+    with pytest.raises(PresetError) as caught:
+        load_preset(preset_file("twice", settings=twice))
+    assert len(caught.value.messages) == 1
+    assert caught.value.messages[0].endswith(
+        "vessels.1.name: `launch` names two vessels (allowed: a name of its own for each vessel)")

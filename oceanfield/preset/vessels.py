@@ -104,7 +104,7 @@ def read_vessels(top: Section, time: Any, scene: Any = None) -> Any:
         if valid(name) and not name.replace("_", "").replace("-", "").isalnum():
             name = sec.fail("name", f"`{name}` is not a name (allowed: letters, digits, _ and -)")
         elif valid(name) and name in [v.name for v in vessels if valid(v)]:
-            name = sec.fail("name", f"`{name}` names two vessels")
+            name = sec.fail("name", f"`{name}` names two vessels (allowed: a name of its own for each vessel)")
         course_node = sec.node("course")
         if course_node is None or course_node.value is None:
             course = sec.fail("", "needs a course (keys, a file or a usd_file with its prim)")
