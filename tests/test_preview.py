@@ -101,6 +101,13 @@ def test_preview_makes_its_folder_and_refuses_one_under_a_file(tmp_path, capsys)
     assert len(err) == 1 and "--out" in err[0] and "is a file" in err[0]
 
 
+#: A launch running straight along +x at 8 m/s on a small tile: the preview's wake column.
+BOAT = {"tile": {"resolution": 32}, "time": {"first_frame": 1001, "last_frame": 1002},
+        "vessels": [{"name": "launch", "length_m": 10.0, "beam_m": 3.0, "draft_m": 0.5,
+                     "course": {"keys": [{"time_s": -18.0, "x_m": 0.0, "y_m": 0.0},
+                                         {"time_s": 2.0, "x_m": 160.0, "y_m": 0.0}]}}],
+        "wake": {"lookback_s": 20.0}}
+
 def test_the_sea_under_the_wake_keeps_only_the_waves_the_wake_region_can_hold():
     """The wake region's texels are coarser than the tile's: the sea drawn under the wake is
     the tile's height with the waves shorter than two region texels removed, not the tile
@@ -123,12 +130,7 @@ def test_no_title_or_text_runs_into_another_panel_with_the_wake_column(preset_fi
     text stay clear of the other panels and colour bars (they ran into them)."""
     import matplotlib.pyplot as plt
 
-    boat = {"tile": {"resolution": 32}, "time": {"first_frame": 1001, "last_frame": 1002},
-            "vessels": [{"name": "launch", "length_m": 10.0, "beam_m": 3.0, "draft_m": 0.5,
-                         "course": {"keys": [{"time_s": -18.0, "x_m": 0.0, "y_m": 0.0},
-                                             {"time_s": 2.0, "x_m": 160.0, "y_m": 0.0}]}}],
-            "wake": {"lookback_s": 20.0}}
-    figure = preview_figure(load_preset(preset_file("boat", settings=boat)))
+    figure = preview_figure(load_preset(preset_file("boat", settings=BOAT)))
     figure.canvas.draw()
     renderer = figure.canvas.get_renderer()
     boxes = [axes.get_tightbbox(renderer) for axes in figure.axes]  # with their labels
@@ -147,12 +149,7 @@ def test_no_title_or_text_runs_into_another_panel_with_the_wake_column(preset_fi
 def test_a_flipbook_of_a_preset_with_vessels_says_it_leaves_their_wakes_out(preset_file, tmp_path, capsys):
     """The flipbook is the tile's top view: on a boat chase one warning says the wakes are
     not in it and where they are."""
-    boat = {"tile": {"resolution": 32}, "time": {"first_frame": 1001, "last_frame": 1002},
-            "vessels": [{"name": "launch", "length_m": 10.0, "beam_m": 3.0, "draft_m": 0.5,
-                         "course": {"keys": [{"time_s": -18.0, "x_m": 0.0, "y_m": 0.0},
-                                             {"time_s": 2.0, "x_m": 160.0, "y_m": 0.0}]}}],
-            "wake": {"lookback_s": 20.0}}
-    status = main(["preview", str(preset_file("boat", settings=boat)), "--frames", "1001-1002",
+    status = main(["preview", str(preset_file("boat", settings=BOAT)), "--frames", "1001-1002",
                    "--out", str(tmp_path / "boat.gif")])
     err = capsys.readouterr().err
     assert status == 0
