@@ -184,6 +184,7 @@ def _cmd_look(args: argparse.Namespace) -> int:
     preset = _load(args, allow_outside_output=True)
     _warn(preset)
     look = look_from_arguments(preset, args)
+    _warn_wakes_left_out(preset, "look", "`oceanfield preview` shows them")
     if args.frames is not None:
         from .render.plan import parse_frames
 
@@ -246,6 +247,10 @@ def _main(argv: Sequence[str] | None, *, program: bool) -> int:
         return _fail(str(error))
     except ValueError as error:  # validation at a public boundary: the user's input
         return _fail(str(error))
+    except MemoryError as error:  # a size the schema allows, more than this machine holds
+        first = str(error).strip().splitlines()[0] if str(error).strip() else "the machine's memory is full"
+        return _fail(f"out of memory ({first}); allowed: smaller sizes (tile.resolution, wake.resolution, "
+                     "bands.composite_resolution, --workers) or a machine with more memory")
     except BrokenPipeError:  # the reader went away (`oceanfield presets | head -1`)
         return _closed_pipe()
     except OSError as error:  # a file the command could not read or write: one line naming it
@@ -422,6 +427,15 @@ def _cmd_resolve(args: argparse.Namespace) -> int:
     return 0
 
 
+def _warn_wakes_left_out(preset, command: str, shown: str) -> None:
+    """One warning where a picture of the tiled (or banded) sea alone is made of a preset
+    with vessels: their wakes are missing from it, and where to see them instead."""
+    if preset.vessels:
+        names = ", ".join(vessel.name for vessel in preset.vessels)
+        print(f"{_PROG}: warning: {command}: the wakes of the vessels ({names}) are not drawn, only the sea; "
+              f"{shown} and `oceanfield render` writes them (wake_* maps)", file=sys.stderr)
+
+
 def _cmd_preview(args: argparse.Namespace) -> int:
     from .preset.preview import write_preview
 
@@ -432,6 +446,7 @@ def _cmd_preview(args: argparse.Namespace) -> int:
         from .render.plan import parse_frames
 
         frames = parse_frames(args.frames, preset.time.frames)
+        _warn_wakes_left_out(preset, "preview --frames", "the still preview shows them")
         path = write_flipbook(preset, frames, out=args.out)
         print(f"flipbook of {len(frames)} frames written to {path}")
         return 0

@@ -122,3 +122,25 @@ def test_scene_of_a_banded_preset_reads_back(tmp_path, capsys):
     np.testing.assert_allclose(points[:, 1].reshape(16, 16), composite.height, atol=1e-5)
     files = [p for p in stage.Traverse() if p.GetName() == "FoamTexture"]
     assert files and "composite_foam" in str(UsdShade.Shader(files[0]).GetInput("file").Get(Usd.TimeCode(1)))
+
+
+def test_a_banded_scene_clamps_the_composite_textures(tmp_path):
+    """The composite map covers its extent once and does not repeat (band 0 is wider): its
+    textures are clamped like the wake's, so filtering at the patch's edge does not blend in
+    the opposite edge's water (the tiled sea's own maps repeat)."""
+    pytest.importorskip("pxr", reason="usd-core is in the test extra; install it with pip install '.[test]'")
+    from pxr import Usd, UsdShade
+
+    from oceanfield.cli import main
+
+    path = tmp_path / "two.yaml"
+    path.write_text(TWO_BANDS, encoding="utf-8")
+    out = tmp_path / "shot.usda"
+    assert main(["scene", str(path), "--out", str(out), "--frames", "1-2", "--mesh-resolution", "16",
+                 "--maps", str(tmp_path / "maps")]) == 0
+    stage = Usd.Stage.Open(str(out))
+    textures = [UsdShade.Shader(p) for p in stage.Traverse() if p.GetName().endswith("Texture")]
+    assert textures
+    for texture in textures:
+        assert "composite_" in str(texture.GetInput("file").Get(Usd.TimeCode(1)))
+        assert (texture.GetInput("wrapS").Get(), texture.GetInput("wrapT").Get()) == ("clamp", "clamp")

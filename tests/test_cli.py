@@ -320,3 +320,19 @@ def test_stats_says_why_a_tile_cannot_hold_the_hs_asked_and_what_to_change(capsy
     assert main(["stats", name, "--json", "--set", "tile.resolution=64"]) == 0
     shipped = json.loads(capsys.readouterr().out)["tile"]
     assert shipped["hs_shortfall"] is None and shipped["realised_over_requested_hs"] == pytest.approx(1.0, abs=0.02)
+
+
+def test_running_out_of_memory_is_one_line_naming_the_sizes_to_lower(monkeypatch, capsys):
+    """A size the schema allows can still be more than the machine holds (a 8192² wake region
+    over a wide lattice, a 16384² composite): numpy's MemoryError becomes one line naming the
+    settings that set the memory, exit 2, not a traceback."""
+    def too_big(args):
+        raise MemoryError("Unable to allocate 549. MiB for an array with shape (12000, 6001) and data type float64")
+
+    monkeypatch.setitem(cli._COMMANDS, "stats", too_big)
+    status = main(["stats", "fresh_chop"])
+    err = capsys.readouterr().err
+    assert status == 2
+    assert len(err.strip().splitlines()) == 1
+    assert err.startswith("oceanfield: error: out of memory (Unable to allocate 549. MiB")
+    assert "tile.resolution, wake.resolution, bands.composite_resolution" in err

@@ -227,3 +227,18 @@ def test_bad_options_are_one_line_naming_them(argv, named, capsys, tmp_path):
     assert status == 2
     assert named in error and len(error.splitlines()) == 1
     assert not list(tmp_path.iterdir())
+
+
+def test_a_preset_with_vessels_says_the_look_leaves_their_wakes_out(tmp_path, capsys):
+    """The look draws the tiled sea alone: on a boat chase one warning says the wakes are
+    missing and where to see them, so no one judges the shot by a picture without them."""
+    preset = tmp_path / "boat.yaml"
+    preset.write_text(
+        "extends: glassy_calm\ntile: {resolution: 64}\n"
+        "vessels:\n  - name: tender\n    length_m: 6\n    beam_m: 2\n    draft_m: 0.3\n"
+        "    course: {keys: [{time_s: -40, x_m: -100, y_m: 0}, {time_s: 10, x_m: 50, y_m: 0}]}\n"
+        "wake: {origin_x_m: -150, origin_y_m: -100, size_m: 200, resolution: 32, lookback_s: 30}\n")
+    status = main(["look", str(preset), "--size", "32x18", "--out", str(tmp_path / "boat.png")])
+    err = capsys.readouterr().err
+    assert status == 0
+    assert "warning: look: the wakes of the vessels (tender) are not drawn" in err

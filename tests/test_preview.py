@@ -99,3 +99,59 @@ def test_preview_makes_its_folder_and_refuses_one_under_a_file(tmp_path, capsys)
     assert main([*base, "--out", str(tmp_path / "afile" / "p.png")]) == 2
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and "--out" in err[0] and "is a file" in err[0]
+
+
+#: A launch running straight along +x at 8 m/s on a small tile: the preview's wake column.
+BOAT = {"tile": {"resolution": 32}, "time": {"first_frame": 1001, "last_frame": 1002},
+        "vessels": [{"name": "launch", "length_m": 10.0, "beam_m": 3.0, "draft_m": 0.5,
+                     "course": {"keys": [{"time_s": -18.0, "x_m": 0.0, "y_m": 0.0},
+                                         {"time_s": 2.0, "x_m": 160.0, "y_m": 0.0}]}}],
+        "wake": {"lookback_s": 20.0}}
+
+def test_the_sea_under_the_wake_keeps_only_the_waves_the_wake_region_can_hold():
+    """The wake region's texels are coarser than the tile's: the sea drawn under the wake is
+    the tile's height with the waves shorter than two region texels removed, not the tile
+    picked at every fourth texel (which turns a 4 m wave sampled every 4 m into a flat 1 m
+    offset: short waves folded into false long ones)."""
+    from oceanfield.preset.preview import sea_height_over_region
+
+    x = np.arange(64) * 1.0                                   # a 64 m tile of 1 m texels
+    long_wave = np.cos(2 * np.pi * x / 32.0)                  # 32 m: the region holds it
+    short_wave = np.cos(2 * np.pi * x / 4.0)                  # 4 m: shorter than two 4 m texels
+    height = np.broadcast_to(long_wave + short_wave, (64, 64))
+    sea = sea_height_over_region(height, 64.0, origin_x=-128.0, origin_y=0.0, spacing=4.0, count=80)
+    cells = -128.0 + np.arange(80) * 4.0
+    np.testing.assert_allclose(sea[7], np.cos(2 * np.pi * cells / 32.0), atol=1e-9)  # the long wave, repeated
+    np.testing.assert_allclose(sea, np.broadcast_to(sea[:1], sea.shape), atol=1e-9)  # nothing along y
+
+
+def test_no_title_or_text_runs_into_another_panel_with_the_wake_column(preset_file):
+    """With the wake's fourth column the panels are narrower: every title and the figures'
+    text stay clear of the other panels and colour bars (they ran into them)."""
+    import matplotlib.pyplot as plt
+
+    figure = preview_figure(load_preset(preset_file("boat", settings=BOAT)))
+    figure.canvas.draw()
+    renderer = figure.canvas.get_renderer()
+    boxes = [axes.get_tightbbox(renderer) for axes in figure.axes]  # with their labels
+    clashes = []
+    for index, axes in enumerate(figure.axes):
+        for text in [axes.title, *axes.texts]:
+            if not text.get_text():
+                continue
+            extent = text.get_window_extent(renderer)
+            clashes += [(text.get_text(), other) for other, box in enumerate(boxes)
+                        if other != index and extent.overlaps(box)]
+    plt.close(figure)
+    assert clashes == [], clashes
+
+
+def test_a_flipbook_of_a_preset_with_vessels_says_it_leaves_their_wakes_out(preset_file, tmp_path, capsys):
+    """The flipbook is the tile's top view: on a boat chase one warning says the wakes are
+    not in it and where they are."""
+    status = main(["preview", str(preset_file("boat", settings=BOAT)), "--frames", "1001-1002",
+                   "--out", str(tmp_path / "boat.gif")])
+    err = capsys.readouterr().err
+    assert status == 0
+    assert ("warning: preview --frames: the wakes of the vessels (launch) are not drawn, only the sea; "
+            "the still preview shows them") in err

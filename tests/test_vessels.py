@@ -132,7 +132,7 @@ def test_the_preview_draws_the_wake_region(preset_file, tmp_path):
 
     figure = preview_figure(load_preset(preset_file("straight", settings=STRAIGHT)))
     titles = [axes.get_title() for axes in figure.axes]
-    assert "sea + wake height over the wake region" in titles
+    assert "sea + wake height\nover the wake region" in titles
     assert any(title.startswith("the wake alone") for title in titles)
     import matplotlib.pyplot as plt
 
@@ -174,3 +174,33 @@ def test_the_readme_example_loads(tmp_path):
     path.write_text(block, encoding="utf-8")
     preset = load_preset(path)
     assert [v.name for v in preset.vessels] == ["lead"] and preset.wake.lookback_s == 60.0
+
+
+def test_a_region_too_coarse_for_a_vessels_waves_is_warned_about(preset_file):
+    """A slow launch (1.5 m/s: transverse waves 2πU²/g = 1.44 m) on a region of 6.25 m texels:
+    its Kelvin waves are shorter than two texels and cannot be drawn; one warning names the
+    vessel, both lengths and the resolution that would carry them. The derived region does not
+    warn."""
+    slow = {**STRAIGHT["vessels"][0], "course": {"keys": [{"time_s": -18.0, "x_m": 0.0, "y_m": 0.0},
+                                                           {"time_s": 2.0, "x_m": 30.0, "y_m": 0.0}]}}
+    coarse = {**STRAIGHT, "vessels": [slow],
+              "wake": {"lookback_s": 20.0, "origin_x_m": -50.0, "origin_y_m": -100.0, "size_m": 200.0,
+                       "resolution": 32}}
+    warnings = [w for w in preset_warnings(load_preset(preset_file("coarse", settings=coarse)))
+                if "transverse" in w and "texels" in w]
+    assert len(warnings) == 1
+    assert warnings[0].startswith("wake: vessel `launch`: its 1.44 m transverse waves are shorter than two of "
+                                  "the region's 6.25 m texels")
+    assert "wake.resolution of at least 278" in warnings[0]
+    derived = {**coarse, "wake": {"lookback_s": 20.0}}
+    assert not [w for w in preset_warnings(load_preset(preset_file("derived", settings=derived)))
+                if "shorter than two of the region's" in w]
+
+
+def test_a_name_given_to_two_vessels_is_one_line_saying_what_is_allowed(preset_file):
+    twice = {**STRAIGHT, "vessels": [STRAIGHT["vessels"][0], {**STRAIGHT["vessels"][0], "draft_m": 0.4}]}
+    with pytest.raises(PresetError) as caught:
+        load_preset(preset_file("twice", settings=twice))
+    assert len(caught.value.messages) == 1
+    assert caught.value.messages[0].endswith(
+        "vessels.1.name: `launch` names two vessels (allowed: a name of its own for each vessel)")

@@ -45,7 +45,8 @@ __all__ = ["USD_SUFFIXES", "Look", "PrimTrack", "SeaMesh", "read_prim_track", "r
 #: File suffixes a stage can be written as.
 USD_SUFFIXES = (".usda", ".usd", ".usdc")
 
-_INSTALL = "USD output needs the usd-core package; install it with: pip install 'oceanfield[usd]'"
+_INSTALL = ("USD files (a scene to write, a layout to read) need the usd-core package; "
+            "install it with: pip install 'oceanfield[usd]'")
 
 
 def require_usd() -> None:
@@ -139,6 +140,8 @@ def write_stage(
     final = Path(path)
     if final.suffix.lower() not in USD_SUFFIXES:
         raise ValueError(f"--out: {str(final)!r} is not allowed; allowed: a file ending in .usda, .usd or .usdc")
+    for group, items in (("Probes", probes or {}), ("Bodies", bodies or {})):
+        _distinct_prims(group, list(items), Tf.MakeValidIdentifier)
     frames = [int(f) for f in frames]
     count = len(frames)
     stage = Usd.Stage.CreateInMemory()
@@ -186,6 +189,18 @@ def write_stage(
         if not stage.GetRootLayer().Export(str(temporary)):
             raise OSError(f"USD could not export the stage to {temporary}")
     return final
+
+
+def _distinct_prims(group: str, names: Sequence[str], identifier) -> None:
+    """Refuse two names that ``identifier`` (USD's valid-identifier rule) makes one prim."""
+    seen: dict[str, str] = {}
+    for name in names:
+        prim = identifier(name)
+        if prim in seen:
+            raise ValueError(f"{group.lower()}: `{seen[prim]}` and `{name}` would both be the prim "
+                             f"/Shot/{group}/{prim}; allowed: names that differ in their letters, digits or _ "
+                             "(a prim name holds nothing else)")
+        seen[prim] = name
 
 
 def _mesh(stage, path: str, mesh: SeaMesh, frames: Sequence[int], Sdf, Usd, UsdGeom, Vt):

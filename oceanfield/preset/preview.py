@@ -229,7 +229,7 @@ def preview_figure(preset, *, frame: int | None = None):
     image = foam_axes.imshow(fields.foam, origin="lower", extent=extent, cmap="Greys_r", vmin=0.0, vmax=1.0)
     figure.colorbar(image, ax=foam_axes, label="foam (0–1)")
     covered = float(np.mean(fields.foam > 0.5))
-    foam_axes.set_title(f"foam, top view: {covered:.1%} of the surface above 0.5", fontsize=10)
+    foam_axes.set_title(f"foam, top view:\n{covered:.1%} of the surface above 0.5", fontsize=10)
     foam_axes.set_xlabel(f"x ({unit})")
 
     _spectrum_panel(figure.add_subplot(2, columns, columns + 1), preset, sea, carried)
@@ -255,13 +255,9 @@ def _wake_panels(figure, height_axes, foam_axes, preset, t: float, sea_fields) -
     n = region.resolution
     height = fields.height.astype(np.float64)
     what = "wake"
-    if sea_fields is not None:  # the tiled sea under it: texel (iy, ix) of the region at x0 + ix·s
-        size, count = preset.tile.size_m, preset.tile.resolution
-        spacing = size / count
-        cells = np.arange(n) * region.spacing
-        ix = np.rint((region.origin_x + cells) / spacing).astype(np.int64) % count
-        iy = np.rint((region.origin_y + cells) / spacing).astype(np.int64) % count
-        height = height + sea_fields.height[iy[:, None], ix[None, :]]
+    if sea_fields is not None:  # the tiled sea under it, at the region's texels
+        height = height + sea_height_over_region(sea_fields.height, preset.tile.size_m, origin_x=region.origin_x,
+                                                 origin_y=region.origin_y, spacing=region.spacing, count=n)
         what = "sea + wake"
     unit, factor = _unit_for(region.size)
     extent = tuple(v * factor for v in (region.origin_x, region.origin_x + region.size,
@@ -271,7 +267,7 @@ def _wake_panels(figure, height_axes, foam_axes, preset, t: float, sea_fields) -
     image = height_axes.imshow(height * h_factor, origin="lower", extent=extent, cmap="RdBu_r",
                                vmin=-limit * h_factor, vmax=limit * h_factor)
     figure.colorbar(image, ax=height_axes, label=f"height ({h_unit})")
-    height_axes.set_title(f"{what} height over the wake region", fontsize=10)
+    height_axes.set_title(f"{what} height\nover the wake region", fontsize=10)
     # the near field peaks at the hulls: scale to the wake's body (99.5th percentile) so the
     # Kelvin pattern behind them reads
     alone = float(np.percentile(np.abs(fields.height), 99.5)) or float(np.max(np.abs(fields.height))) or 1.0
@@ -281,7 +277,7 @@ def _wake_panels(figure, height_axes, foam_axes, preset, t: float, sea_fields) -
     figure.colorbar(image, ax=foam_axes, label=f"wake height ({w_unit})")
     if float(fields.foam.max()) > 0.25:
         foam_axes.contour(fields.foam, levels=[0.25], extent=extent, colors="0.3", linewidths=0.6)
-    foam_axes.set_title("the wake alone, foam (grey outline), courses and vessels", fontsize=10)
+    foam_axes.set_title("the wake alone, foam (grey outline),\ncourses and vessels", fontsize=10)
     for axes in (height_axes, foam_axes):
         for vessel, (hull, course) in zip(preset.vessels, wake.vessels):
             axes.plot(course.x * factor, course.y * factor, lw=0.8, color="gold")
@@ -293,6 +289,23 @@ def _wake_panels(figure, height_axes, foam_axes, preset, t: float, sea_fields) -
         axes.set_ylim(extent[2], extent[3])
         axes.set_xlabel(f"x ({unit})")
         axes.set_ylabel(f"y ({unit})")
+
+
+def sea_height_over_region(height: NDArray, tile_size: float, *, origin_x: float, origin_y: float,
+                           spacing: float, count: int) -> NDArray[np.float64]:
+    """The tile's height (rows along y) repeated over a ``count``² region of ``spacing`` m
+    texels from (``origin_x``, ``origin_y``): the waves shorter than two region texels are
+    removed first (a box cut at the region's Nyquist wavenumber π/spacing), so a region
+    coarser than the tile shows the tile's longer waves instead of aliases of its short ones;
+    each region texel then takes the nearest tile texel."""
+    texels = height.shape[0]
+    k = 2.0 * np.pi * np.fft.fftfreq(texels, d=tile_size / texels)
+    keep = np.abs(k) < np.pi / spacing
+    smooth = np.fft.ifft2(np.fft.fft2(height) * (keep[:, None] & keep[None, :])).real
+    cells = np.arange(count) * spacing
+    ix = np.rint((origin_x + cells) / (tile_size / texels)).astype(np.int64) % texels
+    iy = np.rint((origin_y + cells) / (tile_size / texels)).astype(np.int64) % texels
+    return smooth[iy[:, None], ix[None, :]]
 
 
 def _spectrum_panel(axes, preset, sea, carried) -> None:
@@ -371,7 +384,7 @@ def _figures_panel(axes, preset, stats) -> None:
         ("Beaufort (equivalent)", f"{stats.beaufort}"),
         ("tile", f"{length_text(size)} at {n}² ({length_text(size / n)} texels)"),
         ("peak wavelengths across", f"{size / stats.peak_wavelength:.2g}"),
-        ("image rows", "row 0 is y = 0 (drawn at the bottom here)"),
+        ("image rows", "row 0 is y = 0 (at the bottom)"),
     ]
     if preset.bands.active:  # the tile section stands for nothing here: say what the bands are
         from .banding import preset_bands

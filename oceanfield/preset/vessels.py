@@ -104,7 +104,7 @@ def read_vessels(top: Section, time: Any, scene: Any = None) -> Any:
         if valid(name) and not name.replace("_", "").replace("-", "").isalnum():
             name = sec.fail("name", f"`{name}` is not a name (allowed: letters, digits, _ and -)")
         elif valid(name) and name in [v.name for v in vessels if valid(v)]:
-            name = sec.fail("name", f"`{name}` names two vessels")
+            name = sec.fail("name", f"`{name}` names two vessels (allowed: a name of its own for each vessel)")
         course_node = sec.node("course")
         if course_node is None or course_node.value is None:
             course = sec.fail("", "needs a course (keys, a file or a usd_file with its prim)")
@@ -272,10 +272,36 @@ def wake_notes(preset, wake=None) -> list[str]:
         for index, vessel in sorted(enumerate(preset.vessels), reverse=True):  # vessel 10 before vessel 1
             note = note.replace(f"vessel {index}:", f"vessel `{vessel.name}`:")
         notes.append(f"wake: {note}")
+    notes.extend(_coarse_region_notes(preset, wake.region))
     if preset.time.loop_period_s is not None:
         notes.append(f"wake: time.loop_period_s {preset.time.loop_period_s:g} s loops the sea, not the wake "
                      f"(a vessel's course does not repeat): the wake maps do not loop")
     return notes
+
+
+def _coarse_region_notes(preset, region) -> list[str]:
+    """A vessel whose deep-water transverse waves 2πU²/g (at its top speed over the frames'
+    window) are shorter than two region texels: the region cannot carry its Kelvin waves
+    (the sampling theorem's two samples a wavelength), whatever the wake's height."""
+    notes = []
+    start, end = _window(preset)
+    spacing, size = region.spacing, region.size
+    for vessel, samples in zip(preset.vessels, vessel_samples(preset)):
+        transverse = 2.0 * math.pi * _top_speed(samples, start, end) ** 2 / preset.sea.gravity_mps2
+        if 0.0 < transverse < 2.0 * spacing:
+            needed = 2 * math.ceil(size / transverse)  # even, two texels a transverse wavelength
+            notes.append(f"wake: vessel `{vessel.name}`: its {transverse:.3g} m transverse waves are shorter than "
+                         f"two of the region's {spacing:.3g} m texels: the region cannot draw its Kelvin waves; "
+                         f"allowed: a wake.resolution of at least {needed} for this {size:g} m region, or null "
+                         f"to derive it")
+    return notes
+
+
+def _top_speed(samples: CourseSamples, start: float, end: float) -> float:
+    """The fastest speed (m/s) of a course's pieces that overlap the window [start, end] s."""
+    speeds = vessel_speeds(samples)
+    live = (samples.times[1:] > start) & (samples.times[:-1] < end)
+    return float(speeds[live].max()) if live.any() else 0.0
 
 
 _KNOT_MPS = 1852.0 / 3600.0  # one knot: a nautical mile (1852 m, BIPM SI brochure table 8) an hour
@@ -298,8 +324,7 @@ def wake_report(preset) -> dict[str, Any]:
     for vessel, samples in zip(preset.vessels, vessel_samples(preset)):
         speeds = vessel_speeds(samples)
         pieces_start, pieces_end = samples.times[:-1], samples.times[1:]
-        live = (pieces_end > start) & (pieces_start < end)
-        top = float(speeds[live].max()) if live.any() else 0.0
+        top = _top_speed(samples, start, end)
         span = np.clip(np.minimum(pieces_end, end) - np.maximum(pieces_start, start), 0.0, None)
         mean = float(np.sum(speeds * span) / np.sum(span)) if np.sum(span) > 0 else 0.0
         depth_froude = float(physics.depth_froude_number(top, sea.depth_m, gravity=sea.gravity_mps2))

@@ -533,7 +533,8 @@ def run_scene_command(args) -> int:
     body_transforms = body_table(preset, ocean, bodies, frames, times, wake=wake)[2] if bodies or wake else {}
     textures, missing = _texture_files(preset, maps_root, out, frames)
     look = Look(textures=textures, foam_map="foam" if "foam" in preset.maps else None,
-                notes={k: v for k, v in _TEXTURE_NOTES.items() if k in textures})
+                notes={k: v for k, v in _TEXTURE_NOTES.items() if k in textures},
+                wrap="clamp" if preset.bands.active else "repeat")  # the composite does not repeat
     patch = wake_look = None
     if wake is not None:  # a second mesh over the wake region: sea + wake, wired to the wake_* maps
         from ..preset.vessels import wake_map_names
