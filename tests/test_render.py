@@ -577,3 +577,17 @@ def test_a_banded_render_hash_changes_with_how_its_foam_is_shared(monkeypatch):
     monkeypatch.setattr(plan_module, "BAND_FOAM", plan_module.BAND_FOAM + 1)
     assert render_hash(banded) != before[0]
     assert render_hash(single) == before[1]
+
+
+def test_a_composite_render_hash_changes_with_how_the_composite_is_summed(monkeypatch):
+    """Composite maps summed another way (exact chirp z before non-uniform FFTs: the same to
+    1e-6 σ, not the same bits) are never mixed with new ones (plan.COMPOSITE_SUMS is in the
+    hash of a banded preset that writes a composite); bands without one keep their hash."""
+    from oceanfield.render import plan as plan_module
+
+    composite = load_preset("open_ocean_horizon")
+    bands_only = load_preset("open_ocean_horizon", overrides=["bands.composite_extent_m=null"])
+    before = render_hash(composite), render_hash(bands_only)
+    monkeypatch.setattr(plan_module, "COMPOSITE_SUMS", plan_module.COMPOSITE_SUMS + 1)
+    assert render_hash(composite) != before[0]
+    assert render_hash(bands_only) == before[1]
