@@ -142,13 +142,11 @@ def test_the_scene_has_the_vessels_and_a_wake_patch_wired_to_the_wake_maps(tmp_p
 def test_outside_the_region_there_is_no_wake(preset_file):
     """The wake's sums run on a padded periodic lattice: beyond the region they would read a
     periodic image of the wake. Probes and bodies see what the maps hold: nothing there."""
-    from oceanfield.surface.riding import wake_points
-
     wake = preset_wake(load_preset(preset_file("boat", settings=BOAT)), velocity=False)
     period = wake.region.spacing * wake.lattice_size
     inside = wake.surface_at(-5.0, -3.0, 0.5)
     assert abs(float(inside.displacement[2])) > 1e-3  # the wake is there, 5 m behind the hull's track
-    ghost = wake_points(wake, np.array([-5.0 + period, -5.0]), np.array([-3.0, -3.0]), 0.5)
+    ghost = wake.surface_at(np.array([-5.0 + period, -5.0]), np.array([-3.0, -3.0]), 0.5)
     np.testing.assert_array_equal(ghost.displacement[0], [0.0, 0.0, 0.0])
     np.testing.assert_array_equal(ghost.normal[0], [0.0, 0.0, 1.0])
     assert ghost.jacobian[0] == 1.0 and ghost.rise_rate[0] == 0.0

@@ -219,11 +219,10 @@ def probe_table(preset, ocean, probes: Sequence[ProbePoint], frames: Sequence[in
     points = surface_at(ocean.modes(bound_share=1.0), xs, ys, times[None, :], tolerance=_tolerance(ocean))
     shape = (len(probes), len(times))
     if wake is not None:  # the wakes at the sea's rest points, added to first order (surface.wake.combine)
-        from ..surface.riding import wake_points
         from ..surface.wake import combine
 
-        points = combine(points, wake_points(wake, points.rest[..., 0], points.rest[..., 1],
-                                             np.broadcast_to(times[None, :], shape)))
+        points = combine(points, wake.surface_at(points.rest[..., 0], points.rest[..., 1],
+                                                 np.broadcast_to(times[None, :], shape)))
     where = np.stack([np.broadcast_to(xs, shape), np.broadcast_to(ys, shape), points.position[..., 2]], axis=-1)
     position = where @ axes.T / mpu
     displacement = points.displacement @ axes.T / mpu

@@ -7,14 +7,12 @@ the same least-squares plane), at the displaced sea's points, with the wake's he
 there added to first order (``surface.wake.combine``). A body on a course is placed at
 its course's position and heading at each instant (the forcing samples of a damped
 response too), so its motion is still a function of its time alone; a fixed body is a
-course that stays put. Outside the wake's region there is no wake (`wake_points`), as in
+course that stays put. Outside the wake's region there is no wake (`Wake.surface_at`), as in
 the maps. Its rotation is R = Rz(ψ(t)) · Ry(−pitch) · Rx(roll), as in
 ``bodies`` with the heading of the instant.
 """
 
 from __future__ import annotations
-
-from dataclasses import replace
 
 import numpy as np
 from numpy.typing import ArrayLike
@@ -23,33 +21,7 @@ from .bodies import Body, BodyMotion, _rotation, _waterplane, body_motion
 from .modes import WaveModes
 from .probes import surface_at
 
-__all__ = ["ride", "standing_course", "headings_deg", "wake_points"]
-
-
-def wake_points(wake, x: ArrayLike, y: ArrayLike, t: ArrayLike, *, exclude: int | None = None):
-    """``wake.surface_at`` at rest points (x, y), with no wake outside the wake's region.
-
-    The wake is computed on a periodic lattice larger than its region; beyond the region
-    its sums would read that lattice's padding or a periodic image, while the wake maps end
-    at the region's edge. So outside the region the wake is nothing (displacement,
-    velocity and rise rate 0, normal up, Jacobian 1): probes and bodies see what the maps
-    hold.
-    """
-    points = wake.surface_at(x, y, t, exclude=exclude)
-    r = wake.region
-    px, py = points.rest[..., 0], points.rest[..., 1]
-    outside = (px < r.origin_x) | (px > r.origin_x + r.size) | (py < r.origin_y) | (py > r.origin_y + r.size)
-    if not outside.any():
-        return points
-    keep = ~outside
-    up = np.zeros(points.normal.shape)
-    up[..., 2] = 1.0
-    return replace(points, displacement=points.displacement * keep[..., None],
-                   position=np.concatenate([points.rest, np.zeros(px.shape + (1,))], axis=-1)
-                   + points.displacement * keep[..., None],
-                   velocity=points.velocity * keep[..., None], rise_rate=points.rise_rate * keep,
-                   normal=np.where(outside[..., None], up, points.normal),
-                   jacobian=np.where(outside, 1.0, points.jacobian))
+__all__ = ["ride", "standing_course", "headings_deg"]
 
 
 def standing_course(body: Body, t0: float, t1: float):
@@ -102,7 +74,7 @@ def ride(modes: WaveModes, body: Body, times: ArrayLike, *, spacing: float, cour
         py = y[:, None] + xi[None, :] * s + zeta[None, :] * c
         points = surface_at(resolved, px, py, instants[:, None])
         if wake is not None:
-            added = wake_points(wake, points.rest[..., 0], points.rest[..., 1],
+            added = wake.surface_at(points.rest[..., 0], points.rest[..., 1],
                                 np.broadcast_to(instants[:, None], px.shape), exclude=exclude)
             points = combine(points, added)
         eta = points.position[..., 2]

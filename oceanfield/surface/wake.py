@@ -340,7 +340,9 @@ class Wake:
 
         Broadcast like ``probes.surface_at``. The points are not inverted through the wake's
         small lateral displacement: ``rest`` is (x, y), ``residual`` and ``iterations`` 0.
-        ``exclude`` leaves out vessel number ``exclude``'s own wake.
+        ``exclude`` leaves out vessel number ``exclude``'s own wake. Outside the region there
+        is no wake (displacement, velocity and rise rate 0, normal up, Jacobian 1), as in the
+        maps: the lattice's sums would read its padding or a periodic image of the wake there.
         """
         from . import _wake_kernels as kern
 
@@ -355,8 +357,10 @@ class Wake:
         cols = np.zeros((flat_t.size, len(kern.POINT_COLUMNS)))
         px = xs.ravel() - self.region.origin_x
         py = ys.ravel() - self.region.origin_y
-        for tv in np.unique(flat_t):
-            sel = flat_t == tv
+        size = self.region.size
+        inside = (px >= 0.0) & (px <= size) & (py >= 0.0) & (py <= size)
+        for tv in np.unique(flat_t[inside]):
+            sel = inside & (flat_t == tv)
             spec = self._spectra(float(tv), 11, exclude)
             cols[sel] = self._sums_at(spec, np.ascontiguousarray(px[sel]), np.ascontiguousarray(py[sel]))
         c = {name: cols[:, i].reshape(shape) for i, name in enumerate(kern.POINT_COLUMNS)}
